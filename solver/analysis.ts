@@ -1,0 +1,231 @@
+// Local analysis of a closed state: rank of the closure Jacobian, local DOF, condition number, null space,
+// and the sensitivity of every free crease to every drive (the implicit-function derivative −J_f⁺·J_d).
+
+import { Matrix, SingularValueDecomposition } from 'ml-matrix';
+import type { ClosureProblem } from './newton';
+import { EnvelopeMatrix } from './math/envelope';
+
+/** Columns up to this count use a dense SVD; larger problems use the sparse normal-matrix factor. */
+export const DENSE_LIMIT = 700;
+/** Singular values at or below this (the Jacobian's columns are unit folded directions) count as zero. */
+export const RANK_TOLERANCE = 1e-8;
+/** Condition numbers above this get a near-singular warning. */
+export const NEAR_SINGULAR_CONDITION = 1e6;
+
+export interface LocalAnalysis {
+  columns: number;
+  rank: number;
+  /** columns − rank */
+  localDof: number;
+  /** σ_max / σ_min over the non-zero singular values (∞ when rank is 0); estimated for large problems */
+  condition: number;
+  /** smallest non-zero singular value */
+  sigmaMin: number;
+  /** basis of the null space (each vector over the columns), dense path only */
+  nullBasis?: number[][];
+  /** sensitivity[k][d] = ∂(column k)/∂(drive d), only when drive columns were given */
+  sensitivity?: number[][];
+  /** for large problems: columns whose factor pivot vanished (candidates to drive) */
+  dependentColumns?: number[];
+  exact: boolean;
+}
+
+/**
+ * Analyse the Jacobian of `problem` at its last evaluate() with respect to `columns` (creases), and optionally
+ * the sensitivity of those columns to `drives` (creases).
+ */
+export function analyzeState(
+  problem: ClosureProblem,
+  columns: ArrayLike<number>,
+  drives: ArrayLike<number> = [],
+): LocalAnalysis {
+  if (columns.length <= DENSE_LIMIT) return denseAnalysis(problem, columns, drives);
+  return sparseAnalysis(problem, columns, drives);
+}
+
+function denseAnalysis(problem: ClosureProblem, columns: ArrayLike<number>, drives: ArrayLike<number>): LocalAnalysis {
+  const nc = columns.length;
+  if (nc === 0 || problem.sys.blockCount === 0) {
+    return {
+      columns: nc, rank: 0, localDof: nc, condition: nc === 0 ? 1 : Infinity, sigmaMin: 0,
+      nullBasis: identity(nc), sensitivity: Array.from({ length: nc }, () => Array.from(drives, () => 0)), exact: true,
+    };
+  }
+  const J = new Matrix(problem.denseJacobian(columns));
+  const svd = new SingularValueDecomposition(J, { autoTranspose: true });
+  const sv = svd.diagonal;
+  const V = svd.rightSingularVectors;
+  const U = svd.leftSingularVectors;
+  const rank = sv.filter((s) => s > RANK_TOLERANCE).length;
+  const sMax = sv.length ? Math.max(...sv) : 0;
+  const nonzero = sv.filter((s) => s > RANK_TOLERANCE);
+  const sigmaMin = nonzero.length ? Math.min(...nonzero) : 0;
+  const condition = rank === 0 ? Infinity : sMax / sigmaMin;
+  // null space: right singular vectors beyond the rank (V is nc × k with k = min(m, nc) when m < nc)
+  const order = sv.map((s, i) => [s, i] as const).sort((a, b) => b[0] - a[0]).map((p) => p[1]);
+  const rangeVectors = order.slice(0, rank).map((i) => V.getColumn(i));
+  const nullBasis = completeNullBasis(rangeVectors, nc);
+  let sensitivity: number[][] | undefined;
+  if (drives.length) {
+    const Jd = new Matrix(problem.denseJacobian(drives));
+    // x = −V Σ⁺ Uᵀ J_d over the non-zero singular values
+    const UtJd = order.slice(0, rank).map((i) => {
+      const u = U.getColumn(i);
+      return Array.from({ length: drives.length }, (_, d) => {
+        let s = 0;
+        for (let r = 0; r < u.length; r++) s += u[r] * Jd.get(r, d);
+        return s / sv[i];
+      });
+    });
+    sensitivity = Array.from({ length: nc }, (_, k) =>
+      Array.from({ length: drives.length }, (_, d) => {
+        let s = 0;
+        for (let q = 0; q < rank; q++) s += rangeVectors[q][k] * UtJd[q][d];
+        return -s;
+      }),
+    );
+  }
+  return { columns: nc, rank, localDof: nc - rank, condition, sigmaMin, nullBasis, sensitivity, exact: true };
+}
+
+function identity(n: number): number[][] {
+  return Array.from({ length: n }, (_, i) => Array.from({ length: n }, (_, j) => (i === j ? 1 : 0)));
+}
+
+/** Orthonormal complement of the given orthonormal vectors in Rⁿ (Gram–Schmidt against unit vectors). */
+function completeNullBasis(range: number[][], n: number): number[][] {
+  const basis = range.map((v) => [...v]);
+  const out: number[][] = [];
+  for (let e = 0; e < n && basis.length < n; e++) {
+    const v = new Array(n).fill(0);
+    v[e] = 1;
+    for (let pass = 0; pass < 2; pass++) {
+      for (const b of basis) {
+        let d = 0;
+        for (let i = 0; i < n; i++) d += b[i] * v[i];
+        for (let i = 0; i < n; i++) v[i] -= d * b[i];
+      }
+    }
+    const norm = Math.hypot(...v);
+    if (norm > 1e-6) {
+      for (let i = 0; i < n; i++) v[i] /= norm;
+      basis.push(v);
+      out.push(v);
+    }
+  }
+  return out;
+}
+
+function sparseAnalysis(problem: ClosureProblem, columns: ArrayLike<number>, drives: ArrayLike<number>): LocalAnalysis {
+  const nc = columns.length;
+  const colOf = new Map<number, number>();
+  for (let k = 0; k < nc; k++) colOf.set(columns[k], k);
+  const { blockStart, slotCrease, blockCount } = problem.sys;
+  const J = problem.jacobian;
+  const adj: Set<number>[] = Array.from({ length: nc }, () => new Set<number>());
+  for (let b = 0; b < blockCount; b++) {
+    for (let p = blockStart[b]; p < blockStart[b + 1]; p++) {
+      const a = colOf.get(slotCrease[p]);
+      if (a === undefined) continue;
+      for (let q = blockStart[b]; q < blockStart[b + 1]; q++) {
+        const c = colOf.get(slotCrease[q]);
+        if (c !== undefined && c !== a) adj[a].add(c);
+      }
+    }
+  }
+  const env = new EnvelopeMatrix(adj.map((s) => [...s]));
+  const assemble = () => {
+    env.clear();
+    for (let b = 0; b < blockCount; b++) {
+      for (let p = blockStart[b]; p < blockStart[b + 1]; p++) {
+        const a = colOf.get(slotCrease[p]);
+        if (a === undefined) continue;
+        for (let q = blockStart[b]; q <= p; q++) {
+          const c = colOf.get(slotCrease[q]);
+          if (c === undefined) continue;
+          env.add(a, c, J[3 * p] * J[3 * q] + J[3 * p + 1] * J[3 * q + 1] + J[3 * p + 2] * J[3 * q + 2]);
+        }
+      }
+    }
+  };
+  const applyNormal = (out: Float64Array, v: Float64Array) => {
+    const t = new Float64Array(3 * blockCount);
+    for (let b = 0; b < blockCount; b++)
+      for (let p = blockStart[b]; p < blockStart[b + 1]; p++) {
+        const a = colOf.get(slotCrease[p]);
+        if (a === undefined) continue;
+        for (let k = 0; k < 3; k++) t[3 * b + k] += J[3 * p + k] * v[a];
+      }
+    out.fill(0);
+    for (let b = 0; b < blockCount; b++)
+      for (let p = blockStart[b]; p < blockStart[b + 1]; p++) {
+        const a = colOf.get(slotCrease[p]);
+        if (a === undefined) continue;
+        for (let k = 0; k < 3; k++) out[a] += J[3 * p + k] * t[3 * b + k];
+      }
+    return out;
+  };
+  assemble();
+  // σ² tolerance relative to the normal matrix; zero pivots mark dependent columns
+  env.factor(RANK_TOLERANCE * RANK_TOLERANCE);
+  const zero = env.zeroPivots.map((k) => env.perm[k]);
+  const rank = nc - zero.length;
+  // λ_max by power iteration on JᵀJ; λ_min by inverse iteration with the factor (held columns excluded)
+  const held = new Set(zero);
+  let v = new Float64Array(nc).map((_, i) => (held.has(i) ? 0 : 1 + ((i * 7919) % 13) / 13));
+  const w = new Float64Array(nc);
+  let lmax = 0;
+  for (let it = 0; it < 60; it++) {
+    normalize(v);
+    applyNormal(w, v);
+    for (const h of held) w[h] = 0;
+    const l = Math.hypot(...w);
+    if (Math.abs(l - lmax) <= 1e-6 * l) { lmax = l; break; }
+    lmax = l;
+    v = Float64Array.from(w);
+  }
+  let u = new Float64Array(nc).map((_, i) => (held.has(i) ? 0 : 1 - ((i * 104729) % 17) / 17));
+  let lminInv = 0;
+  for (let it = 0; it < 60; it++) {
+    normalize(u);
+    const z = env.solve(new Float64Array(nc), u);
+    const l = Math.hypot(...z);
+    if (Math.abs(l - lminInv) <= 1e-6 * l) { lminInv = l; break; }
+    lminInv = l;
+    u = z;
+  }
+  const lmin = lminInv > 0 ? 1 / lminInv : 0;
+  const sigmaMin = Math.sqrt(lmin);
+  const condition = rank === 0 ? Infinity : Math.sqrt(lmax / (lmin || Number.MIN_VALUE));
+  let sensitivity: number[][] | undefined;
+  if (drives.length) {
+    const colsD = new Map<number, number>();
+    for (let d = 0; d < drives.length; d++) colsD.set(drives[d], d);
+    const rhs = Array.from({ length: drives.length }, () => new Float64Array(nc));
+    // Jᵀ J_d per drive column
+    const jd = Array.from({ length: drives.length }, () => new Float64Array(3 * blockCount));
+    for (let b = 0; b < blockCount; b++)
+      for (let p = blockStart[b]; p < blockStart[b + 1]; p++) {
+        const d = colsD.get(slotCrease[p]);
+        if (d === undefined) continue;
+        for (let k = 0; k < 3; k++) jd[d][3 * b + k] += J[3 * p + k];
+      }
+    for (let b = 0; b < blockCount; b++)
+      for (let p = blockStart[b]; p < blockStart[b + 1]; p++) {
+        const a = colOf.get(slotCrease[p]);
+        if (a === undefined) continue;
+        for (let d = 0; d < drives.length; d++)
+          for (let k = 0; k < 3; k++) rhs[d][a] += J[3 * p + k] * jd[d][3 * b + k];
+      }
+    const sol = rhs.map((r) => env.solve(new Float64Array(nc), r));
+    sensitivity = Array.from({ length: nc }, (_, k) => Array.from({ length: drives.length }, (_, d) => -sol[d][k]));
+  }
+  return { columns: nc, rank, localDof: nc - rank, condition, sigmaMin, sensitivity, dependentColumns: zero, exact: false };
+}
+
+function normalize(v: Float64Array): void {
+  let s = 0;
+  for (const x of v) s += x * x;
+  const n = Math.sqrt(s) || 1;
+  for (let i = 0; i < v.length; i++) v[i] /= n;
+}
