@@ -172,7 +172,7 @@ function sparseAnalysis(problem: ClosureProblem, columns: ArrayLike<number>, dri
   const rank = nc - zero.length;
   // λ_max by power iteration on JᵀJ; λ_min by inverse iteration with the factor (held columns excluded)
   const held = new Set(zero);
-  let v = new Float64Array(nc).map((_, i) => (held.has(i) ? 0 : 1 + ((i * 7919) % 13) / 13));
+  let v: Float64Array = new Float64Array(nc).map((_, i) => (held.has(i) ? 0 : 1 + ((i * 7919) % 13) / 13));
   const w = new Float64Array(nc);
   let lmax = 0;
   for (let it = 0; it < 60; it++) {
@@ -184,7 +184,7 @@ function sparseAnalysis(problem: ClosureProblem, columns: ArrayLike<number>, dri
     lmax = l;
     v = Float64Array.from(w);
   }
-  let u = new Float64Array(nc).map((_, i) => (held.has(i) ? 0 : 1 - ((i * 104729) % 17) / 17));
+  let u: Float64Array = new Float64Array(nc).map((_, i) => (held.has(i) ? 0 : 1 - ((i * 104729) % 17) / 17));
   let lminInv = 0;
   for (let it = 0; it < 60; it++) {
     normalize(u);

@@ -25,6 +25,8 @@ export interface LsqOptions {
   /** stop once the largest residual is below this (default 1e-12: one more step after convergence) */
   polishTolerance?: number;
   constraints?: LinearConstraint[];
+  /** wrap the free angles to (−180°, 180°] at the end (default true); homotopies keep them unwrapped */
+  wrap?: boolean;
 }
 
 export type LsqStop = 'converged' | 'stalled' | 'max-iterations';
@@ -119,8 +121,7 @@ export class ClosureProblem {
           const c = this.unknownOf[slotCrease[q]];
           if (c < 0) continue;
           const v = px * J[3 * q] + py * J[3 * q + 1] + pz * J[3 * q + 2];
-          // slots p and q are different creases unless p === q; a crease appears once per vertex
-          env.add(a, c, q === p ? v : v);
+          env.add(a, c, v);
         }
       }
     }
@@ -236,9 +237,11 @@ export class ClosureProblem {
       if (!accepted) { stop = 'stalled'; break; }
     }
     if (measure <= polish) stop = 'converged';
-    for (let a = 0; a < n; a++) {
-      const c = this.unknownCreases[a];
-      x[c] = wrapAngle(x[c]);
+    if (opts.wrap ?? true) {
+      for (let a = 0; a < n; a++) {
+        const c = this.unknownCreases[a];
+        x[c] = wrapAngle(x[c]);
+      }
     }
     const maxResidual = this.evaluate(x, true);
     cv = constraintValues(x);

@@ -140,10 +140,11 @@ export function inverseLeftJacobian(out: Mat3, phi: Vec3): Mat3 {
   return out;
 }
 
-/** Wrap an angle to (−π, π]. */
+/** Wrap an angle to [−π, π]; ±π are kept as they are (a crease folded flat one way or the other). */
 export function wrapAngle(a: number): number {
+  if (a >= -Math.PI && a <= Math.PI) return a;
   let r = a % (2 * Math.PI);
-  if (r <= -Math.PI) r += 2 * Math.PI;
+  if (r < -Math.PI) r += 2 * Math.PI;
   else if (r > Math.PI) r -= 2 * Math.PI;
   return r;
 }
