@@ -26,6 +26,10 @@ export interface SolveOptions {
 }
 
 const DEDUPE_TOLERANCE = 1e-6;
+// At singular states (flat, folded flat) Newton reaches a residual of 1e-15 only within ~1e-7 rad of the
+// exact state (the residual grows with the square of the distance there), so signs are read with that margin.
+const SIGN_EPS = 1e-7;
+const FLAT_FOLDED_EPS = 1e-6;
 const DEG_PER_RAD = 180 / Math.PI;
 
 export function isMovable(pattern: Pattern, c: number): boolean {
@@ -44,16 +48,16 @@ function listLabels(pattern: Pattern, cs: number[], max = 8): string {
 
 export function signPattern(pattern: Pattern, angles: Float64Array): string {
   return pattern.creases
-    .map((c) => (c.assignment === 'B' ? '' : angles[c.index] > 1e-9 ? '+' : angles[c.index] < -1e-9 ? '-' : '0'))
+    .map((c) => (c.assignment === 'B' ? '' : angles[c.index] > SIGN_EPS ? '+' : angles[c.index] < -SIGN_EPS ? '-' : '0'))
     .join('');
 }
 
 export function matchesAssignment(pattern: Pattern, angles: Float64Array): boolean {
   for (const c of pattern.creases) {
     const a = angles[c.index];
-    if (Math.abs(a) >= Math.PI - 1e-9) continue; // folded flat: either side closes the same way
-    if (c.assignment === 'M' && a > 1e-9) return false;
-    if (c.assignment === 'V' && a < -1e-9) return false;
+    if (Math.abs(a) >= Math.PI - FLAT_FOLDED_EPS) continue; // folded flat: either side closes the same way
+    if (c.assignment === 'M' && a > SIGN_EPS) return false;
+    if (c.assignment === 'V' && a < -SIGN_EPS) return false;
   }
   return true;
 }
@@ -93,7 +97,8 @@ export function followRay(
       for (let c = 0; c < x.length; c++) if (problem.unknownOf[c] >= 0) guess[c] = (x[c] * tn) / t;
     }
     setDrives(guess, tn);
-    const r = problem.solve(guess, { maxStep: 0.25, maxIterations: 12, wrap: false });
+    // the end point may be singular (folded flat), where Newton converges only linearly: allow more steps there
+    const r = problem.solve(guess, { maxStep: 0.25, maxIterations: tn === 1 ? 80 : 12, wrap: false });
     if (r.converged) {
       prev = x;
       tPrev = t;
@@ -106,7 +111,9 @@ export function followRay(
       if (h < 1e-6) return { reached: t };
     }
   }
-  // wrap at the end only, so the path never jumps
+  // polish hard (a singular end point converges linearly), then wrap at the end only, so the path never jumps
+  const polished = problem.solve(last.angles, { polishTolerance: 1e-15, maxIterations: 60, wrap: false });
+  if (polished.converged) last = polished;
   const out = Float64Array.from(last.angles);
   for (let c = 0; c < out.length; c++) if (problem.unknownOf[c] >= 0) out[c] = wrapAngle(out[c]);
   return { result: { ...last, angles: out }, reached: 1 };
@@ -117,9 +124,10 @@ interface Found {
   maxResidual: number;
 }
 
-// Angles are in [−180°, 180°]; +180° and −180° are kept apart: the same rotation, folded flat from opposite sides.
+// +180° and −180° are the same hinge rotation: states that differ only there are one solution, and the
+// first found (reached along a branch from flat, so its signs are the limit of a real motion) is kept.
 function sameState(a: Float64Array, b: Float64Array): boolean {
-  for (let i = 0; i < a.length; i++) if (Math.abs(a[i] - b[i]) > DEDUPE_TOLERANCE) return false;
+  for (let i = 0; i < a.length; i++) if (Math.abs(wrapAngle(a[i] - b[i])) > DEDUPE_TOLERANCE) return false;
   return true;
 }
 
@@ -181,7 +189,12 @@ export function solveDrives(pattern: Pattern, drives: Drive[], options: SolveOpt
     if (!polished.converged) return;
     const angles = Float64Array.from(polished.angles);
     for (const c of free) angles[c] = wrapAngle(angles[c]);
-    if (found.some((f) => sameState(f.angles, angles))) return;
+    const twin = found.find((f) => sameState(f.angles, angles));
+    if (twin) {
+      // the same rotation state folded flat from the other side: prefer the sides the assignment asks for
+      if (!matchesAssignment(pattern, twin.angles) && matchesAssignment(pattern, angles)) twin.angles = angles;
+      return;
+    }
     found.push({ angles, maxResidual: polished.maxResidual });
   };
 

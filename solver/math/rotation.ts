@@ -143,6 +143,9 @@ export function inverseLeftJacobian(out: Mat3, phi: Vec3): Mat3 {
 /** Wrap an angle to [−π, π]; ±π are kept as they are (a crease folded flat one way or the other). */
 export function wrapAngle(a: number): number {
   if (a >= -Math.PI && a <= Math.PI) return a;
+  // a hair past ±π is the same side of folded flat, not the other side
+  if (a > Math.PI && a < Math.PI + 1e-9) return Math.PI;
+  if (a < -Math.PI && a > -Math.PI - 1e-9) return -Math.PI;
   let r = a % (2 * Math.PI);
   if (r < -Math.PI) r += 2 * Math.PI;
   else if (r > Math.PI) r -= 2 * Math.PI;

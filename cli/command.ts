@@ -1,0 +1,10 @@
+import type { Io } from './io';
+
+/** One subcommand of `hingeplan`. run() returns the exit status; it never throws for bad input. */
+export interface Command {
+  name: string;
+  summary: string;
+  /** full --help text */
+  help: string;
+  run(argv: string[], io: Io): Promise<number> | number;
+}
