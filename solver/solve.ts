@@ -23,6 +23,8 @@ export interface SolveOptions {
   maxSolutions?: number;
   /** skip the search for the pattern's own DOF (used by callers that know it) */
   patternDof?: number;
+  /** keep states beyond a hinge limit apart from the solutions (default true) */
+  respectLimits?: boolean;
 }
 
 const DEDUPE_TOLERANCE = 1e-6;
@@ -268,6 +270,7 @@ export function solveDrives(pattern: Pattern, drives: Drive[], options: SolveOpt
     };
   };
 
+  let excludedCache: Solution[] | undefined;
   const finish = (status: SolveStatus, dof: number, solutions: Solution[], extra: Partial<SolveReport> = {}): SolveReport => ({
     status,
     dof,
@@ -275,9 +278,30 @@ export function solveDrives(pattern: Pattern, drives: Drive[], options: SolveOpt
     solutions,
     messages,
     iterations,
+    ...(excludedCache?.length ? { excluded: excludedCache } : {}),
     ...extra,
   });
 
+  // solutions beyond a hinge limit are kept apart: reported, but not counted as solutions
+  const excluded: Found[] = [];
+  if (options.respectLimits ?? true) {
+    for (let i = found.length - 1; i >= 0; i--) {
+      if (limitViolations(pattern, found[i].angles).length) excluded.unshift(...found.splice(i, 1));
+    }
+  }
+  const excludedSolutions = () => excluded.map((f) => toSolution(f, analyze(f.angles).local));
+  excludedCache = excluded.length ? excludedSolutions() : undefined;
+  if (excluded.length) {
+    const v = limitViolations(pattern, excluded[0].angles);
+    messages.push({
+      severity: found.length ? 'info' : 'error',
+      code: 'outside-hinge-limits',
+      text: `${excluded.length} state(s) close the pattern but put a hinge past its limit (e.g. ${listLabels(pattern, v)}); they are listed apart.`,
+    });
+  }
+  if (found.length === 0 && excluded.length) {
+    return finish('unreachable', 0, [], { excluded: excludedSolutions() });
+  }
   if (found.length === 0) return classifyFailure();
 
   // order: matching the assignment first, then by sign pattern, then by angles
@@ -310,7 +334,8 @@ export function solveDrives(pattern: Pattern, drives: Drive[], options: SolveOpt
   const first = solutions[0].a;
   const nD = drives.length;
   const rankDrive = (a: { local: LocalAnalysis; all: LocalAnalysis }) => a.all.localDof - a.local.localDof;
-  const worstDependence = solutions.find((s) => rankDrive(s.a) < nD);
+  // a single drive that cannot move at a state is a family through it (handled below), not a dependence
+  const worstDependence = nD >= 2 ? solutions.find((s) => rankDrive(s.a) < nD) : undefined;
   if (worstDependence) {
     const dependent = dependentDrives(problem, worstDependence.sol.angles, drives, movable, free);
     if (nD > patternDof()) {
@@ -413,6 +438,18 @@ export function solveDrives(pattern: Pattern, drives: Drive[], options: SolveOpt
     });
     return finish('unreachable', 0, [], extra);
   }
+}
+
+/** Creases whose angle is outside their hinge limits. */
+export function limitViolations(pattern: Pattern, angles: Float64Array): number[] {
+  const out: number[] = [];
+  for (const c of pattern.creases) {
+    const l = c.limit;
+    if (!l) continue;
+    const a = angles[c.index];
+    if ((l.min !== undefined && a < l.min - 1e-9) || (l.max !== undefined && a > l.max + 1e-9)) out.push(c.index);
+  }
+  return out;
 }
 
 /** Drives whose value is implied by the other drives at this state. */

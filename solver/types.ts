@@ -149,6 +149,8 @@ export interface SolveReport {
   /** DOF of the pattern with no drives, at a generic folded state */
   patternDof: number;
   solutions: Solution[];
+  /** states that close the pattern but put some hinge past its limit */
+  excluded?: Solution[];
   /** for inconsistent/unreachable: the least-squares compromise */
   compromise?: Solution;
   /** underspecified: creases that would complete the specification */
