@@ -1,0 +1,107 @@
+// Each status of a partial specification, produced by a case built for it.
+import { describe, expect, it } from 'vitest';
+import { solveDrives } from '../solver/solve';
+import { directionsFromSectors, vertexPattern } from './support/vertex';
+import type { Pattern } from '../solver/types';
+
+const D = Math.PI / 180;
+
+function withLimits(p: Pattern, minDeg: number, maxDeg: number): Pattern {
+  for (const c of p.creases) c.limit = { min: minDeg * D, max: maxDeg * D };
+  return p;
+}
+
+/** The spherical four-bar's input limit: A cos ψ + B sin ψ = C has a real ψ only while C² ≤ A² + B²
+ * (a standard property of the input–output equation; McCarthy & Soh 2011, ch. 5). */
+function fourBarInputLimit(a: number[]): number {
+  const [a1, a2, a3, a4] = a;
+  const g = (rho0: number) => {
+    const w1 = [Math.cos(a1), Math.sin(a1) * Math.cos(rho0), Math.sin(a1) * Math.sin(rho0)];
+    const c2 = [Math.cos(a4 + a3), -Math.sin(a4 + a3)];
+    const c3 = [Math.cos(a4), -Math.sin(a4)];
+    const A = w1[0] * (c2[0] - Math.cos(a3) * c3[0]) + w1[1] * (c2[1] - Math.cos(a3) * c3[1]);
+    const B = w1[2] * Math.sin(a3);
+    const C = Math.cos(a2) - Math.cos(a3) * (w1[0] * c3[0] + w1[1] * c3[1]);
+    return A * A + B * B - C * C;
+  };
+  let lo = 0, hi = Math.PI;
+  for (let i = 0; i < 200; i++) {
+    const mid = (lo + hi) / 2;
+    if (g(mid) >= 0) lo = mid; else hi = mid;
+  }
+  return lo;
+}
+
+describe('specification statuses', () => {
+  it('solved: a hinge coupon with ±170° hinge stops and one zigzag drive has one state', () => {
+    const p = withLimits(vertexPattern(directionsFromSectors([70, 110, 110, 70])), -170, 170);
+    const r = solveDrives(p, [{ crease: 1, value: 60 * D }]);
+    expect(r.status).toBe('solved');
+    expect(r.solutions).toHaveLength(1);
+    expect(r.dof).toBe(0);
+    expect(r.excluded?.length).toBe(1); // the state folded flat along the straight crease line
+    expect(r.messages.some((m) => m.code === 'outside-hinge-limits')).toBe(true);
+  });
+
+  it('several solutions: a flat-foldable degree-4 vertex driven on one crease has two modes', () => {
+    const r = solveDrives(vertexPattern(directionsFromSectors([60, 100, 120, 80])), [{ crease: 0, value: 60 * D }]);
+    expect(r.status).toBe('several-solutions');
+    expect(r.solutions).toHaveLength(2);
+  });
+
+  it('underspecified: a degree-5 vertex with one drive leaves one DOF and names a crease to drive', () => {
+    const r = solveDrives(vertexPattern(directionsFromSectors([60, 70, 80, 70, 80])), [{ crease: 0, value: 50 * D }]);
+    expect(r.status).toBe('underspecified');
+    expect(r.dof).toBe(1);
+    expect(r.patternDof).toBe(2);
+    expect(r.suggestedDrives?.length).toBe(1);
+    // the suggestion really completes the specification
+    const sol = r.solutions[0];
+    const c = r.suggestedDrives![0];
+    const again = solveDrives(vertexPattern(directionsFromSectors([60, 70, 80, 70, 80])), [
+      { crease: 0, value: 50 * D },
+      { crease: c, value: sol.angles[c] },
+    ]);
+    expect(['solved', 'several-solutions']).toContain(again.status);
+  });
+
+  it('overspecified but consistent: both crease angles of one mode given', () => {
+    const p = vertexPattern(directionsFromSectors([60, 100, 120, 80]));
+    const one = solveDrives(p, [{ crease: 0, value: 60 * D }]);
+    const rho1 = one.solutions[0].angles[1];
+    const r = solveDrives(p, [{ crease: 0, value: 60 * D }, { crease: 1, value: rho1 }]);
+    expect(r.status).toBe('overspecified');
+    expect(r.solutions).toHaveLength(1);
+    expect(r.solutions[0].maxResidual).toBeLessThanOrEqual(1e-10);
+  });
+
+  it('inconsistent: two drives that no mode allows together, with the compromise and the conflict', () => {
+    const r = solveDrives(vertexPattern(directionsFromSectors([60, 100, 120, 80])), [{ crease: 0, value: 50 * D }, { crease: 1, value: 20 * D }]);
+    expect(r.status).toBe('inconsistent');
+    expect(r.solutions).toHaveLength(0);
+    expect(r.compromise).toBeDefined();
+    expect(r.compromise!.maxResidual).toBeGreaterThan(1e-3);
+    expect(r.compromise!.vertexResiduals).toHaveLength(1);
+    expect(new Set(r.conflictingDrives)).toEqual(new Set([0, 1]));
+  });
+
+  it('unreachable: a drive past the four-bar limit of a generic vertex, with the reachable range', () => {
+    const sectors = [50, 150, 60, 100];
+    const p = vertexPattern(directionsFromSectors(sectors));
+    const limit = fourBarInputLimit(sectors.map((s) => s * D));
+    const r = solveDrives(p, [{ crease: 0, value: 100 * D }]);
+    expect(r.status).toBe('unreachable');
+    expect(r.reachableRange).toHaveLength(1);
+    const [lo, hi] = r.reachableRange![0];
+    expect(Math.abs(hi - limit) / D).toBeLessThan(1e-3);
+    expect(Math.abs(lo + limit) / D).toBeLessThan(1e-3);
+    // just inside the limit it solves
+    expect(solveDrives(p, [{ crease: 0, value: limit - 0.01 * D }]).solutions.length).toBeGreaterThan(0);
+  });
+
+  it('not isolated: a zigzag drive held at 0 lets the straight crease line fold freely', () => {
+    const r = solveDrives(vertexPattern(directionsFromSectors([70, 110, 110, 70])), [{ crease: 1, value: 0 }]);
+    expect(r.status).toBe('not-isolated');
+    expect(r.dof).toBe(1);
+  });
+});
