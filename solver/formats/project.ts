@@ -1,0 +1,320 @@
+// The Hingeplan project file: versioned JSON described by schema/project.schema.json (degrees in the
+// file, radians inside). Also loadPatternText, the one entry point the shells use for any pattern file.
+//
+// Limits (see ./limits.ts): at most MAX_TEXT_BYTES (32 MiB) of text, MAX_VERTICES (250,000) vertices
+// and MAX_CREASES (250,000) creases; more is refused before any other work is done.
+import Ajv2020Module from 'ajv/dist/2020.js';
+import type { ErrorObject, ValidateFunction } from 'ajv';
+import schema from '../../schema/project.schema.json' with { type: 'json' };
+import type { Assignment, Drive, HingeLimit, Message, Pattern, PatternSource, Where } from '../types';
+import { buildPattern } from '../pattern';
+import { resolveDrives, type DriveSpec } from '../drives';
+import { MAX_CREASES, MAX_TEXT_BYTES, MAX_VERTICES, readJsonText } from './limits';
+import { parseFoldValue } from './fold';
+
+export { MAX_CREASES, MAX_TEXT_BYTES, MAX_VERTICES };
+
+export const PROJECT_FORMAT = 'hingeplan-project';
+export const PROJECT_VERSION = 1;
+
+/** A pattern with what a person adds to it: drives, units, notes; plus what a FOLD file carried. */
+export interface Project {
+  source: PatternSource;
+  /** degrees, as in the file */
+  drives: DriveSpec[];
+  units?: string;
+  notes?: string;
+  /** a folded state to start from: one fold angle per crease, radians, valley positive; not drives */
+  foldAngles?: number[];
+  /** what a FOLD file carried that the project does not use, so it can be written back */
+  fold?: {
+    /** top-level keys this program does not read, untouched, in file order */
+    extra: Record<string, unknown>;
+    /** the common z of 3D vertex coordinates, when the file gave them */
+    z?: number;
+  };
+}
+
+export interface ParseResult {
+  project?: Project;
+  messages: Message[];
+}
+
+const DEG = 180 / Math.PI;
+const RAD = Math.PI / 180;
+/** Degrees as written: 15 significant digits drop the last-bit noise of the radian round trip. */
+export const toDegrees = (rad: number) => +(rad * DEG).toPrecision(15);
+export const toRadians = (deg: number) => deg * RAD;
+
+const MAX_SCHEMA_MESSAGES = 40;
+
+// ajv ships CommonJS; under ESM its class is the default export's `default`.
+type AjvClass = new (opts: object) => { compile(schema: object): ValidateFunction };
+let validator: ValidateFunction | undefined;
+function validate(): ValidateFunction {
+  if (!validator) {
+    const mod = Ajv2020Module as unknown as { default?: AjvClass } & AjvClass;
+    const Ajv = (mod.default ?? mod) as AjvClass;
+    validator = new Ajv({ allErrors: true, strict: true }).compile(schema as object);
+  }
+  return validator;
+}
+
+/** `/creases/12/assignment` → `creases[12].assignment` */
+export function jsonPath(pointer: string): string {
+  let out = '';
+  for (const raw of pointer.split('/').slice(1)) {
+    const part = raw.replace(/~1/g, '/').replace(/~0/g, '~');
+    if (/^\d+$/.test(part)) out += `[${part}]`;
+    else out += out === '' ? part : `.${part}`;
+  }
+  return out;
+}
+
+function valueAt(root: unknown, pointer: string): unknown {
+  let v: unknown = root;
+  for (const raw of pointer.split('/').slice(1)) {
+    if (v === null || typeof v !== 'object') return undefined;
+    v = (v as Record<string, unknown>)[raw.replace(/~1/g, '/').replace(/~0/g, '~')];
+  }
+  return v;
+}
+
+function whereOf(pointer: string, field: string): Where {
+  const w: Where = { field };
+  const m = /^\/(vertices|creases|faces)\/(\d+)/.exec(pointer);
+  if (m) {
+    const k = Number(m[2]);
+    if (m[1] === 'vertices') w.vertex = k;
+    else if (m[1] === 'creases') w.crease = k;
+    else w.panel = k;
+  }
+  return w;
+}
+
+function schemaMessage(e: ErrorObject, root: unknown): Message {
+  const pointer = e.instancePath;
+  const path = jsonPath(pointer);
+  const at = path === '' ? 'The project' : path;
+  const where = whereOf(pointer, path || '(top level)');
+  const value = valueAt(root, pointer);
+  const shown = (() => {
+    const s = JSON.stringify(value);
+    return s === undefined ? String(value) : s.length > 40 ? s.slice(0, 40) + '…' : s;
+  })();
+  const params = e.params as Record<string, unknown>;
+  const err = (code: string, text: string): Message => ({ severity: 'error', code, text, where });
+  switch (e.keyword) {
+    case 'required': {
+      const p = String(params.missingProperty);
+      return { severity: 'error', code: 'missing-field', text: `${at} has no "${p}" field, which is required.`, where: { ...where, field: path ? `${path}.${p}` : p } };
+    }
+    case 'additionalProperties':
+      return err('unknown-field', `${at} has a field "${String(params.additionalProperty)}" that this format does not have (a misspelling?).`);
+    case 'type':
+      if (typeof value === 'number' && !Number.isFinite(value)) {
+        return err(/^\/vertices\//.test(pointer) ? 'vertex-not-finite' : 'not-finite', `${at} is not a finite number.`);
+      }
+      return err('wrong-type', `${at} should be ${params.type === 'integer' ? 'an integer' : `a ${String(params.type)}`}, not ${shown}.`);
+    case 'enum':
+      if (/^\/creases\/\d+\/assignment$/.test(pointer)) {
+        return err('bad-assignment', `${at} is ${shown}; expected one of M (mountain), V (valley), U (unassigned), F (flat) or B (boundary).`);
+      }
+      return err('bad-value', `${at} is ${shown}; expected one of ${(params.allowedValues as unknown[]).map((v) => JSON.stringify(v)).join(', ')}.`);
+    case 'minimum':
+    case 'maximum':
+      if (/limits\/(min|max)$/.test(pointer) || /^\/foldAngles\//.test(pointer)) {
+        return err(/^\/foldAngles\//.test(pointer) ? 'fold-angle-out-of-range' : 'limit-out-of-range', `${at} is ${shown}°, outside −180° … 180°.`);
+      }
+      return err('bad-value', `${at} is ${shown}; it must be ${e.keyword === 'minimum' ? 'at least' : 'at most'} ${String(params.limit)}.`);
+    case 'minItems':
+    case 'maxItems':
+      return err('wrong-length', `${at} has ${Array.isArray(value) ? value.length : '?'} entries; it must have ${e.keyword === 'minItems' ? 'at least' : 'at most'} ${String(params.limit)}.`);
+    case 'minLength':
+      return err(/label$/.test(pointer) ? 'bad-label' : 'bad-value', `${at} is empty.`);
+    default:
+      return err('bad-value', `${at} ${e.message ?? 'is not valid'}.`);
+  }
+}
+
+/** Read a project file. Never throws; refused files give messages with the JSON path at fault. */
+export function parseProject(text: string): ParseResult {
+  const read = readJsonText(text, 'project file');
+  if (read.value === undefined) return { messages: read.messages };
+  return parseProjectValue(read.value);
+}
+
+function kindOf(v: unknown): string {
+  return v === null ? 'null' : Array.isArray(v) ? 'an array' : typeof v === 'object' ? 'an object' : `a ${typeof v}`;
+}
+
+export function parseProjectValue(value: unknown): ParseResult {
+  if (value === null || typeof value !== 'object' || Array.isArray(value)) {
+    return { messages: [{ severity: 'error', code: 'not-a-project', text: `The file holds ${kindOf(value)}, not a Hingeplan project (a JSON object).` }] };
+  }
+  const obj = value as Record<string, unknown>;
+  if (obj.format !== PROJECT_FORMAT) {
+    const hint = 'vertices_coords' in obj ? ' It looks like a FOLD file: open it as .fold.' : '';
+    const text =
+      obj.format === undefined
+        ? `The file has no "format" field, so it is not a Hingeplan project file.${hint}`
+        : `The file's format is ${JSON.stringify(obj.format)}, not "${PROJECT_FORMAT}".${hint}`;
+    return { messages: [{ severity: 'error', code: 'wrong-format', text, where: { field: 'format' } }] };
+  }
+  if (obj.version !== PROJECT_VERSION) {
+    const v = obj.version;
+    const text =
+      typeof v === 'number' && Number.isInteger(v) && v > PROJECT_VERSION
+        ? `The project file is version ${v}, made by a newer Hingeplan; this one reads version ${PROJECT_VERSION}.`
+        : `The project file's version is ${JSON.stringify(v) ?? 'missing'}; this program reads version ${PROJECT_VERSION}.`;
+    return { messages: [{ severity: 'error', code: 'unsupported-version', text, where: { field: 'version' } }] };
+  }
+  const counts: Message[] = [];
+  if (Array.isArray(obj.vertices) && obj.vertices.length > MAX_VERTICES) {
+    counts.push({ severity: 'error', code: 'too-many-vertices', text: `The file has ${obj.vertices.length} vertices; at most ${MAX_VERTICES} are accepted.`, where: { field: 'vertices' } });
+  }
+  if (Array.isArray(obj.creases) && obj.creases.length > MAX_CREASES) {
+    counts.push({ severity: 'error', code: 'too-many-creases', text: `The file has ${obj.creases.length} creases; at most ${MAX_CREASES} are accepted.`, where: { field: 'creases' } });
+  }
+  if (counts.length) return { messages: counts };
+
+  const check = validate();
+  if (!check(value)) {
+    const errors = check.errors ?? [];
+    const messages = errors.slice(0, MAX_SCHEMA_MESSAGES).map((e) => schemaMessage(e, value));
+    if (errors.length > MAX_SCHEMA_MESSAGES) {
+      messages.push({ severity: 'error', code: 'schema-violation', text: `… and ${errors.length - MAX_SCHEMA_MESSAGES} more problems in the file.` });
+    }
+    return { messages };
+  }
+
+  type FileCrease = { vertices: [number, number]; assignment: Assignment; label?: string; limits?: { min?: number; max?: number } };
+  const creases = obj.creases as FileCrease[];
+  const limits: (HingeLimit | undefined)[] = creases.map((c) => {
+    if (!c.limits) return undefined;
+    const l: HingeLimit = {};
+    if (c.limits.min !== undefined) l.min = toRadians(c.limits.min);
+    if (c.limits.max !== undefined) l.max = toRadians(c.limits.max);
+    return l;
+  });
+  const source: PatternSource = {
+    name: obj.name as string,
+    vertices: (obj.vertices as [number, number][]).map(([x, y]) => [x, y]),
+    edges: creases.map((c) => [c.vertices[0], c.vertices[1]]),
+    assignments: creases.map((c) => c.assignment),
+    labels: creases.map((c) => c.label),
+    limits,
+  };
+  if (obj.faces !== undefined) source.faces = (obj.faces as number[][]).map((f) => f.slice());
+  if (obj.basePanel !== undefined) source.basePanel = obj.basePanel as number;
+  const drives: DriveSpec[] = ((obj.drives as { crease: string; angle: number }[] | undefined) ?? []).map((d, k) => ({
+    crease: d.crease,
+    angleDeg: d.angle,
+    field: `drives[${k}]`,
+  }));
+  const project: Project = { source, drives };
+  if (typeof obj.units === 'string') project.units = obj.units;
+  if (typeof obj.notes === 'string') project.notes = obj.notes;
+  if (obj.foldAngles !== undefined) {
+    const fa = obj.foldAngles as number[];
+    if (fa.length !== creases.length) {
+      return {
+        messages: [
+          { severity: 'error', code: 'wrong-length', text: `foldAngles has ${fa.length} entries but there are ${creases.length} creases; give one angle per crease.`, where: { field: 'foldAngles' } },
+        ],
+      };
+    }
+    project.foldAngles = fa.map(toRadians);
+  }
+  return { project, messages: [] };
+}
+
+// ---------------------------------------------------------------------------------------------------
+// Writing: stable key order, one vertex / crease / face / drive per line so diffs stay readable.
+
+const j = (v: unknown) => JSON.stringify(v);
+
+/** Lines of a JSON array, one compact entry per line, indented under a top-level key. */
+export function arrayLines(items: unknown[]): string {
+  if (items.length === 0) return '[]';
+  return '[\n' + items.map((it) => '    ' + j(it)).join(',\n') + '\n  ]';
+}
+
+export function writeProject(project: Project): string {
+  const src = project.source;
+  const entries: [string, string][] = [
+    ['format', j(PROJECT_FORMAT)],
+    ['version', j(PROJECT_VERSION)],
+    ['name', j(src.name)],
+  ];
+  if (project.units !== undefined) entries.push(['units', j(project.units)]);
+  if (project.notes !== undefined) entries.push(['notes', j(project.notes)]);
+  entries.push(['vertices', arrayLines(src.vertices.map(([x, y]) => [x, y]))]);
+  const creases = src.edges.map((e, k) => {
+    const c: Record<string, unknown> = { vertices: [e[0], e[1]], assignment: src.assignments[k] };
+    const label = src.labels[k];
+    if (label !== undefined) c.label = label;
+    const lim = src.limits[k];
+    if (lim && (lim.min !== undefined || lim.max !== undefined)) {
+      const l: Record<string, number> = {};
+      if (lim.min !== undefined) l.min = toDegrees(lim.min);
+      if (lim.max !== undefined) l.max = toDegrees(lim.max);
+      c.limits = l;
+    }
+    return c;
+  });
+  entries.push(['creases', arrayLines(creases)]);
+  if (src.faces !== undefined) entries.push(['faces', arrayLines(src.faces)]);
+  if (src.basePanel !== undefined) entries.push(['basePanel', j(src.basePanel)]);
+  if (project.drives.length > 0) entries.push(['drives', arrayLines(project.drives.map((d) => ({ crease: d.crease, angle: d.angleDeg })))]);
+  if (project.foldAngles !== undefined) entries.push(['foldAngles', j(project.foldAngles.map(toDegrees))]);
+  return '{\n' + entries.map(([k, v]) => `  ${j(k)}: ${v}`).join(',\n') + '\n}\n';
+}
+
+// ---------------------------------------------------------------------------------------------------
+
+export interface LoadResult {
+  /** which reader took the file */
+  format?: 'project' | 'fold';
+  project?: Project;
+  /** present when the pattern built without errors (drive errors do not remove it) */
+  pattern?: Pattern;
+  /** the project's drives that passed the checks, resolved to crease indices and radians */
+  drives?: Drive[];
+  messages: Message[];
+}
+
+/**
+ * Read any pattern file the program knows (a project or FOLD, told apart by the `.fold` extension or a
+ * `vertices_coords` key), build the pattern and check the drives. Never throws.
+ */
+export function loadPatternText(text: string, fileName?: string): LoadResult {
+  const read = readJsonText(text, 'file');
+  if (read.value === undefined) return { messages: read.messages };
+  const value = read.value;
+  const obj = value !== null && typeof value === 'object' && !Array.isArray(value) ? (value as Record<string, unknown>) : undefined;
+  const isFold =
+    !!obj && obj.format !== PROJECT_FORMAT && ((typeof fileName === 'string' && /\.fold$/i.test(fileName)) || 'vertices_coords' in obj);
+  const format = isFold ? 'fold' : 'project';
+  const parsed = isFold ? parseFoldValue(value, fileName) : parseProjectValue(value);
+  const messages = [...read.messages, ...parsed.messages];
+  if (!parsed.project) return { format, messages };
+  const project = parsed.project;
+  const built = buildPattern(project.source);
+  messages.push(...built.messages.map((m) => withField(m, format, project.source.faces !== undefined)));
+  if (!built.pattern) return { format, project, messages };
+  const resolved = resolveDrives(built.pattern, project.drives);
+  messages.push(...resolved.messages);
+  return { format, project, pattern: built.pattern, drives: resolved.drives, messages };
+}
+
+/** Point a pattern message at the place in the file, in that file's own field names. */
+function withField(m: Message, format: 'project' | 'fold', hasFaces: boolean): Message {
+  const w = m.where;
+  if (!w || w.field !== undefined) return m;
+  let field: string | undefined;
+  if (w.crease !== undefined) field = format === 'fold' ? `edges_vertices[${w.crease}]` : `creases[${w.crease}]`;
+  else if (w.panel !== undefined && hasFaces) field = format === 'fold' ? `faces_vertices[${w.panel}]` : `faces[${w.panel}]`;
+  else if (w.vertex !== undefined) field = format === 'fold' ? `vertices_coords[${w.vertex}]` : `vertices[${w.vertex}]`;
+  return field === undefined ? m : { ...m, where: { ...w, field } };
+}
