@@ -1,0 +1,71 @@
+// Writes the sample patterns in samples/, each as a Hingeplan project and as FOLD.
+// Run: npx tsx scripts/make-samples.ts   (commit the outputs; tests load every sample)
+import { writeFileSync, mkdirSync } from 'node:fs';
+import { dirname, join } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { degree5, miura, singleVertex, waterbomb, type GeneratorResult } from '../solver/generators';
+import { writeProject, type Project } from '../solver/formats/project';
+import { writeFold } from '../solver/formats/fold';
+import { CAUTIONS } from '../solver/formats/cautions';
+
+const here = dirname(fileURLToPath(import.meta.url));
+const outDir = join(here, '..', 'samples');
+
+function take(name: string, r: GeneratorResult): Project {
+  if (!r.project) throw new Error(`${name}: ${r.messages.map((m) => m.text).join('; ')}`);
+  return r.project;
+}
+
+const RAD = Math.PI / 180;
+const samples: [string, Project][] = [];
+
+{
+  // 60/100/120/80: Kawasaki holds (60 + 120 = 100 + 80 = 180), no mirror symmetry, so the two modes differ
+  const p = take('hinge-coupon', singleVertex({ sectorsDeg: [60, 100, 120, 80], radius: 50, driveDeg: 45, name: 'hinge test coupon' }));
+  p.units = 'mm';
+  p.source.limits[0] = { min: 0, max: 170 * RAD }; // the driven valley hinge has stops at 0° and 170°
+  p.notes =
+    'Hinge test coupon: one flat-foldable degree-4 vertex, sectors 60/100/120/80 degrees (c0 along +x, ccw). ' +
+    'One degree of freedom: the drive on the valley c0 fixes the state; the mountain/valley assignment (c0 V; c1, c2, c3 M) ' +
+    'picks the branch in which c1 and c3 fold equally. c0 has hinge stops at 0 and 170 degrees. ' +
+    CAUTIONS;
+  samples.push(['hinge-coupon', p]);
+}
+{
+  const p = take('sunshade-panel', miura({ rows: 4, cols: 6, a: 40, b: 30, alphaDeg: 70, driveDeg: 60, name: 'sunshade panel' }));
+  p.units = 'mm';
+  p.notes =
+    'Sunshade panel: Miura-ori, 4 x 6 unit cells of 2 x 2 panels, straight segments a = 40 mm, zigzag segments b = 30 mm, ' +
+    'alpha = 70 degrees. Labels: s{i}_{j} straight segment from vertex (i, j) to (i+1, j); z{i}_{j} zigzag segment from (i, j) to (i, j+1). ' +
+    'One degree of freedom once folded: one zigzag drive (z6_4, valley, 60 degrees) fixes it; at the flat state itself the sheet can also leave ' +
+    'along single straight crease lines, so the solver may list several solutions: pick the one that matches the assignment. ' +
+    CAUTIONS;
+  samples.push(['sunshade-panel', p]);
+}
+{
+  const p = take('two-motor-rig', degree5({ radius: 60, name: 'two-motor rig' }));
+  p.units = 'mm';
+  p.notes =
+    'Two-motor rig: a generic degree-5 vertex, sectors 70/80/65/75/70 degrees, all creases unassigned. Two degrees of freedom (5 - 3): ' +
+    'two motors drive c0 (40 degrees) and c2 (-30 degrees); the vertex then has two assembly branches for these values and the solver lists both. ' +
+    CAUTIONS;
+  samples.push(['two-motor-rig', p]);
+}
+{
+  const p = take('gripper-cell', waterbomb({ size: 80, name: 'gripper cell' }));
+  p.units = 'mm';
+  p.notes =
+    'Gripper cell: the waterbomb base on an 80 mm square. Diagonals d0-d3 are valleys, the x midline (m0, m2) mountains, the y midline ' +
+    '(m1, m3) is flat (F) as in the flat-folded base (4 V + 2 M). Three degrees of freedom (six hinges - 3): three drives are needed to fix ' +
+    'the state; this file drives d0, d1 and d2 to 60 degrees (the symmetric closing). With fewer drives the solver reports the state as ' +
+    'underspecified and suggests creases to drive. ' +
+    CAUTIONS;
+  samples.push(['gripper-cell', p]);
+}
+
+mkdirSync(outDir, { recursive: true });
+for (const [name, project] of samples) {
+  writeFileSync(join(outDir, `${name}.hingeplan.json`), writeProject(project));
+  writeFileSync(join(outDir, `${name}.fold`), writeFold(project));
+  console.log(`wrote samples/${name}.hingeplan.json and samples/${name}.fold`);
+}
