@@ -829,7 +829,7 @@ function chooseBasePanel(requested: unknown, panels: Panel[], xy: Float64Array, 
   for (const p of panels) {
     const d = Math.hypot(p.centroid[0] - mx, p.centroid[1] - my);
     // ties within rounding go to the lowest index
-    if (d < bestD - 1e-12 * (Math.abs(mx) + Math.abs(my) + bestD)) {
+    if (bestD === Infinity || d < bestD - 1e-12 * (Math.abs(mx) + Math.abs(my) + bestD)) {
       best = p.index;
       bestD = d;
     }
