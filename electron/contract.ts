@@ -1,0 +1,480 @@
+// The one contract for everything that crosses a process boundary: channel names, request and response
+// schemas, and the TypeScript types derived from them. Imported by the main process, the preload, the
+// e2e harness and the renderer, so the two sides can never disagree on a shape. Angles are degrees here
+// (the interface's unit); the worker converts to the solver's radians.
+
+import { z } from 'zod';
+
+// ---------- shared pieces ----------
+
+const finite = z.number();
+/** A condition number, residual or rate that may be infinite crosses as null (JSON and zod have no ∞). */
+const maybeInfinite = z.number().nullable();
+
+export const AssignmentSchema = z.enum(['M', 'V', 'U', 'F', 'B']);
+
+/** Files may carry null where we use undefined; both mean "not given". */
+const optionalString = z
+  .union([z.string().max(10_000), z.null(), z.undefined()])
+  .transform((v) => v ?? undefined);
+
+export const HingeLimitSchema = z.object({
+  /** radians, as in the project file's source block */
+  min: finite.optional(),
+  max: finite.optional(),
+});
+
+const optionalLimit = z.union([HingeLimitSchema, z.null(), z.undefined()]).transform((v) => v ?? undefined);
+
+const MAX_VERTICES = 400_000;
+const MAX_EDGES = 800_000;
+
+export const PatternSourceSchema = z.object({
+  name: z.string().max(500),
+  vertices: z.array(z.tuple([finite, finite])).max(MAX_VERTICES),
+  edges: z.array(z.tuple([z.number().int().nonnegative(), z.number().int().nonnegative()])).max(MAX_EDGES),
+  assignments: z.array(AssignmentSchema).max(MAX_EDGES),
+  labels: z.array(optionalString).max(MAX_EDGES),
+  limits: z.array(optionalLimit).max(MAX_EDGES),
+  faces: z.array(z.array(z.number().int().nonnegative())).max(MAX_EDGES).optional(),
+  basePanel: z.number().int().nonnegative().optional(),
+});
+export type PatternSourceDto = z.output<typeof PatternSourceSchema>;
+
+/** A drive as a person states it; the range is the solver's to check (it names the drive in its message). */
+export const DriveSpecSchema = z.object({ crease: z.string().min(1).max(10_000), angleDeg: finite });
+export type DriveSpec = z.output<typeof DriveSpecSchema>;
+
+export const ProjectSchema = z.object({
+  source: PatternSourceSchema,
+  drives: z.array(DriveSpecSchema).max(10_000),
+  units: z.string().max(50).optional(),
+  notes: z.string().max(1_000_000).optional(),
+  /** a folded state to start from, radians per crease (from a FOLD file's fold angles) */
+  foldAngles: z.array(finite).optional(),
+  /** what a FOLD file carried that the project does not use, kept to be written back */
+  fold: z.object({ extra: z.record(z.string(), z.unknown()), z: finite.optional() }).optional(),
+});
+export type ProjectDto = z.output<typeof ProjectSchema>;
+
+export const WhereSchema = z.object({
+  field: z.string().optional(),
+  vertex: z.number().int().optional(),
+  crease: z.number().int().optional(),
+  creaseLabel: z.string().optional(),
+  panel: z.number().int().optional(),
+  hole: z.number().int().optional(),
+  line: z.number().int().optional(),
+});
+
+export const MessageSchema = z.object({
+  severity: z.enum(['error', 'warning', 'info']),
+  code: z.string(),
+  text: z.string(),
+  where: WhereSchema.optional(),
+});
+export type MessageDto = z.output<typeof MessageSchema>;
+
+/** Errors that cross the boundary are values: a code, a message a person understands, and where. */
+export const IpcErrorSchema = z.object({
+  code: z.string(),
+  message: z.string(),
+  where: z.string().optional(),
+});
+export type IpcError = z.output<typeof IpcErrorSchema>;
+
+// ---------- documents ----------
+
+export const DocumentFormatSchema = z.enum(['project', 'fold']);
+
+export const OpenedDocumentSchema = z.object({
+  project: ProjectSchema,
+  /** null for a new or built-in document: saving asks where */
+  filePath: z.string().nullable(),
+  fileName: z.string(),
+  format: DocumentFormatSchema,
+  messages: z.array(MessageSchema),
+  /** the document came from a recovery copy and has not been saved yet */
+  recovered: z.boolean().optional(),
+  /** compute the path of the single drive right after opening (the built-in sample does) */
+  computePath: z.boolean().optional(),
+});
+export type OpenedDocument = z.output<typeof OpenedDocumentSchema>;
+
+export const OpenResultSchema = z.discriminatedUnion('status', [
+  z.object({ status: z.literal('opened'), document: OpenedDocumentSchema }),
+  z.object({ status: z.literal('canceled') }),
+  /** the file was read but the readers found problems; the messages say what and where */
+  z.object({ status: z.literal('failed'), fileName: z.string(), messages: z.array(MessageSchema) }),
+]);
+export type OpenResult = z.output<typeof OpenResultSchema>;
+
+export const WriteResultSchema = z.discriminatedUnion('status', [
+  z.object({ status: z.literal('saved'), filePath: z.string(), fileName: z.string() }),
+  z.object({ status: z.literal('canceled') }),
+  z.object({ status: z.literal('failed'), message: z.string() }),
+]);
+export type WriteResult = z.output<typeof WriteResultSchema>;
+
+export const GeneratorKindSchema = z.enum(['single-vertex', 'miura', 'waterbomb', 'degree5']);
+export type GeneratorKind = z.output<typeof GeneratorKindSchema>;
+
+const sectorList = z.array(finite.positive().max(360)).min(3).max(64);
+const optionalName = z.string().max(200).optional();
+
+/** The `new` kinds and their parameters (lengths in the document's unit, angles in degrees). */
+export const GeneratorSpecSchema = z.discriminatedUnion('kind', [
+  z.object({
+    kind: z.literal('single-vertex'),
+    sectorsDeg: sectorList,
+    radius: finite.positive().optional(),
+    driveDeg: finite.min(-180).max(180).optional(),
+    name: optionalName,
+  }),
+  z.object({
+    kind: z.literal('miura'),
+    rows: z.number().int().positive().max(1000),
+    cols: z.number().int().positive().max(1000),
+    a: finite.positive(),
+    b: finite.positive(),
+    alphaDeg: finite.positive().max(90),
+    driveDeg: finite.min(-180).max(180).optional(),
+    name: optionalName,
+  }),
+  z.object({ kind: z.literal('waterbomb'), size: finite.positive().optional(), allMidlines: z.boolean().optional(), name: optionalName }),
+  z.object({ kind: z.literal('degree5'), sectorsDeg: sectorList.optional(), radius: finite.positive().optional(), name: optionalName }),
+]);
+export type GeneratorSpec = z.input<typeof GeneratorSpecSchema>;
+
+export const RecoveryEntrySchema = z.object({
+  id: z.string().regex(/^[A-Za-z0-9_-]{1,80}$/),
+  documentName: z.string(),
+  savedAt: z.string(),
+  originalPath: z.string().nullable(),
+});
+export type RecoveryEntry = z.output<typeof RecoveryEntrySchema>;
+
+export const RecentFileSchema = z.object({ path: z.string(), name: z.string() });
+
+// ---------- solver results ----------
+
+export const SolveStatusSchema = z.enum([
+  'solved',
+  'several-solutions',
+  'underspecified',
+  'overspecified',
+  'inconsistent',
+  'dependent-drives',
+  'unreachable',
+  'not-isolated',
+  'invalid',
+]);
+export type SolveStatusDto = z.output<typeof SolveStatusSchema>;
+
+export const SolutionSchema = z.object({
+  /** fold angle per crease, degrees, indexed by crease index */
+  anglesDeg: z.array(finite),
+  /** largest closure residual, radians */
+  maxResidual: finite,
+  vertexResiduals: z.array(finite),
+  matchesAssignment: z.boolean(),
+  localDof: z.number().int(),
+  condition: maybeInfinite,
+  signs: z.string(),
+  /** d(crease)/d(drive) in degrees per degree: [crease index, drive crease index, value] */
+  sensitivity: z.array(z.tuple([z.number().int(), z.number().int(), finite])),
+});
+export type SolutionDto = z.output<typeof SolutionSchema>;
+
+export const SolveResultSchema = z.object({
+  status: SolveStatusSchema,
+  dof: z.number().int(),
+  patternDof: z.number().int(),
+  solutions: z.array(SolutionSchema),
+  compromise: SolutionSchema.optional(),
+  /** labels of creases that would complete an underspecified set of drives */
+  suggestedDrives: z.array(z.string()).optional(),
+  conflictingDrives: z.array(z.string()).optional(),
+  reachableRangeDeg: z.array(z.tuple([finite, finite])).optional(),
+  /** interior vertices with the largest residual of the compromise: [pattern vertex, residual rad] */
+  worstVertices: z.array(z.tuple([z.number().int(), finite])).optional(),
+  messages: z.array(MessageSchema),
+  iterations: z.number().int(),
+});
+export type SolveResultDto = z.output<typeof SolveResultSchema>;
+
+export const BranchSchema = z.object({
+  id: z.string(),
+  name: z.string(),
+  group: z.string(),
+  matchesAssignment: z.boolean(),
+  /** unit tangent per crease */
+  tangent: z.array(finite),
+});
+export type BranchDto = z.output<typeof BranchSchema>;
+
+export const BranchesResultSchema = z.object({ branches: z.array(BranchSchema), messages: z.array(MessageSchema) });
+export type BranchesResultDto = z.output<typeof BranchesResultSchema>;
+
+export const PathEventTypeSchema = z.enum(['turning-point', 'branch-point', 'hinge-limit', 'folded-flat', 'corrector-failed']);
+
+export const PathSampleSchema = z.object({
+  driveDeg: finite,
+  anglesDeg: z.array(finite),
+  maxResidual: finite,
+  /** d(crease)/d(drive) per crease (degrees per degree) */
+  rates: z.array(maybeInfinite),
+  condition: maybeInfinite,
+  nearSingular: z.boolean(),
+});
+export type PathSampleDto = z.output<typeof PathSampleSchema>;
+
+export const PathEventSchema = z.object({
+  type: PathEventTypeSchema,
+  driveDeg: finite,
+  text: z.string(),
+  crease: z.number().int().optional(),
+});
+export type PathEventDto = z.output<typeof PathEventSchema>;
+
+export const PathResultSchema = z.object({
+  pathId: z.string(),
+  driveCrease: z.number().int(),
+  driveLabel: z.string(),
+  branchId: z.string().optional(),
+  samples: z.array(PathSampleSchema),
+  events: z.array(PathEventSchema),
+  messages: z.array(MessageSchema),
+  /** the sweep stopped early (cancelled or failed); samples hold what was computed */
+  complete: z.boolean(),
+});
+export type PathResultDto = z.output<typeof PathResultSchema>;
+
+export const ShapeSchema = z.object({
+  vertices: z.array(z.tuple([finite, finite, finite])),
+  maxMismatch: finite,
+  basePanel: z.number().int(),
+});
+export type ShapeDto = z.output<typeof ShapeSchema>;
+
+export const PatternSummarySchema = z.object({
+  creases: z.number().int(),
+  panels: z.number().int(),
+  interiorVertices: z.number().int(),
+  patternDof: z.number().int().nullable(),
+});
+
+/** A job that another job replaced, or that the user cancelled, answers with a status instead of a value. */
+function jobResult<T extends z.ZodType>(value: T) {
+  return z.discriminatedUnion('status', [
+    z.object({ status: z.literal('done'), value }),
+    z.object({ status: z.literal('superseded') }),
+    z.object({ status: z.literal('cancelled') }),
+  ]);
+}
+
+const requestId = z.string().regex(/^[A-Za-z0-9:_-]{1,80}$/);
+const patternKey = z.string().min(1).max(120);
+
+export const SweepOptionsSchema = z.object({
+  drive: z.string().min(1).max(200),
+  fromDeg: finite.min(-180).max(180),
+  toDeg: finite.min(-180).max(180),
+  stepDeg: finite.positive().max(90),
+  /** the other drives, held at their values */
+  held: z.array(DriveSpecSchema).max(1000).default([]),
+  /** leave the flat state along this branch (from `branches`) */
+  branchId: z.string().max(200).optional(),
+  /** start from this state (the current solution) instead of the flat sheet */
+  startAnglesDeg: z.array(finite).optional(),
+});
+export type SweepOptionsDto = z.input<typeof SweepOptionsSchema>;
+
+export const ExportKindSchema = z.enum(['fold', 'obj', 'stl', 'shape-json', 'angle-table', 'schedule']);
+export type ExportKind = z.output<typeof ExportKindSchema>;
+
+export const ExportOptionsSchema = z.object({
+  /** angle table and schedule: file format */
+  format: z.enum(['csv', 'json']).default('csv'),
+  /** angle table: only every n-th sample (1 = all) */
+  every: z.number().int().positive().max(1000).default(1),
+  /** angle table: creases to include by label (empty = all) */
+  creases: z.array(z.string().max(200)).max(100_000).default([]),
+  /** schedule: degrees of drive per step */
+  stepDeg: finite.positive().max(90).default(5),
+  /** schedule: drive rate in degrees per second, for the time column */
+  rateDegPerSec: finite.positive().max(10_000).default(10),
+  /** shape exports: the folded state's angles; FOLD: also written as the file's fold angles */
+  anglesDeg: z.array(finite).optional(),
+  basePanel: z.number().int().nonnegative().optional(),
+});
+export type ExportOptionsDto = z.input<typeof ExportOptionsSchema>;
+
+// ---------- channels (renderer → main, request/response) ----------
+
+const empty = z.object({}).strict();
+const voidResult = z.object({ ok: z.literal(true) });
+
+export const StartupSchema = z.object({
+  version: z.string(),
+  platform: z.string(),
+  document: OpenedDocumentSchema.nullable(),
+  recovery: z.array(RecoveryEntrySchema),
+  recent: z.array(RecentFileSchema),
+  /** the startup document failed to load; shown in the window */
+  startupMessages: z.array(MessageSchema),
+});
+export type StartupInfo = z.output<typeof StartupSchema>;
+
+export const channels = {
+  'app:startup': { request: empty, response: StartupSchema },
+  'doc:new': { request: GeneratorSpecSchema, response: OpenResultSchema },
+  'doc:open': { request: z.object({ format: z.enum(['any', 'fold']).default('any') }), response: OpenResultSchema },
+  'doc:open-recent': { request: z.object({ path: z.string().max(4096) }), response: OpenResultSchema },
+  'doc:save': {
+    request: z.object({
+      project: ProjectSchema,
+      /** the document's current file (must be one this window opened or saved) or null */
+      filePath: z.string().max(4096).nullable(),
+      saveAs: z.boolean(),
+      suggestedName: z.string().max(200),
+    }),
+    response: WriteResultSchema,
+  },
+  'doc:export': {
+    request: z.object({
+      kind: ExportKindSchema,
+      project: ProjectSchema,
+      key: patternKey,
+      pathId: z.string().max(120).optional(),
+      options: ExportOptionsSchema,
+      suggestedName: z.string().max(200),
+    }),
+    response: WriteResultSchema,
+  },
+  'doc:state': {
+    request: z.object({ dirty: z.boolean(), title: z.string().max(300), filePath: z.string().max(4096).nullable() }),
+    response: voidResult,
+  },
+  'doc:confirm-discard': {
+    request: z.object({ documentName: z.string().max(300), action: z.string().max(100) }),
+    response: z.object({ choice: z.enum(['save', 'discard', 'cancel']) }),
+  },
+  'recovery:write': {
+    request: z.object({ id: RecoveryEntrySchema.shape.id, project: ProjectSchema, documentName: z.string().max(300), originalPath: z.string().max(4096).nullable() }),
+    response: voidResult,
+  },
+  'recovery:clear': { request: z.object({ id: RecoveryEntrySchema.shape.id }), response: voidResult },
+  'recovery:restore': { request: z.object({ id: RecoveryEntrySchema.shape.id }), response: OpenResultSchema },
+  'pattern:set': {
+    request: z.object({ key: patternKey, source: PatternSourceSchema }),
+    response: z.object({ ok: z.boolean(), summary: PatternSummarySchema.nullable(), messages: z.array(MessageSchema) }),
+  },
+  'solve': {
+    request: z.object({ requestId, key: patternKey, drives: z.array(DriveSpecSchema).max(10_000) }),
+    response: jobResult(SolveResultSchema),
+  },
+  'branches': {
+    request: z.object({ requestId, key: patternKey, drives: z.array(DriveSpecSchema).max(10_000) }),
+    response: jobResult(BranchesResultSchema),
+  },
+  'sweep': {
+    request: z.object({ requestId, key: patternKey, options: SweepOptionsSchema }),
+    response: jobResult(PathResultSchema),
+  },
+  'shape': {
+    request: z.object({ key: patternKey, anglesDeg: z.array(finite), basePanel: z.number().int().nonnegative().optional() }),
+    response: jobResult(ShapeSchema),
+  },
+  'job:cancel': { request: z.object({ requestId }), response: z.object({ cancelled: z.boolean() }) },
+  'clipboard:write': { request: z.object({ text: z.string().max(50_000_000) }), response: voidResult },
+  'app:close-ready': { request: empty, response: voidResult },
+} as const;
+
+export type Channel = keyof typeof channels;
+export type RequestOf<C extends Channel> = z.input<(typeof channels)[C]['request']>;
+export type ParsedRequestOf<C extends Channel> = z.output<(typeof channels)[C]['request']>;
+export type ResponseOf<C extends Channel> = z.output<(typeof channels)[C]['response']>;
+
+/** What every invoke answers: a value, or an error as a value. */
+export type Envelope<T> = { ok: true; value: T } | { ok: false; error: IpcError };
+
+export const CHANNEL_NAMES = Object.keys(channels) as Channel[];
+
+// ---------- events (main → renderer) ----------
+
+export const MenuCommandSchema = z.enum([
+  'new',
+  'open',
+  'import-fold',
+  'save',
+  'save-as',
+  'export-fold',
+  'export-obj',
+  'export-stl',
+  'export-table',
+  'undo',
+  'redo',
+  'compute-path',
+  'cancel-job',
+  'fit-view',
+  'toggle-ghost',
+  'toggle-labels',
+  'open-recent',
+  'save-and-close',
+]);
+export type MenuCommand = z.output<typeof MenuCommandSchema>;
+
+export const events = {
+  'job:progress': z.object({ requestId, done: z.number().nonnegative(), total: z.number().nonnegative(), phase: z.string().max(100).optional() }),
+  'menu:command': z.object({ command: MenuCommandSchema, path: z.string().max(4096).optional() }),
+} as const;
+export type EventName = keyof typeof events;
+export type EventOf<E extends EventName> = z.output<(typeof events)[E]>;
+export const EVENT_NAMES = Object.keys(events) as EventName[];
+
+// ---------- validation helpers used on both sides ----------
+
+/** One line per problem: the path into the payload and what is wrong there. */
+export function describeIssues(error: z.ZodError): string {
+  return error.issues
+    .slice(0, 5)
+    .map((i) => `${i.path.length ? i.path.join('.') : '(payload)'}: ${i.message}`)
+    .join('; ');
+}
+
+export function parseRequest<C extends Channel>(channel: C, payload: unknown): Envelope<ParsedRequestOf<C>> {
+  const spec = channels[channel];
+  if (!spec) return { ok: false, error: { code: 'unknown-channel', message: `no such channel: ${String(channel)}` } };
+  const r = spec.request.safeParse(payload ?? {});
+  if (!r.success) return { ok: false, error: { code: 'bad-request', message: `${channel}: ${describeIssues(r.error)}`, where: channel } };
+  return { ok: true, value: r.data as ParsedRequestOf<C> };
+}
+
+export function parseResponse<C extends Channel>(channel: C, value: unknown): Envelope<ResponseOf<C>> {
+  const r = channels[channel].response.safeParse(value);
+  if (!r.success) return { ok: false, error: { code: 'bad-response', message: `${channel}: ${describeIssues(r.error)}`, where: channel } };
+  return { ok: true, value: r.data as ResponseOf<C> };
+}
+
+/** An envelope as it arrives from the other side: checks its frame, then its value against the channel. */
+export function parseEnvelope<C extends Channel>(channel: C, raw: unknown): Envelope<ResponseOf<C>> {
+  const frame = z
+    .union([z.object({ ok: z.literal(true), value: z.unknown() }), z.object({ ok: z.literal(false), error: IpcErrorSchema })])
+    .safeParse(raw);
+  if (!frame.success) return { ok: false, error: { code: 'bad-response', message: `${channel}: the answer is not an envelope`, where: channel } };
+  if (!frame.data.ok) return { ok: false, error: frame.data.error };
+  return parseResponse(channel, frame.data.value);
+}
+
+export function parseEvent<E extends EventName>(name: E, payload: unknown): EventOf<E> | undefined {
+  const spec = events[name];
+  if (!spec) return undefined;
+  const r = spec.safeParse(payload);
+  return r.success ? (r.data as EventOf<E>) : undefined;
+}
+
+/** Non-finite numbers (an infinite condition number) cross as null. */
+export function finiteOrNull(x: number): number | null {
+  return Number.isFinite(x) ? x : null;
+}

@@ -1,0 +1,273 @@
+// The solver jobs the worker runs: each turns a contract payload into solver calls and the solver's
+// answer into a contract value (degrees, labels, no typed arrays). Plain functions over a small cache of
+// built patterns and computed paths, so tests can call them in-process and the worker runs the same code.
+
+import type { Drive, Pattern, PatternSource, Solution, SolveReport } from '../solver/types';
+import { buildPattern } from '../solver/pattern';
+import { resolveDrives } from '../solver/drives';
+import { solveDrives } from '../solver/solve';
+import { foldedShape } from '../solver/shape';
+import { loadPatternText, writeProject, type Project } from '../solver/formats/project';
+import { writeFold } from '../solver/formats/fold';
+import { degree5, miura, singleVertex, waterbomb, type GeneratorResult } from '../solver/generators';
+import { shapeToJSON, shapeToOBJ, shapeToSTL } from '../solver/formats/shape-export';
+import {
+  DriveSpecSchema,
+  ExportKindSchema,
+  ExportOptionsSchema,
+  GeneratorSpecSchema,
+  PatternSourceSchema,
+  ProjectSchema,
+  finiteOrNull,
+  type DriveSpec,
+  type MessageDto,
+  type ProjectDto,
+  type ShapeDto,
+  type SolutionDto,
+  type SolveResultDto,
+} from './contract';
+import { JobFailure, type Job, type JobContext } from './worker-protocol';
+import { LruMap } from './lru';
+import { z } from 'zod';
+
+const DEG = 180 / Math.PI;
+const RAD = Math.PI / 180;
+
+export interface JobState {
+  patterns: LruMap<string, Pattern>;
+  paths: LruMap<string, StoredPath>;
+}
+
+/** A computed path kept in the worker, so tables can be exported from it without sending it back. */
+export interface StoredPath {
+  key: string;
+  driveCrease: number;
+  /** the solver's own result, as its table writers take it */
+  raw: unknown;
+}
+
+export function createJobState(): JobState {
+  return { patterns: new LruMap(4), paths: new LruMap(6) };
+}
+
+function parse<T extends z.ZodType>(schema: T, payload: unknown, what: string): z.output<T> {
+  const r = schema.safeParse(payload);
+  if (!r.success) throw new JobFailure('bad-request', `${what}: ${r.error.issues.map((i) => `${i.path.join('.')}: ${i.message}`).join('; ')}`);
+  return r.data;
+}
+
+export function patternFor(state: JobState, key: string): Pattern {
+  const p = state.patterns.get(key);
+  if (!p) throw new JobFailure('pattern-unknown', `the solver has no pattern ${key}; send it first`);
+  return p;
+}
+
+export function toProjectDto(project: Project): ProjectDto {
+  // the project is plain data already; the schema drops nothing a project carries
+  return ProjectSchema.parse(project);
+}
+
+function messages(list: { severity: string; code: string; text: string; where?: object }[]): MessageDto[] {
+  return list.map((m) => ({ severity: m.severity as MessageDto['severity'], code: m.code, text: m.text, ...(m.where ? { where: m.where } : {}) }));
+}
+
+// ---------- load and save ----------
+
+const LoadRequest = z.object({ text: z.string(), fileName: z.string().max(4096) });
+
+export function loadJob(_state: JobState, payload: unknown) {
+  const { text, fileName } = parse(LoadRequest, payload, 'load');
+  const loaded = loadPatternText(text, fileName);
+  const msgs = messages(loaded.messages);
+  // a file whose pattern does not build cannot be shown; its messages say why and where
+  if (!loaded.project || !loaded.pattern) return { ok: false as const, format: loaded.format ?? 'project', messages: msgs };
+  return { ok: true as const, format: loaded.format ?? 'project', project: toProjectDto(loaded.project), messages: msgs };
+}
+
+export function writeProjectJob(_state: JobState, payload: unknown): string {
+  const { project } = parse(z.object({ project: ProjectSchema }), payload, 'write-project');
+  return writeProject(project as Project);
+}
+
+/** A new document from one of the generators; its parameter problems come back as messages. */
+export function generateJob(_state: JobState, payload: unknown) {
+  const spec = parse(GeneratorSpecSchema, payload, 'generate');
+  let r: GeneratorResult;
+  switch (spec.kind) {
+    case 'single-vertex':
+      r = singleVertex({ sectorsDeg: spec.sectorsDeg, radius: spec.radius, driveDeg: spec.driveDeg, name: spec.name });
+      break;
+    case 'miura':
+      r = miura({ rows: spec.rows, cols: spec.cols, a: spec.a, b: spec.b, alphaDeg: spec.alphaDeg, driveDeg: spec.driveDeg, name: spec.name });
+      break;
+    case 'waterbomb':
+      r = waterbomb({ size: spec.size, allMidlines: spec.allMidlines, name: spec.name });
+      break;
+    case 'degree5':
+      r = degree5({ sectorsDeg: spec.sectorsDeg, radius: spec.radius, name: spec.name });
+      break;
+  }
+  const msgs = messages(r.messages);
+  if (!r.project) return { ok: false as const, messages: msgs };
+  const built = buildPattern(r.project.source);
+  if (!built.pattern) return { ok: false as const, messages: [...msgs, ...messages(built.messages)] };
+  return { ok: true as const, project: toProjectDto(r.project), messages: [...msgs, ...messages(built.messages)] };
+}
+
+// ---------- patterns ----------
+
+const SetPatternRequest = z.object({ key: z.string(), source: PatternSourceSchema });
+
+export function setPatternJob(state: JobState, payload: unknown) {
+  const { key, source } = parse(SetPatternRequest, payload, 'set-pattern');
+  const built = buildPattern(source as PatternSource);
+  if (!built.pattern) return { ok: false, summary: null, messages: messages(built.messages) };
+  state.patterns.set(key, built.pattern);
+  const p = built.pattern;
+  return {
+    ok: true,
+    summary: { creases: p.creases.length, panels: p.panels.length, interiorVertices: p.interiorVertices.length, patternDof: null },
+    messages: messages(built.messages),
+  };
+}
+
+// ---------- solve ----------
+
+const SolveRequest = z.object({ key: z.string(), drives: z.array(DriveSpecSchema) });
+
+export function resolveOrFail(pattern: Pattern, specs: DriveSpec[]): { drives: Drive[]; messages: MessageDto[]; failed: boolean } {
+  const resolved = resolveDrives(pattern, specs.map((d, i) => ({ ...d, field: `drives[${i}]` })));
+  const msgs = messages(resolved.messages);
+  return { drives: resolved.drives, messages: msgs, failed: msgs.some((m) => m.severity === 'error') };
+}
+
+export function solutionDto(s: Solution): SolutionDto {
+  const sensitivity: [number, number, number][] = [];
+  for (const [crease, byDrive] of s.sensitivity) for (const [drive, v] of byDrive) if (Number.isFinite(v)) sensitivity.push([crease, drive, v]);
+  return {
+    anglesDeg: Array.from(s.angles, (a) => a * DEG),
+    maxResidual: Number.isFinite(s.maxResidual) ? s.maxResidual : Number.MAX_VALUE,
+    vertexResiduals: s.vertexResiduals.map((r) => (Number.isFinite(r) ? r : Number.MAX_VALUE)),
+    matchesAssignment: s.matchesAssignment,
+    localDof: s.localDof,
+    condition: finiteOrNull(s.condition),
+    signs: s.signs,
+    sensitivity,
+  };
+}
+
+export function solveReportDto(pattern: Pattern, report: SolveReport, extra: MessageDto[] = []): SolveResultDto {
+  const label = (c: number) => pattern.creases[c]?.label ?? String(c);
+  const out: SolveResultDto = {
+    status: report.status,
+    dof: report.dof,
+    patternDof: report.patternDof,
+    solutions: report.solutions.map(solutionDto),
+    messages: [...extra, ...messages(report.messages)],
+    iterations: report.iterations,
+  };
+  if (report.compromise) {
+    out.compromise = solutionDto(report.compromise);
+    out.worstVertices = report.compromise.vertexResiduals
+      .map((r, i) => [pattern.interiorVertices[i]?.vertex ?? i, r] as [number, number])
+      .filter(([, r]) => r > 1e-9)
+      .sort((a, b) => b[1] - a[1])
+      .slice(0, 3);
+  }
+  if (report.suggestedDrives) out.suggestedDrives = report.suggestedDrives.map(label);
+  if (report.conflictingDrives) out.conflictingDrives = report.conflictingDrives.map(label);
+  if (report.reachableRange) out.reachableRangeDeg = report.reachableRange.map(([a, b]) => [a * DEG, b * DEG]);
+  return out;
+}
+
+export function solveJob(state: JobState, payload: unknown): SolveResultDto {
+  const { key, drives } = parse(SolveRequest, payload, 'solve');
+  const pattern = patternFor(state, key);
+  const resolved = resolveOrFail(pattern, drives);
+  if (resolved.failed) {
+    return { status: 'invalid', dof: 0, patternDof: 0, solutions: [], messages: resolved.messages, iterations: 0 };
+  }
+  return solveReportDto(pattern, solveDrives(pattern, resolved.drives), resolved.messages);
+}
+
+// ---------- shape ----------
+
+const ShapeRequest = z.object({ key: z.string(), anglesDeg: z.array(z.number()), basePanel: z.number().int().optional() });
+
+export function anglesFromDegrees(pattern: Pattern, anglesDeg: readonly number[]): Float64Array {
+  if (anglesDeg.length !== pattern.creases.length) {
+    throw new JobFailure('bad-angles', `expected ${pattern.creases.length} fold angles (one per crease), got ${anglesDeg.length}`);
+  }
+  return Float64Array.from(anglesDeg, (a) => a * RAD);
+}
+
+export function shapeJob(state: JobState, payload: unknown): ShapeDto {
+  const { key, anglesDeg, basePanel } = parse(ShapeRequest, payload, 'shape');
+  const pattern = patternFor(state, key);
+  const shape = foldedShape(pattern, anglesFromDegrees(pattern, anglesDeg), basePanel);
+  return { vertices: shape.vertices, maxMismatch: shape.maxMismatch, basePanel: shape.basePanel };
+}
+
+// ---------- exports ----------
+
+const ExportRequest = z.object({
+  kind: ExportKindSchema,
+  project: ProjectSchema,
+  key: z.string(),
+  pathId: z.string().optional(),
+  options: ExportOptionsSchema,
+});
+
+export interface ExportData {
+  data: string;
+  extension: string;
+}
+
+export function exportJob(state: JobState, payload: unknown): ExportData {
+  const req = parse(ExportRequest, payload, 'export');
+  const pattern = patternFor(state, req.key);
+  const base = req.options.basePanel;
+  const angles = () => {
+    if (!req.options.anglesDeg) throw new JobFailure('no-state', 'there is no folded state to export yet; set a drive first');
+    return anglesFromDegrees(pattern, req.options.anglesDeg);
+  };
+  switch (req.kind) {
+    case 'fold':
+      return { data: writeFold(req.project as Project, req.options.anglesDeg ? { foldAngles: angles() } : {}), extension: 'fold' };
+    case 'obj':
+      return { data: shapeToOBJ(pattern, foldedShape(pattern, angles(), base)), extension: 'obj' };
+    case 'stl':
+      return { data: shapeToSTL(pattern, foldedShape(pattern, angles(), base)), extension: 'stl' };
+    case 'shape-json':
+      return { data: JSON.stringify(shapeToJSON(pattern, foldedShape(pattern, angles(), base)), null, 1) + '\n', extension: 'json' };
+    case 'angle-table':
+    case 'schedule': {
+      if (!req.pathId) throw new JobFailure('no-path', 'compute a path first: tables are written from the computed path');
+      const stored = state.paths.get(req.pathId);
+      if (!stored || stored.key !== req.key) throw new JobFailure('path-unknown', 'the computed path is no longer available; compute it again');
+      return writeTable(req.kind, pattern, stored, req.options);
+    }
+  }
+}
+
+function writeTable(kind: 'angle-table' | 'schedule', _pattern: Pattern, _path: StoredPath, _options: z.output<typeof ExportOptionsSchema>): ExportData {
+  throw new JobFailure('not-available', `${kind} export waits for the fold-path writers`);
+}
+
+// ---------- the job table ----------
+
+export function createJobs(state: JobState = createJobState()): Record<string, Job> {
+  const withState =
+    <T>(f: (s: JobState, p: unknown, ctx: JobContext) => T): Job =>
+    (payload, ctx) =>
+      f(state, payload, ctx);
+  return {
+    load: withState(loadJob),
+    'write-project': withState(writeProjectJob),
+    generate: withState(generateJob),
+    'set-pattern': withState(setPatternJob),
+    solve: withState(solveJob),
+    shape: withState(shapeJob),
+    export: withState(exportJob),
+  };
+}
