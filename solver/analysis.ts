@@ -1,11 +1,11 @@
 // Local analysis of a closed state: rank of the closure Jacobian, local DOF, condition number, null space,
 // and the sensitivity of every free crease to every drive (the implicit-function derivative −J_f⁺·J_d).
 
-import { Matrix, SingularValueDecomposition } from 'ml-matrix';
 import type { ClosureProblem } from './newton';
 import { EnvelopeMatrix } from './math/envelope';
+import { applyQt, nullBasisFromQR, pivotedQR, singularValueBounds, solveR11 } from './math/qr';
 
-/** Columns up to this count use a dense SVD; larger problems use the sparse normal-matrix factor. */
+/** Columns up to this count use a dense pivoted QR; larger problems use the sparse normal-matrix factor. */
 export const DENSE_LIMIT = 700;
 /** Singular values at or below this (the Jacobian's columns are unit folded directions) count as zero. */
 export const RANK_TOLERANCE = 1e-8;
@@ -45,75 +45,53 @@ export function analyzeState(
 
 function denseAnalysis(problem: ClosureProblem, columns: ArrayLike<number>, drives: ArrayLike<number>): LocalAnalysis {
   const nc = columns.length;
-  if (nc === 0 || problem.sys.blockCount === 0) {
+  const m = 3 * problem.sys.blockCount;
+  if (nc === 0 || m === 0) {
     return {
       columns: nc, rank: 0, localDof: nc, condition: nc === 0 ? 1 : Infinity, sigmaMin: 0,
       nullBasis: identity(nc), sensitivity: Array.from({ length: nc }, () => Array.from(drives, () => 0)), exact: true,
     };
   }
-  const J = new Matrix(problem.denseJacobian(columns));
-  const svd = new SingularValueDecomposition(J, { autoTranspose: true });
-  const sv = svd.diagonal;
-  const V = svd.rightSingularVectors;
-  const U = svd.leftSingularVectors;
-  const rank = sv.filter((s) => s > RANK_TOLERANCE).length;
-  const sMax = sv.length ? Math.max(...sv) : 0;
-  const nonzero = sv.filter((s) => s > RANK_TOLERANCE);
-  const sigmaMin = nonzero.length ? Math.min(...nonzero) : 0;
-  const condition = rank === 0 ? Infinity : sMax / sigmaMin;
-  // null space: right singular vectors beyond the rank (V is nc × k with k = min(m, nc) when m < nc)
-  const order = sv.map((s, i) => [s, i] as const).sort((a, b) => b[0] - a[0]).map((p) => p[1]);
-  const rangeVectors = order.slice(0, rank).map((i) => V.getColumn(i));
-  const nullBasis = completeNullBasis(rangeVectors, nc);
+  const J = columnMajor(problem, columns, m);
+  const f = pivotedQR(J, m, nc, RANK_TOLERANCE);
+  const rank = f.rank;
+  const { max, min } = singularValueBounds(f);
+  const condition = rank === 0 ? Infinity : max / min;
+  const nullBasis = nullBasisFromQR(f);
   let sensitivity: number[][] | undefined;
   if (drives.length) {
-    const Jd = new Matrix(problem.denseJacobian(drives));
-    // x = −V Σ⁺ Uᵀ J_d over the non-zero singular values
-    const UtJd = order.slice(0, rank).map((i) => {
-      const u = U.getColumn(i);
-      return Array.from({ length: drives.length }, (_, d) => {
-        let s = 0;
-        for (let r = 0; r < u.length; r++) s += u[r] * Jd.get(r, d);
-        return s / sv[i];
-      });
-    });
-    sensitivity = Array.from({ length: nc }, (_, k) =>
-      Array.from({ length: drives.length }, (_, d) => {
-        let s = 0;
-        for (let q = 0; q < rank; q++) s += rangeVectors[q][k] * UtJd[q][d];
-        return -s;
-      }),
-    );
+    // basic least-squares solution of J_f x = −J_d (exact implicit-function derivative when rank is full)
+    const Jd = columnMajor(problem, drives, m);
+    sensitivity = Array.from({ length: nc }, () => new Array(drives.length).fill(0));
+    const y = new Float64Array(rank);
+    for (let d = 0; d < drives.length; d++) {
+      const b = Jd.slice(d * m, (d + 1) * m);
+      applyQt(f, b);
+      solveR11(f, b, y);
+      for (let i = 0; i < rank; i++) sensitivity[f.perm[i]][d] = -y[i];
+    }
   }
-  return { columns: nc, rank, localDof: nc - rank, condition, sigmaMin, nullBasis, sensitivity, exact: true };
+  return { columns: nc, rank, localDof: nc - rank, condition, sigmaMin: min, nullBasis, sensitivity, exact: true };
+}
+
+/** The Jacobian's columns for the given creases, column-major (m rows), from the last evaluate(). */
+function columnMajor(problem: ClosureProblem, columns: ArrayLike<number>, m: number): Float64Array {
+  const col = new Map<number, number>();
+  for (let k = 0; k < columns.length; k++) col.set(columns[k], k);
+  const out = new Float64Array(m * columns.length);
+  const { blockStart, slotCrease, blockCount } = problem.sys;
+  for (let b = 0; b < blockCount; b++) {
+    for (let p = blockStart[b]; p < blockStart[b + 1]; p++) {
+      const c = col.get(slotCrease[p]);
+      if (c === undefined) continue;
+      for (let k = 0; k < 3; k++) out[c * m + 3 * b + k] += problem.jacobian[3 * p + k];
+    }
+  }
+  return out;
 }
 
 function identity(n: number): number[][] {
   return Array.from({ length: n }, (_, i) => Array.from({ length: n }, (_, j) => (i === j ? 1 : 0)));
-}
-
-/** Orthonormal complement of the given orthonormal vectors in Rⁿ (Gram–Schmidt against unit vectors). */
-function completeNullBasis(range: number[][], n: number): number[][] {
-  const basis = range.map((v) => [...v]);
-  const out: number[][] = [];
-  for (let e = 0; e < n && basis.length < n; e++) {
-    const v = new Array(n).fill(0);
-    v[e] = 1;
-    for (let pass = 0; pass < 2; pass++) {
-      for (const b of basis) {
-        let d = 0;
-        for (let i = 0; i < n; i++) d += b[i] * v[i];
-        for (let i = 0; i < n; i++) v[i] -= d * b[i];
-      }
-    }
-    const norm = Math.hypot(...v);
-    if (norm > 1e-6) {
-      for (let i = 0; i < n; i++) v[i] /= norm;
-      basis.push(v);
-      out.push(v);
-    }
-  }
-  return out;
 }
 
 function sparseAnalysis(problem: ClosureProblem, columns: ArrayLike<number>, drives: ArrayLike<number>): LocalAnalysis {

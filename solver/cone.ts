@@ -2,8 +2,9 @@
 // Σ ρ_i u_i = 0 at each vertex (linear); second order gives Σ_{i<j} ρ_i ρ_j sin(θ_j − θ_i) = 0 (quadratic).
 // Rays are the unit vectors of the linear null space on which every quadratic vanishes.
 
-import { Matrix, SingularValueDecomposition } from 'ml-matrix';
+import { nullBasisFromQR, pivotedQR } from './math/qr';
 import type { Pattern } from './types';
+import { solveSmall } from './newton';
 
 export interface ConeRay {
   /** unit direction over all creases (zeros on held creases) */
@@ -21,6 +22,8 @@ export interface ConeOptions {
   ratio?: { crease: number; value: number }[];
   /** random starts for the quadratic system (deterministic) */
   starts?: number;
+  /** directions (over all creases) to start from before the random ones, e.g. the mountain/valley signs */
+  seeds?: Float64Array[];
   seed?: number;
   /** variable count above which the analysis is not attempted (dense null space) */
   maxVariables?: number;
@@ -196,6 +199,12 @@ export function flatCone(pattern: Pattern, opts: ConeOptions = {}): ConeResult {
       coeffRays.push([Math.cos(t), Math.sin(t)], [-Math.cos(t), -Math.sin(t)]);
     }
   } else {
+    for (const seed of opts.seeds ?? []) {
+      const c0 = N.map((v) => v.reduce((acc, x, j) => acc + x * seed[variables[j]], 0));
+      if (Math.hypot(...c0) < 1e-12) continue;
+      const c = polishOnSphere(forms, c0);
+      if (c) coeffRays.push(c);
+    }
     const rand = mulberry32(opts.seed ?? 12345);
     const starts = opts.starts ?? Math.min(160, 24 + 4 * k);
     for (let s = 0; s < starts; s++) {
@@ -254,17 +263,13 @@ function straightLineRays(
   return rays;
 }
 
-/** Orthonormal basis of the null space of the given rows (each of length n), as an array of vectors. */
+/** Orthonormal basis of the null space of the given rows (each of length n), by pivoted QR. */
 export function nullSpace(rows: number[][], n: number, tol = 1e-9): number[][] {
   if (rows.length === 0) return identityRows(n);
-  // SVD of Aᵀ A would square the condition; use the SVD of A directly (padded to at least n rows)
-  const padded = rows.length >= n ? rows : [...rows, ...Array.from({ length: n - rows.length }, () => new Array(n).fill(0))];
-  const svd = new SingularValueDecomposition(new Matrix(padded), { autoTranspose: false });
-  const sv = svd.diagonal;
-  const V = svd.rightSingularVectors;
-  const out: number[][] = [];
-  for (let i = 0; i < sv.length; i++) if (sv[i] <= tol) out.push(V.getColumn(i));
-  return out;
+  const m = rows.length;
+  const A = new Float64Array(m * n);
+  rows.forEach((row, i) => row.forEach((v, j) => (A[i + j * m] = v)));
+  return nullBasisFromQR(pivotedQR(A, m, n, tol));
 }
 
 function identityRows(k: number): number[][] {
@@ -356,9 +361,7 @@ function sumSq(forms: number[][][], c: number[]): number {
 }
 
 function solveSym(A: number[][], b: number[]): number[] {
-  const M = new Matrix(A);
-  const svd = new SingularValueDecomposition(M);
-  return svd.solve(Matrix.columnVector(b)).getColumn(0);
+  return solveSmall(A, b);
 }
 
 function normalizeInPlace(v: Float64Array): void {

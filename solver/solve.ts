@@ -64,6 +64,13 @@ export function matchesAssignment(pattern: Pattern, angles: Float64Array): boole
   return true;
 }
 
+/** Unit vector of the mountain/valley signs (valley +1, mountain −1, others 0). */
+export function assignmentDirection(pattern: Pattern): Float64Array {
+  const v = new Float64Array(pattern.creases.length);
+  for (const c of pattern.creases) v[c.index] = c.assignment === 'V' ? 1 : c.assignment === 'M' ? -1 : 0;
+  return v;
+}
+
 /** Follow a flat-state ray to the drive values by homotopy in the drive scale. */
 export function followRay(
   problem: ClosureProblem,
@@ -210,7 +217,7 @@ export function solveDrives(pattern: Pattern, drives: Drive[], options: SolveOpt
 
   // 2. rays of the flat state's tangent cone, restricted to the drives' ratio, followed to the drive values
   if (!allZero && free.length > 0) {
-    const cone = flatCone(pattern, { ratio: drives.map((d) => ({ crease: d.crease, value: d.value })) });
+    const cone = flatCone(pattern, { ratio: drives.map((d) => ({ crease: d.crease, value: d.value })), seeds: [assignmentDirection(pattern)] });
     for (const ray of cone.rays) {
       if (found.length >= maxSolutions) break;
       consider(followRay(problem, drives, ray.tangent, base).result);
