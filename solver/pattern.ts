@@ -297,15 +297,18 @@ function checkGeometry(c: Checked, out: Messages): { size: number; tol: number }
   }
   const tol = DUPLICATE_TOLERANCE * size;
 
-  // duplicate vertices: hash grid with cells of the tolerance, look in the 3 × 3 neighbourhood
-  const grid = new Map<string, number[]>();
+  // duplicate vertices: a hash grid with about one vertex per cell (cells never smaller than the
+  // tolerance), so only the 3 × 3 neighbourhood of a vertex is compared with it
+  const cellSize = Math.max(tol, size / Math.sqrt(nv));
+  const gridW = Math.floor((x1 - x0) / cellSize) + 3;
+  const grid = new Map<number, number[]>();
   for (let v = 0; v < nv; v++) {
-    const gx = Math.floor((xy[2 * v] - x0) / tol);
-    const gy = Math.floor((xy[2 * v + 1] - y0) / tol);
+    const gx = Math.floor((xy[2 * v] - x0) / cellSize) + 1;
+    const gy = Math.floor((xy[2 * v + 1] - y0) / cellSize) + 1;
     let dup = -1;
     for (let dx = -1; dx <= 1 && dup < 0; dx++) {
       for (let dy = -1; dy <= 1 && dup < 0; dy++) {
-        const cell = grid.get(`${gx + dx},${gy + dy}`);
+        const cell = grid.get((gy + dy) * gridW + gx + dx);
         if (!cell) continue;
         for (const w of cell) {
           if (Math.hypot(xy[2 * v] - xy[2 * w], xy[2 * v + 1] - xy[2 * w + 1]) <= tol) {
@@ -323,13 +326,13 @@ function checkGeometry(c: Checked, out: Messages): { size: number; tol: number }
         { vertex: v },
       );
     }
-    const key = `${gx},${gy}`;
+    const key = gy * gridW + gx;
     const cell = grid.get(key);
     if (cell) cell.push(v);
     else grid.set(key, [v]);
   }
 
-  const pairs = new Map<string, number>();
+  const pairs = new Map<number, number>();
   for (let e = 0; e < ne; e++) {
     const a = ev[2 * e];
     const b = ev[2 * e + 1];
@@ -343,7 +346,7 @@ function checkGeometry(c: Checked, out: Messages): { size: number; tol: number }
       );
       continue;
     }
-    const key = a < b ? `${a},${b}` : `${b},${a}`;
+    const key = a < b ? a * nv + b : b * nv + a;
     const prev = pairs.get(key);
     if (prev !== undefined) {
       out.add(
@@ -394,32 +397,55 @@ function checkCrossings(c: Checked, x0: number, y0: number, x1: number, y1: numb
     if (entries <= 16 * ne + 64) break;
     cell *= 2;
   }
+  // cell entries as sorted numbers key·ne + crease: a flat sort instead of a map of lists
   const nx = Math.floor((w + 2 * tol) / cell) + 3;
-  const cells = new Map<number, number[]>();
+  let count = 0;
+  for (let e = 0; e < ne; e++) count += (cx1[e] - cx0[e] + 1) * (cy1[e] - cy0[e] + 1);
+  const entries = new Float64Array(count);
+  let k = 0;
   for (let e = 0; e < ne; e++) {
     for (let gx = cx0[e]; gx <= cx1[e]; gx++) {
-      for (let gy = cy0[e]; gy <= cy1[e]; gy++) {
-        const key = (gy + 1) * nx + (gx + 1);
-        const list = cells.get(key);
-        if (list) list.push(e);
-        else cells.set(key, [e]);
-      }
+      for (let gy = cy0[e]; gy <= cy1[e]; gy++) entries[k++] = ((gy + 1) * nx + (gx + 1)) * ne + e;
     }
   }
-  for (const [key, list] of cells) {
-    if (list.length < 2) continue;
-    const gx = (key % nx) - 1;
-    const gy = Math.floor(key / nx) - 1;
-    for (let i = 0; i < list.length; i++) {
-      const e = list[i];
-      for (let j = i + 1; j < list.length; j++) {
-        const f = list[j];
-        // test each pair in one cell only: the lowest cell that both cover
-        if (gx !== Math.max(cx0[e], cx0[f]) || gy !== Math.max(cy0[e], cy0[f])) continue;
-        testPair(c, e < f ? e : f, e < f ? f : e, tol, out);
+  entries.sort();
+  const keyOf = (x: number) => {
+    const q = Math.floor(x / ne);
+    return q * ne > x ? q - 1 : q; // guard against the quotient rounding up
+  };
+  for (let start = 0; start < count; ) {
+    const key = keyOf(entries[start]);
+    let end = start + 1;
+    while (end < count && keyOf(entries[end]) === key) end++;
+    if (end - start > 1) {
+      const gx = (key % nx) - 1;
+      const gy = Math.floor(key / nx) - 1;
+      for (let i = start; i < end; i++) {
+        const e = entries[i] - key * ne;
+        for (let j = i + 1; j < end; j++) {
+          const f = entries[j] - key * ne;
+          // test each pair in one cell only: the lowest cell that both cover (e < f: entries are sorted)
+          if (gx !== Math.max(cx0[e], cx0[f]) || gy !== Math.max(cy0[e], cy0[f])) continue;
+          testPair(c, e, f, tol, out);
+        }
       }
     }
+    start = end;
   }
+}
+
+/** Signed distance of vertex v from the line through s → t (positive on the left). */
+function lineDistance(xy: Float64Array, v: number, s: number, t: number): number {
+  const dx = xy[2 * t] - xy[2 * s];
+  const dy = xy[2 * t + 1] - xy[2 * s + 1];
+  return (dx * (xy[2 * v + 1] - xy[2 * s + 1]) - dy * (xy[2 * v] - xy[2 * s])) / Math.hypot(dx, dy);
+}
+
+/** Position of vertex v along s → t: 0 at s, 1 at t. */
+function alongLine(xy: Float64Array, v: number, s: number, t: number): number {
+  const dx = xy[2 * t] - xy[2 * s];
+  const dy = xy[2 * t + 1] - xy[2 * s + 1];
+  return ((xy[2 * v] - xy[2 * s]) * dx + (xy[2 * v + 1] - xy[2 * s + 1]) * dy) / (dx * dx + dy * dy);
 }
 
 function testPair(c: Checked, e: number, f: number, tol: number, out: Messages): void {
@@ -428,79 +454,75 @@ function testPair(c: Checked, e: number, f: number, tol: number, out: Messages):
   const b = ev[2 * e + 1];
   const p = ev[2 * f];
   const q = ev[2 * f + 1];
-  const ne = creaseName(e, c.fileLabel[e]);
-  const nf = creaseName(f, c.fileLabel[f]);
-  const X = (v: number) => xy[2 * v];
-  const Y = (v: number) => xy[2 * v + 1];
-  // signed distance of point v from the line through s → t
-  const dist = (v: number, s: number, t: number) =>
-    ((X(t) - X(s)) * (Y(v) - Y(s)) - (Y(t) - Y(s)) * (X(v) - X(s))) / Math.hypot(X(t) - X(s), Y(t) - Y(s));
-  // position of v along s → t, 0 at s, 1 at t
-  const along = (v: number, s: number, t: number) => {
-    const dx = X(t) - X(s);
-    const dy = Y(t) - Y(s);
-    return ((X(v) - X(s)) * dx + (Y(v) - Y(s)) * dy) / (dx * dx + dy * dy);
-  };
+  // quick rejection on bounding boxes (the grid cells are coarser than the creases)
+  if (
+    Math.min(xy[2 * a], xy[2 * b]) > Math.max(xy[2 * p], xy[2 * q]) + tol ||
+    Math.min(xy[2 * p], xy[2 * q]) > Math.max(xy[2 * a], xy[2 * b]) + tol ||
+    Math.min(xy[2 * a + 1], xy[2 * b + 1]) > Math.max(xy[2 * p + 1], xy[2 * q + 1]) + tol ||
+    Math.min(xy[2 * p + 1], xy[2 * q + 1]) > Math.max(xy[2 * a + 1], xy[2 * b + 1]) + tol
+  ) {
+    return;
+  }
 
   const shared = a === p || a === q ? a : b === p || b === q ? b : -1;
   if (shared >= 0) {
     const oe = shared === a ? b : a;
     const of = shared === p ? q : p;
-    if (Math.abs(dist(of, shared, oe)) <= tol && along(of, shared, oe) > 0) {
+    if (Math.abs(lineDistance(xy, of, shared, oe)) <= tol && alongLine(xy, of, shared, oe) > 0) {
       out.add(
         'error',
         'creases-overlap',
-        `${cap(ne)} and ${nf} leave vertex ${shared} in the same direction and overlap; split the longer one at vertex ${along(of, shared, oe) < 1 ? of : oe}.`,
+        `${cap(creaseName(e, c.fileLabel[e]))} and ${creaseName(f, c.fileLabel[f])} leave vertex ${shared} in the same direction and overlap; split the longer one at vertex ${alongLine(xy, of, shared, oe) < 1 ? of : oe}.`,
         { ...where(e, c.fileLabel[e]), vertex: shared },
       );
     }
     return;
   }
-  const dp = dist(p, a, b);
-  const dq = dist(q, a, b);
-  const da = dist(a, p, q);
-  const db = dist(b, p, q);
+  const dp = lineDistance(xy, p, a, b);
+  const dq = lineDistance(xy, q, a, b);
+  const da = lineDistance(xy, a, p, q);
+  const db = lineDistance(xy, b, p, q);
   if (Math.abs(dp) <= tol && Math.abs(dq) <= tol) {
     // collinear: overlap when the intervals along the line share more than a point
-    const tp = along(p, a, b);
-    const tq = along(q, a, b);
+    const tp = alongLine(xy, p, a, b);
+    const tq = alongLine(xy, q, a, b);
     const lo = Math.max(0, Math.min(tp, tq));
     const hi = Math.min(1, Math.max(tp, tq));
-    const len = Math.hypot(X(b) - X(a), Y(b) - Y(a));
+    const len = Math.hypot(xy[2 * b] - xy[2 * a], xy[2 * b + 1] - xy[2 * a + 1]);
     if ((hi - lo) * len > tol) {
-      out.add('error', 'creases-overlap', `${cap(ne)} and ${nf} lie on top of each other; keep one and split it at the other's vertices.`, where(e, c.fileLabel[e]));
+      out.add('error', 'creases-overlap', `${cap(creaseName(e, c.fileLabel[e]))} and ${creaseName(f, c.fileLabel[f])} lie on top of each other; keep one and split it at the other's vertices.`, where(e, c.fileLabel[e]));
       return;
     }
   }
   // an end of one crease lying on the other crease: a T-junction that was never split
-  const touches = (v: number, s: number, t: number, d: number) => Math.abs(d) <= tol && along(v, s, t) > 0 && along(v, s, t) < 1;
-  const onto: [number, number, string][] = [];
-  if (touches(p, a, b, dp)) onto.push([p, e, ne]);
-  if (touches(q, a, b, dq)) onto.push([q, e, ne]);
-  if (touches(a, p, q, da)) onto.push([a, f, nf]);
-  if (touches(b, p, q, db)) onto.push([b, f, nf]);
-  if (onto.length > 0) {
-    const [v, on, onName] = onto[0];
-    out.add(
-      'error',
-      'creases-cross',
-      `Vertex ${v} lies on ${onName} but is not one of its ends; split ${onName} at vertex ${v}.`,
-      { ...where(on, c.fileLabel[on]), vertex: v },
-    );
+  let onto = -1;
+  let on = -1;
+  if (Math.abs(dp) <= tol && strictlyBetween(alongLine(xy, p, a, b))) [onto, on] = [p, e];
+  else if (Math.abs(dq) <= tol && strictlyBetween(alongLine(xy, q, a, b))) [onto, on] = [q, e];
+  else if (Math.abs(da) <= tol && strictlyBetween(alongLine(xy, a, p, q))) [onto, on] = [a, f];
+  else if (Math.abs(db) <= tol && strictlyBetween(alongLine(xy, b, p, q))) [onto, on] = [b, f];
+  if (onto >= 0) {
+    const onName = on === e ? creaseName(e, c.fileLabel[e]) : creaseName(f, c.fileLabel[f]);
+    out.add('error', 'creases-cross', `Vertex ${onto} lies on ${onName} but is not one of its ends; split ${onName} at vertex ${onto}.`, {
+      ...where(on, c.fileLabel[on]),
+      vertex: onto,
+    });
     return;
   }
   if (((dp > tol && dq < -tol) || (dp < -tol && dq > tol)) && ((da > tol && db < -tol) || (da < -tol && db > tol))) {
     const t = dp / (dp - dq);
-    const ix = X(p) + t * (X(q) - X(p));
-    const iy = Y(p) + t * (Y(q) - Y(p));
+    const ix = xy[2 * p] + t * (xy[2 * q] - xy[2 * p]);
+    const iy = xy[2 * p + 1] + t * (xy[2 * q + 1] - xy[2 * p + 1]);
     out.add(
       'error',
       'creases-cross',
-      `${cap(ne)} and ${nf} cross at (${fmt(ix)}, ${fmt(iy)}) without a shared vertex; add a vertex there and split both.`,
+      `${cap(creaseName(e, c.fileLabel[e]))} and ${creaseName(f, c.fileLabel[f])} cross at (${fmt(ix)}, ${fmt(iy)}) without a shared vertex; add a vertex there and split both.`,
       where(e, c.fileLabel[e]),
     );
   }
 }
+
+const strictlyBetween = (t: number) => t > 0 && t < 1;
 
 // ---------------------------------------------------------------------------------------------------
 // Stage 3: topology: connectivity, faces, rim, holes, cuts
