@@ -5,9 +5,12 @@ export class UsageError extends Error {}
 
 export type OptionSpec = NonNullable<ParseArgsConfig['options']>;
 
-export function parseCommandArgs(argv: string[], options: OptionSpec) {
+export type OptionValues = Record<string, string | boolean | (string | boolean)[] | undefined>;
+
+export function parseCommandArgs(argv: string[], options: OptionSpec): { values: OptionValues; positionals: string[] } {
   try {
-    return parseArgs({ args: argv, options: { ...options, help: { type: 'boolean', short: 'h' } }, allowPositionals: true, strict: true });
+    const r = parseArgs({ args: argv, options: { ...options, help: { type: 'boolean', short: 'h' } }, allowPositionals: true, strict: true });
+    return { values: r.values as OptionValues, positionals: r.positionals };
   } catch (e) {
     throw new UsageError((e as Error).message.replace(/^TypeError \[[A-Z_]+\]: /, ''));
   }

@@ -1,0 +1,55 @@
+// The JSON shapes of solve reports on the command line (a contract: later tools parse them).
+import type { Drive, Message, Pattern, Solution, SolveReport } from '../solver/types';
+
+const DEG = 180 / Math.PI;
+
+/** JSON has no ∞: infinite or undefined numbers become null. */
+export function finite(x: number | undefined): number | null {
+  return x === undefined || !Number.isFinite(x) ? null : x;
+}
+
+export function anglesByLabel(pattern: Pattern, angles: Float64Array): Record<string, number> {
+  const out: Record<string, number> = {};
+  for (const c of pattern.creases) out[c.label] = angles[c.index] * DEG;
+  return out;
+}
+
+export function solutionJson(pattern: Pattern, s: Solution, index: number) {
+  const sensitivity: Record<string, Record<string, number>> = {};
+  for (const [free, byDrive] of s.sensitivity) {
+    const row: Record<string, number> = {};
+    for (const [drive, v] of byDrive) row[pattern.creases[drive].label] = v;
+    sensitivity[pattern.creases[free].label] = row;
+  }
+  return {
+    index,
+    angles: anglesByLabel(pattern, s.angles),
+    maxResidual: s.maxResidual,
+    matchesAssignment: s.matchesAssignment,
+    localDof: s.localDof,
+    condition: finite(s.condition),
+    signs: s.signs,
+    sensitivity,
+    vertexResiduals: Object.fromEntries(pattern.interiorVertices.map((iv, i) => [String(iv.vertex), s.vertexResiduals[i]])),
+  };
+}
+
+export function messageJson(m: Message) {
+  return { severity: m.severity, code: m.code, text: m.text, ...(m.where ? { where: m.where } : {}) };
+}
+
+export function reportJson(pattern: Pattern, drives: Drive[], report: SolveReport) {
+  const labels = (cs: number[] | undefined) => cs?.map((c) => pattern.creases[c].label);
+  return {
+    status: report.status,
+    dof: report.dof,
+    patternDof: finite(report.patternDof),
+    drives: Object.fromEntries(drives.map((d) => [pattern.creases[d.crease].label, d.value * DEG])),
+    solutions: report.solutions.map((s, i) => solutionJson(pattern, s, i + 1)),
+    ...(report.compromise ? { compromise: solutionJson(pattern, report.compromise, 0) } : {}),
+    ...(report.suggestedDrives ? { suggestedDrives: labels(report.suggestedDrives) } : {}),
+    ...(report.conflictingDrives ? { conflictingDrives: labels(report.conflictingDrives) } : {}),
+    ...(report.reachableRange ? { reachableRange: report.reachableRange.map(([a, b]) => [a * DEG, b * DEG]) } : {}),
+    messages: report.messages.map(messageJson),
+  };
+}
