@@ -17,8 +17,11 @@ function fail(code: string, text: string, field?: string): GeneratorResult {
   return { messages: [field ? { severity: 'error', code, text, where: { field } } : { severity: 'error', code, text }] };
 }
 
-/** Coordinates to 12 significant digits: readable files; the geometry moves by under 1e-11 of the size. */
-const tidy = (x: number) => (Math.abs(x) < 1e-12 ? 0 : +x.toPrecision(12));
+/**
+ * Coordinates keep full double precision: the published check values hold to 1e-9, and 12-digit rounding
+ * moves sector angles by ~1e-10°. Only round-off dust around zero is cleared.
+ */
+const tidy = (x: number) => (Math.abs(x) < 1e-12 ? 0 : x);
 
 const positive = (x: unknown): x is number => typeof x === 'number' && Number.isFinite(x) && x > 0;
 
