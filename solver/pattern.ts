@@ -884,15 +884,14 @@ function matchFileFaces(
   const startAt: number[] = [];
   for (let k = 0; k < raw.length; k++) {
     const face: unknown = raw[k];
-    const field = `faces[${k}]`;
     if (!Array.isArray(face) || face.length < 3) {
-      out.add('error', 'faces-malformed', `Face ${k} is not a cycle of at least three vertex indices.`, { field, panel: k });
+      out.add('error', 'faces-malformed', `Face ${k} is not a cycle of at least three vertex indices.`, { panel: k });
       continue;
     }
     let ok = true;
     for (const v of face) {
       if (typeof v !== 'number' || !Number.isInteger(v) || v < 0 || v >= c.nv) {
-        out.add('error', 'face-missing-vertex', `Face ${k} refers to vertex ${JSON.stringify(v) ?? String(v)}, which does not exist.`, { field, panel: k });
+        out.add('error', 'face-missing-vertex', `Face ${k} refers to vertex ${JSON.stringify(v) ?? String(v)}, which does not exist.`, { panel: k });
         ok = false;
         break;
       }
@@ -903,7 +902,7 @@ function matchFileFaces(
       const a = vs[i];
       const b = vs[(i + 1) % vs.length];
       if (!edgeOf.has(a < b ? `${a},${b}` : `${b},${a}`)) {
-        out.add('error', 'face-not-a-cycle', `Face ${k} goes from vertex ${a} to vertex ${b}, but no crease joins them.`, { field, panel: k, vertex: a });
+        out.add('error', 'face-not-a-cycle', `Face ${k} goes from vertex ${a} to vertex ${b}, but no crease joins them.`, { panel: k, vertex: a });
         ok = false;
         break;
       }
@@ -915,13 +914,13 @@ function matchFileFaces(
         'error',
         'face-mismatch',
         `Face ${k} (vertices ${listVertices(vs)}) is not a panel of the crease pattern: the creases divide the sheet differently.`,
-        { field, panel: k, vertex: vs[0] },
+        { panel: k, vertex: vs[0] },
       );
       continue;
     }
     const prev = used.get(f);
     if (prev !== undefined) {
-      out.add('error', 'duplicate-face', `Face ${k} is the same panel as face ${prev}.`, { field, panel: k });
+      out.add('error', 'duplicate-face', `Face ${k} is the same panel as face ${prev}.`, { panel: k });
       continue;
     }
     used.set(f, k);

@@ -395,7 +395,7 @@ describe('refusing malformed patterns, naming the place', () => {
     ];
     const withFaces = (faces: number[][]) => plus(PLUS_E, PLUS_V, { faces });
     expect(refused(withFaces(good.slice(0, 3)), 'face-missing').text).toContain('8');
-    expect(refused(withFaces([...good.slice(0, 3), [0, 1, 2, 3]]), 'face-not-a-cycle').where).toMatchObject({ panel: 3, field: 'faces[3]' });
+    expect(refused(withFaces([...good.slice(0, 3), [0, 1, 2, 3]]), 'face-not-a-cycle').where).toMatchObject({ panel: 3, vertex: 0 });
     expect(refused(withFaces([...good.slice(0, 3), [8, 4, 7, 3, 99]]), 'face-missing-vertex').where?.panel).toBe(3);
     expect(refused(withFaces([...good, good[0].slice().reverse()]), 'duplicate-face').where?.panel).toBe(4);
     // a cycle of creases that is not a panel: the outer rim

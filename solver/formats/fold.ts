@@ -301,9 +301,10 @@ export function writeFold(project: Project, opts: FoldWriteOptions = {}): string
     ['file_title', j(src.name)],
   ];
   if (project.notes !== undefined) entries.push(['file_description', j(project.notes)]);
-  if (!('file_classes' in extra)) entries.push(['file_classes', j(['singleModel'])]);
-  if (!('frame_classes' in extra)) entries.push(['frame_classes', j(['creasePattern'])]);
-  if (!('frame_attributes' in extra)) entries.push(['frame_attributes', j(z === undefined ? ['2D'] : ['3D'])]);
+  // the file's own classes and attributes when it had them, else ours; always in this place
+  entries.push(['file_classes', j(extra.file_classes ?? ['singleModel'])]);
+  entries.push(['frame_classes', j(extra.frame_classes ?? ['creasePattern'])]);
+  entries.push(['frame_attributes', j(extra.frame_attributes ?? (z === undefined ? ['2D'] : ['3D']))]);
   const unitIsFold = project.units !== undefined && FOLD_UNITS.includes(project.units);
   if (unitIsFold) entries.push(['frame_unit', j(project.units)]);
   entries.push(['vertices_coords', arrayLines(src.vertices.map(([x, y]) => (z === undefined ? [x, y] : [x, y, z])))]);

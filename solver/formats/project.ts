@@ -107,7 +107,8 @@ function schemaMessage(e: ErrorObject, root: unknown): Message {
   switch (e.keyword) {
     case 'required': {
       const p = String(params.missingProperty);
-      return { severity: 'error', code: 'missing-field', text: `${at} has no "${p}" field, which is required.`, where: { ...where, field: path ? `${path}.${p}` : p } };
+      const full = path ? `${path}.${p}` : p;
+      return { severity: 'error', code: 'missing-field', text: `${full} is missing; ${path ? `every entry of ${path.replace(/\[\d+\]$/, '')}` : 'a project file'} needs it.`, where: { ...where, field: full } };
     }
     case 'additionalProperties':
       return err('unknown-field', `${at} has a field "${String(params.additionalProperty)}" that this format does not have (a misspelling?).`);
@@ -311,7 +312,12 @@ export function loadPatternText(text: string, fileName?: string): LoadResult {
 /** Point a pattern message at the place in the file, in that file's own field names. */
 function withField(m: Message, format: 'project' | 'fold', hasFaces: boolean): Message {
   const w = m.where;
-  if (!w || w.field !== undefined) return m;
+  if (!w) return m;
+  if (w.field !== undefined) {
+    if (format !== 'fold') return m;
+    const renamed = w.field.replace(/^faces\b/, 'faces_vertices').replace(/^basePanel$/, 'hingeplan:basePanel');
+    return renamed === w.field ? m : { ...m, where: { ...w, field: renamed } };
+  }
   let field: string | undefined;
   if (w.crease !== undefined) field = format === 'fold' ? `edges_vertices[${w.crease}]` : `creases[${w.crease}]`;
   else if (w.panel !== undefined && hasFaces) field = format === 'fold' ? `faces_vertices[${w.panel}]` : `faces[${w.panel}]`;
