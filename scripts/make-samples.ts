@@ -1,25 +1,22 @@
 // Writes the sample patterns in samples/, each as a Hingeplan project and as FOLD.
-// Run: npx tsx scripts/make-samples.ts   (commit the outputs; tests load every sample)
-import { writeFileSync, mkdirSync } from 'node:fs';
-import { dirname, join } from 'node:path';
+// Run: npx tsx scripts/make-samples.ts   (commit the outputs; tests check the files match this script)
+import { mkdirSync, writeFileSync } from 'node:fs';
+import { dirname, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { degree5, miura, singleVertex, waterbomb, type GeneratorResult } from '../solver/generators';
 import { writeProject, type Project } from '../solver/formats/project';
 import { writeFold } from '../solver/formats/fold';
 import { CAUTIONS } from '../solver/formats/cautions';
 
-const here = dirname(fileURLToPath(import.meta.url));
-const outDir = join(here, '..', 'samples');
+export const SAMPLES_DIR = join(dirname(fileURLToPath(import.meta.url)), '..', 'samples');
+const RAD = Math.PI / 180;
 
 function take(name: string, r: GeneratorResult): Project {
   if (!r.project) throw new Error(`${name}: ${r.messages.map((m) => m.text).join('; ')}`);
   return r.project;
 }
 
-const RAD = Math.PI / 180;
-const samples: [string, Project][] = [];
-
-{
+function hingeCoupon(): Project {
   // 60/100/120/80: Kawasaki holds (60 + 120 = 100 + 80 = 180), no mirror symmetry, so the two modes differ
   const p = take('hinge-coupon', singleVertex({ sectorsDeg: [60, 100, 120, 80], radius: 50, driveDeg: 45, name: 'hinge test coupon' }));
   p.units = 'mm';
@@ -29,9 +26,10 @@ const samples: [string, Project][] = [];
     'One degree of freedom: the drive on the valley c0 fixes the state; the mountain/valley assignment (c0 V; c1, c2, c3 M) ' +
     'picks the branch in which c1 and c3 fold equally. c0 has hinge stops at 0 and 170 degrees. ' +
     CAUTIONS;
-  samples.push(['hinge-coupon', p]);
+  return p;
 }
-{
+
+function sunshadePanel(): Project {
   const p = take('sunshade-panel', miura({ rows: 4, cols: 6, a: 40, b: 30, alphaDeg: 70, driveDeg: 60, name: 'sunshade panel' }));
   p.units = 'mm';
   p.notes =
@@ -40,18 +38,20 @@ const samples: [string, Project][] = [];
     'One degree of freedom once folded: one zigzag drive (z6_4, valley, 60 degrees) fixes it; at the flat state itself the sheet can also leave ' +
     'along single straight crease lines, so the solver may list several solutions: pick the one that matches the assignment. ' +
     CAUTIONS;
-  samples.push(['sunshade-panel', p]);
+  return p;
 }
-{
+
+function twoMotorRig(): Project {
   const p = take('two-motor-rig', degree5({ radius: 60, name: 'two-motor rig' }));
   p.units = 'mm';
   p.notes =
     'Two-motor rig: a generic degree-5 vertex, sectors 70/80/65/75/70 degrees, all creases unassigned. Two degrees of freedom (5 - 3): ' +
     'two motors drive c0 (40 degrees) and c2 (-30 degrees); the vertex then has two assembly branches for these values and the solver lists both. ' +
     CAUTIONS;
-  samples.push(['two-motor-rig', p]);
+  return p;
 }
-{
+
+function gripperCell(): Project {
   const p = take('gripper-cell', waterbomb({ size: 80, name: 'gripper cell' }));
   p.units = 'mm';
   p.notes =
@@ -60,12 +60,31 @@ const samples: [string, Project][] = [];
     'the state; this file drives d0, d1 and d2 to 60 degrees (the symmetric closing). With fewer drives the solver reports the state as ' +
     'underspecified and suggests creases to drive. ' +
     CAUTIONS;
-  samples.push(['gripper-cell', p]);
+  return p;
 }
 
-mkdirSync(outDir, { recursive: true });
-for (const [name, project] of samples) {
-  writeFileSync(join(outDir, `${name}.hingeplan.json`), writeProject(project));
-  writeFileSync(join(outDir, `${name}.fold`), writeFold(project));
-  console.log(`wrote samples/${name}.hingeplan.json and samples/${name}.fold`);
+/** The samples as [file stem, project]. */
+export function sampleProjects(): [string, Project][] {
+  return [
+    ['hinge-coupon', hingeCoupon()],
+    ['sunshade-panel', sunshadePanel()],
+    ['two-motor-rig', twoMotorRig()],
+    ['gripper-cell', gripperCell()],
+  ];
+}
+
+/** Both files of every sample: [file name, text]. */
+export function sampleFiles(): [string, string][] {
+  return sampleProjects().flatMap(([name, project]): [string, string][] => [
+    [`${name}.hingeplan.json`, writeProject(project)],
+    [`${name}.fold`, writeFold(project)],
+  ]);
+}
+
+if (process.argv[1] && resolve(process.argv[1]) === fileURLToPath(import.meta.url)) {
+  mkdirSync(SAMPLES_DIR, { recursive: true });
+  for (const [file, text] of sampleFiles()) {
+    writeFileSync(join(SAMPLES_DIR, file), text);
+    console.log(`wrote samples/${file}`);
+  }
 }
