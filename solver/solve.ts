@@ -89,7 +89,7 @@ export function followRay(
   let x: Float64Array = Float64Array.from(base);
   for (let c = 0; c < x.length; c++) if (problem.unknownOf[c] >= 0) x[c] = scaleAt(t) * tangent[c];
   setDrives(x, t);
-  let res = problem.solve(x, { maxStep: 0.05, maxIterations: 40, wrap: false });
+  const res = problem.solve(x, { maxStep: 0.05, maxIterations: 40, wrap: false });
   if (!res.converged) return { reached: 0 };
   x = res.angles;
   let prev: Float64Array | null = null;
@@ -277,7 +277,7 @@ export function solveDrives(pattern: Pattern, drives: Drive[], options: SolveOpt
     };
   };
 
-  let excludedCache: Solution[] | undefined;
+  const held: { excluded?: Solution[] } = {};
   const finish = (status: SolveStatus, dof: number, solutions: Solution[], extra: Partial<SolveReport> = {}): SolveReport => ({
     status,
     dof,
@@ -285,7 +285,7 @@ export function solveDrives(pattern: Pattern, drives: Drive[], options: SolveOpt
     solutions,
     messages,
     iterations,
-    ...(excludedCache?.length ? { excluded: excludedCache } : {}),
+    ...(held.excluded?.length ? { excluded: held.excluded } : {}),
     ...extra,
   });
 
@@ -297,7 +297,7 @@ export function solveDrives(pattern: Pattern, drives: Drive[], options: SolveOpt
     }
   }
   const excludedSolutions = () => excluded.map((f) => toSolution(f, analyze(f.angles).local));
-  excludedCache = excluded.length ? excludedSolutions() : undefined;
+  held.excluded = excluded.length ? excludedSolutions() : undefined;
   if (excluded.length) {
     const v = limitViolations(pattern, excluded[0].angles);
     messages.push({
