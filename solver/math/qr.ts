@@ -138,10 +138,24 @@ export function nullBasisFromQR(f: PivotedQR): number[][] {
   return out;
 }
 
-/** Largest and smallest singular values of R11 (power and inverse iteration); equal to those of A's range part. */
+/**
+ * Largest and smallest non-zero singular values of A (power and inverse iteration). When A is rank
+ * deficient they are those of the r × n block [R11 R12], found from a second QR of its transpose.
+ */
 export function singularValueBounds(f: PivotedQR, iterations = 60): { max: number; min: number } {
   const r = f.rank;
   if (r === 0) return { max: 0, min: 0 };
+  if (r < f.n) {
+    const t = new Float64Array(f.n * r);
+    for (let i = 0; i < r; i++) for (let j = i; j < f.n; j++) t[j + i * f.n] = rAt(f, i, j);
+    const g = pivotedQR(t, f.n, r, 0);
+    if (g.rank === r) return triangleBounds(g, iterations);
+  }
+  return triangleBounds(f, iterations);
+}
+
+function triangleBounds(f: PivotedQR, iterations: number): { max: number; min: number } {
+  const r = f.rank;
   const x = new Float64Array(r).map((_, i) => 1 + ((i * 7919) % 11) / 11);
   const t = new Float64Array(r);
   const u = new Float64Array(r);
