@@ -534,7 +534,7 @@ interface Faces {
   cycles: number[][];
   area: number[];
   outer: number;
-  /** outgoing half-edges of each vertex, ccw by angle from −π */
+  /** outgoing half-edges of each vertex, ccw by angle from +x */
   around: number[][];
   angle: Float64Array;
 }
@@ -553,7 +553,9 @@ function traceFaces(c: Checked): Faces {
   for (let h = 0; h < nh; h++) {
     const a = org[h];
     const b = dst(h);
-    angle[h] = Math.atan2(xy[2 * b + 1] - xy[2 * a + 1], xy[2 * b] - xy[2 * a]);
+    // in [0, 2π): a vertex's creases are then listed ccw starting from the +x direction
+    const t = Math.atan2(xy[2 * b + 1] - xy[2 * a + 1], xy[2 * b] - xy[2 * a]);
+    angle[h] = t < 0 ? t + TWO_PI : t;
     around[a].push(h);
   }
   const pos = new Int32Array(nh);

@@ -115,7 +115,7 @@ describe('deriving a valid pattern', () => {
     expect(p.interiorVertices.length).toBe(1);
     const iv = p.interiorVertices[0];
     expect(iv.vertex).toBe(4);
-    expect(iv.creases.map((c) => p.creases[c].label)).toEqual(['south', 'east', 'north', 'west']);
+    expect(iv.creases.map((c) => p.creases[c].label)).toEqual(['east', 'north', 'west', 'south']); // from +x
     for (let k = 1; k < iv.directions.length; k++) expect(iv.directions[k]).toBeGreaterThan(iv.directions[k - 1]);
     expect(iv.directions[iv.directions.length - 1] - iv.directions[0]).toBeLessThan(2 * Math.PI);
     for (const s of iv.sectors) expect(s).toBeCloseTo(Math.PI / 2, 14);
