@@ -38,7 +38,7 @@ export interface ConeResult {
   partial: boolean;
 }
 
-export const CONE_MAX_VARIABLES = 900;
+export const CONE_MAX_VARIABLES = 400;
 
 export function mulberry32(seed: number): () => number {
   let s = seed >>> 0;

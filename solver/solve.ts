@@ -222,6 +222,8 @@ export function solveDrives(pattern: Pattern, drives: Drive[], options: SolveOpt
       if (found.length >= maxSolutions) break;
       consider(followRay(problem, drives, ray.tangent, base).result);
     }
+    // too large for the dense cone: follow the mountain/valley direction itself from flat
+    if (cone.partial) consider(followRay(problem, drives, assignmentDirection(pattern), base).result);
   }
 
   // 3. the assignment's own direction
