@@ -47,6 +47,7 @@ export function reportJson(pattern: Pattern, drives: Drive[], report: SolveRepor
     drives: Object.fromEntries(drives.map((d) => [pattern.creases[d.crease].label, d.value * DEG])),
     solutions: report.solutions.map((s, i) => solutionJson(pattern, s, i + 1)),
     ...(report.compromise ? { compromise: solutionJson(pattern, report.compromise, 0) } : {}),
+    ...(report.excluded?.length ? { excluded: report.excluded.map((s, i) => solutionJson(pattern, s, i + 1)) } : {}),
     ...(report.suggestedDrives ? { suggestedDrives: labels(report.suggestedDrives) } : {}),
     ...(report.conflictingDrives ? { conflictingDrives: labels(report.conflictingDrives) } : {}),
     ...(report.reachableRange ? { reachableRange: report.reachableRange.map(([a, b]) => [a * DEG, b * DEG]) } : {}),
