@@ -28,6 +28,10 @@ const Ajv = ((Ajv2020Module as unknown as { default?: unknown }).default ?? Ajv2
   errors?: unknown;
 };
 
+// tests edit arbitrary JSON documents in place
+// eslint-disable-next-line @typescript-eslint/no-explicit-any
+type Json = Record<string, any>;
+
 const code = (ms: Message[], c: string) => ms.find((m) => m.code === c);
 function refusedWith(r: { project?: unknown; messages: Message[] }, c: string): Message {
   expect(r.project, JSON.stringify(r.messages)).toBeUndefined();
@@ -48,7 +52,7 @@ function coupon(): Project {
 }
 
 /** Replace one part of a valid project file's JSON and return the text. */
-function editedProject(edit: (o: Record<string, any>) => void): string {
+function editedProject(edit: (o: Json) => void): string {
   const o = JSON.parse(writeProject(coupon()));
   edit(o);
   return JSON.stringify(o, null, 2);
@@ -130,7 +134,7 @@ describe('project file', () => {
   });
 
   it('turns schema violations into messages naming the JSON path', () => {
-    const cases: [string, (o: Record<string, any>) => void, string, object][] = [
+    const cases: [string, (o: Json) => void, string, object][] = [
       ['bad-assignment', (o) => (o.creases[3].assignment = 'Q'), 'creases[3].assignment', { crease: 3 }],
       ['unknown-field', (o) => (o.creases[2].lable = 'x'), 'creases[2]', { crease: 2 }],
       ['missing-field', (o) => delete o.creases[5].vertices, 'creases[5].vertices', { crease: 5 }],

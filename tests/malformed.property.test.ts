@@ -150,14 +150,11 @@ function locate(root: unknown, path: number[]): { parent: Record<string, unknown
 }
 
 function mutate(text: string, m: Mutation): string {
-  if (m.kind === 'truncate') return text.slice(0, m.pos % (text.length + 1));
-  if (m.kind === 'insert') {
+  if ('pos' in m) {
     const p = m.pos % (text.length + 1);
-    return text.slice(0, p) + m.text + text.slice(p);
-  }
-  if (m.kind === 'cut') {
-    const p = m.pos % (text.length + 1);
-    return text.slice(0, p) + text.slice(p + 1 + (m.text.length % 7));
+    if (m.kind === 'truncate') return text.slice(0, p);
+    if (m.kind === 'insert') return text.slice(0, p) + m.text + text.slice(p);
+    return text.slice(0, p) + text.slice(p + 1 + (m.pos % 7));
   }
   const root = JSON.parse(text);
   const at = locate(root, m.path);
