@@ -280,6 +280,8 @@ describe('FOLD files', () => {
     const p = parseFold(JSON.stringify(square)).project!;
     const text = writeFold(p, { foldAngles: Float64Array.from([0, 0, 0, 0, -Math.PI / 3]) });
     expect(JSON.parse(text).edges_foldAngle).toEqual([0, 0, 0, 0, -60]);
+    expect(JSON.parse(text)['hingeplan:cautions']).toBe(CAUTIONS);
+    expect(parseFold(text).project!.fold!.extra).not.toHaveProperty('hingeplan:cautions');
   });
 
   it('accepts 3D coordinates with one common z and writes them back the same; refuses a folded state', () => {

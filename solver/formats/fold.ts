@@ -9,10 +9,12 @@
 //   hingeplan:drives        [{crease, angle}] in degrees
 //   hingeplan:basePanel     index into faces_vertices (or the derived panel order)
 //   hingeplan:units         free-text units when frame_unit cannot say them
+//   hingeplan:cautions      the cautions line, written with solved fold angles (ignored on reading)
 import type { Assignment, HingeLimit, Message, PatternSource } from '../types';
 import type { DriveSpec } from '../drives';
 import type { Project } from './project';
 import { readJsonText } from './limits';
+import { CAUTIONS } from './cautions';
 
 export const FOLD_SPEC = 1.1;
 export const FOLD_CREATOR = 'Hingeplan';
@@ -37,6 +39,7 @@ const CONSUMED = new Set([
   `${NS}drives`,
   `${NS}basePanel`,
   `${NS}units`,
+  `${NS}cautions`,
 ]);
 
 const DEG = 180 / Math.PI;
@@ -313,6 +316,8 @@ export function writeFold(project: Project, opts: FoldWriteOptions = {}): string
   const angles = opts.foldAngles ?? project.foldAngles;
   if (angles !== undefined && angles.length === src.edges.length) {
     entries.push(['edges_foldAngle', j(Array.from(angles, (r) => (Number.isFinite(r) ? toDegrees(r) : 0)))]);
+    // a folded state is a result: it travels with the cautions
+    if (opts.foldAngles !== undefined) entries.push([`${NS}cautions`, j(CAUTIONS)]);
   }
   if (src.faces !== undefined) entries.push(['faces_vertices', arrayLines(src.faces)]);
   if (src.labels.some((l) => l !== undefined)) entries.push([`${NS}edges_label`, j(src.edges.map((_, k) => src.labels[k] ?? null))]);
