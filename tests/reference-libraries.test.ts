@@ -53,7 +53,7 @@ describe('pivoted QR agrees with ml-matrix SVD (rank, null space, extreme singul
         const v = Array.from({ length: n }, rand);
         for (let i = 0; i < m; i++) for (let j = 0; j < n; j++) A.set(i, j, A.get(i, j) + u[i] * v[j]);
       }
-      const svd = new SingularValueDecomposition(A);
+      const svd = new SingularValueDecomposition(A, { autoTranspose: true });
       const sv = svd.diagonal;
       const rankSvd = sv.filter((s) => s > 1e-8).length;
       const colMajor = new Float64Array(m * n);
