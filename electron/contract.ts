@@ -5,6 +5,9 @@
 
 import { z } from 'zod';
 
+// The renderer's CSP forbids eval; zod's compiled parsers use `new Function`, so parse without them everywhere.
+z.config({ jitless: true });
+
 // ---------- shared pieces ----------
 
 const finite = z.number();

@@ -2,15 +2,29 @@
 // answer into a contract value (degrees, labels, no typed arrays). Plain functions over a small cache of
 // built patterns and computed paths, so tests can call them in-process and the worker runs the same code.
 
-import type { Drive, Pattern, PatternSource, Solution, SolveReport } from '../solver/types';
-import { buildPattern } from '../solver/pattern';
-import { resolveDrives } from '../solver/drives';
-import { solveDrives } from '../solver/solve';
-import { foldedShape } from '../solver/shape';
-import { loadPatternText, writeProject, type Project } from '../solver/formats/project';
-import { writeFold } from '../solver/formats/fold';
-import { degree5, miura, singleVertex, waterbomb, type GeneratorResult } from '../solver/generators';
-import { shapeToJSON, shapeToOBJ, shapeToSTL } from '../solver/formats/shape-export';
+import {
+  buildPattern,
+  degree5,
+  foldedShape,
+  loadPatternText,
+  miura,
+  resolveDrives,
+  shapeToJSON,
+  shapeToOBJ,
+  shapeToSTL,
+  singleVertex,
+  solveDrives,
+  waterbomb,
+  writeFold,
+  writeProject,
+  type Drive,
+  type Pattern,
+  type PatternSource,
+  type Project,
+  type Solution,
+  type SolveReport,
+} from '../solver';
+import type { GeneratorResult } from '../solver/generators';
 import {
   DriveSpecSchema,
   ExportKindSchema,

@@ -1,0 +1,245 @@
+// The window: tool bar, drives and solutions on the left, the flat sheet and the folded shape in the
+// middle with the path below, the crease and the hinge table on the right. The views only draw the state;
+// the controller does the work.
+
+import { useEffect, useMemo, useRef, useState } from 'react';
+import type { Controller } from './controller';
+import { useStore } from './state/store';
+import { canRedo, canUndo } from './state/history';
+import { isDirty } from './state/app';
+import { hingeRows, hingeTableCsv, shownState } from './state/display';
+import { renameCrease, setBasePanel, setCreaseLimit, addDrive, removeDrive, creaseIndexByLabel } from './state/document';
+import { derivePattern, limitViolations, shapeFor } from './geometry';
+import { shortcutFor } from './shortcuts';
+import { SheetView, Legend } from './views/SheetView';
+import { FoldedView } from './views/FoldedView';
+import { DrivePanel } from './views/DrivePanel';
+import { SolutionCards } from './views/SolutionCards';
+import { HingeTable } from './views/HingeTable';
+import { Inspector } from './views/Inspector';
+import { PathPanel } from './views/PathPanel';
+import { NewDialog, ExportDialog } from './views/Dialogs';
+import { Notices } from './views/Notices';
+
+function useElementHeight(): [React.RefObject<HTMLDivElement | null>, number] {
+  const ref = useRef<HTMLDivElement>(null);
+  const [h, setH] = useState(400);
+  useEffect(() => {
+    const el = ref.current;
+    if (!el || typeof ResizeObserver === 'undefined') return;
+    const ro = new ResizeObserver(() => setH(Math.max(120, el.clientHeight)));
+    ro.observe(el);
+    setH(Math.max(120, el.clientHeight));
+    return () => ro.disconnect();
+  }, []);
+  return [ref, h];
+}
+
+export function App({ controller }: { controller: Controller }) {
+  const state = useStore(controller.store, (s) => s);
+  const dispatch = controller.store.dispatch;
+  const doc = state.doc;
+  const project = doc?.history.present ?? null;
+  const derived = useMemo(() => (project ? derivePattern(project.source) : null), [project]);
+  const pattern = derived?.pattern;
+  const creaseCount = project?.source.edges.length ?? 0;
+  const shown = useMemo(() => shownState(state, creaseCount), [state, creaseCount]);
+  const violations = useMemo(
+    () => (project && pattern ? limitViolations(project, pattern, shown.anglesDeg) : { creases: new Set<number>(), panels: new Set<number>() }),
+    [project, pattern, shown.anglesDeg],
+  );
+  const rows = useMemo(() => (project ? hingeRows(project, shown) : []), [project, shown]);
+  const mismatch = useMemo(() => (pattern && project ? shapeFor(pattern, shown.anglesDeg, project.source.basePanel).maxMismatch : undefined), [pattern, project, shown.anglesDeg]);
+  const [tableRef, tableHeight] = useElementHeight();
+
+  useEffect(() => {
+    const onKey = (e: KeyboardEvent) => {
+      const t = e.target as HTMLElement | null;
+      const inTextField = !!t && (t.tagName === 'INPUT' || t.tagName === 'TEXTAREA' || t.tagName === 'SELECT' || t.isContentEditable) && (t as HTMLInputElement).type !== 'range' && (t as HTMLInputElement).type !== 'checkbox';
+      const command = shortcutFor({ key: e.key, ctrlKey: e.ctrlKey, metaKey: e.metaKey, shiftKey: e.shiftKey, altKey: e.altKey, inTextField });
+      if (!command) return;
+      if (controller.store.getState().dialog && command !== 'cancel-job') return;
+      e.preventDefault();
+      void controller.command(command);
+    };
+    window.addEventListener('keydown', onKey);
+    return () => window.removeEventListener('keydown', onKey);
+  }, [controller]);
+
+  const basePanel = project?.source.basePanel ?? pattern?.basePanel ?? 0;
+  const selected = state.selectedCrease;
+
+  return (
+    <div className="app">
+      <header className="toolbar" role="toolbar" aria-label="Document">
+        <span className="brand">Hingeplan</span>
+        <button onClick={() => dispatch({ type: 'dialog', dialog: 'new' })} title="New pattern from a generator (Ctrl+N)">New…</button>
+        <button onClick={() => void controller.open('any')} title="Open a project or FOLD file (Ctrl+O)">Open…</button>
+        <button onClick={() => void controller.open('fold')} title="Import a FOLD file (Ctrl+I)">Import FOLD…</button>
+        <button onClick={() => void controller.save(false)} disabled={!doc} title="Save (Ctrl+S)">Save</button>
+        <button onClick={() => void controller.save(true)} disabled={!doc} title="Save as (Ctrl+Shift+S)">Save as…</button>
+        <button onClick={() => dispatch({ type: 'dialog', dialog: 'export' })} disabled={!doc} title="Export tables, FOLD, OBJ, STL (Ctrl+E)">Export…</button>
+        <span className="sep" />
+        <button onClick={() => controller.undo()} disabled={!doc || !canUndo(doc.history)} title="Undo (Ctrl+Z)">Undo</button>
+        <button onClick={() => controller.redo()} disabled={!doc || !canRedo(doc.history)} title="Redo (Ctrl+Shift+Z)">Redo</button>
+        <span className="doc-title" data-testid="doc-title">
+          {doc ? (
+            <>
+              {doc.fileName}
+              {isDirty(doc) && <span className="edited" title="unsaved changes"> · edited</span>}
+              {pattern && <span className="doc-facts"> · {pattern.creases.filter((c) => c.assignment !== 'B').length} creases, {pattern.panels.length} panels{project?.units ? `, ${project.units}` : ''}</span>}
+            </>
+          ) : (
+            'no document'
+          )}
+        </span>
+      </header>
+      <Notices notices={state.notices} onDismiss={(id) => dispatch({ type: 'dismiss-notice', id })} onRestore={(id) => void controller.restoreRecovery(id)} onDiscardRecovery={(id) => void controller.discardRecovery(id)} />
+      {state.editError && (
+        <div className="edit-error" role="alert">
+          {state.editError}
+          <button className="icon-button" onClick={() => dispatch({ type: 'edit-refused', message: '' })} aria-label="dismiss">×</button>
+        </div>
+      )}
+      {project && pattern ? (
+        <main className="workspace">
+          <aside className="left">
+            <DrivePanel
+              drives={project.drives}
+              result={state.solve.result}
+              solveStatus={state.solve.status}
+              solveError={state.solve.status === 'error' ? state.solve.error : undefined}
+              shown={shown}
+              onChange={(label, v, dragging) => controller.setDrive(label, v, dragging)}
+              onDragEnd={() => dispatch({ type: 'seal-edit' })}
+              onRemove={(label) => controller.edit((p) => removeDrive(p, label))}
+              onAddSuggested={(label) => {
+                const i = creaseIndexByLabel(project, label);
+                if (i !== undefined) controller.edit((p) => addDrive(p, i, 0));
+              }}
+            />
+            {state.solve.result && (
+              <SolutionCards
+                pattern={pattern}
+                solutions={state.solve.result.solutions}
+                selected={state.selectedSolution}
+                active={shown.source === 'solution'}
+                basePanel={basePanel}
+                onSelect={(i) => dispatch({ type: 'select-solution', index: i })}
+              />
+            )}
+          </aside>
+          <section className="center">
+            <div className="views">
+              <div className="view-box">
+                <div className="view-toolbar">
+                  <span className="view-caption">Flat sheet, tinted by fold angle</span>
+                </div>
+                <SheetView
+                  pattern={pattern}
+                  project={project}
+                  anglesDeg={shown.anglesDeg}
+                  selectedCrease={selected}
+                  hoverCrease={state.hoverCrease}
+                  violatingPanels={violations.panels}
+                  onHover={(i) => dispatch({ type: 'hover-crease', index: i })}
+                  onSelect={(i) => dispatch({ type: 'select-crease', index: i })}
+                />
+                <Legend />
+              </div>
+              <div className="view-box">
+                <FoldedView
+                  pattern={pattern}
+                  project={project}
+                  anglesDeg={shown.anglesDeg}
+                  caption={`Folded: ${shown.caption}`}
+                  selectedCrease={selected}
+                  violatingPanels={violations.panels}
+                  ghost={state.view.ghost}
+                  labels={state.view.labels}
+                  fitRequest={state.view.fitRequest}
+                  maxMismatch={mismatch}
+                  onToggleGhost={() => dispatch({ type: 'toggle-ghost' })}
+                  onToggleLabels={() => dispatch({ type: 'toggle-labels' })}
+                  onFit={() => dispatch({ type: 'fit-view' })}
+                />
+              </div>
+            </div>
+            <PathPanel
+              project={project}
+              path={state.path}
+              branches={state.branches}
+              scrubIndex={state.scrubIndex}
+              selectedCrease={selected}
+              defaults={controller.pathDefaults}
+              onCompute={(r) => void controller.computePath(r)}
+              onCancel={() => void controller.cancelPath()}
+              onScrub={(i, done) => {
+                if (i !== null) dispatch({ type: 'scrub', index: i });
+                if (done) controller.commitScrub();
+              }}
+              onLoadBranches={() => void controller.loadBranches()}
+            />
+          </section>
+          <aside className="right">
+            {selected !== null && pattern.creases[selected] && (
+              <Inspector
+                pattern={pattern}
+                project={project}
+                crease={selected}
+                angleDeg={shown.anglesDeg[selected] ?? 0}
+                rate={shown.rates?.[selected] ?? null}
+                onToggleDrive={(i) => controller.toggleDrive(i)}
+                onBasePanel={(p) => controller.edit((pr) => setBasePanel(pr, p))}
+                onClose={() => dispatch({ type: 'select-crease', index: null })}
+              />
+            )}
+            <div className="table-holder" ref={tableRef}>
+              <HingeTable
+                rows={rows}
+                selectedCrease={selected}
+                caption={`Angles of the ${shown.caption}.`}
+                height={Math.max(120, tableHeight - 80)}
+                onSelect={(i) => dispatch({ type: 'select-crease', index: i })}
+                onRename={(i, label) => controller.edit((p) => renameCrease(p, i, label))}
+                onLimit={(i, limit) => controller.edit((p) => setCreaseLimit(p, i, limit))}
+                onCopy={(r) => void controller.copyText(hingeTableCsv(r, shown.caption))}
+              />
+            </div>
+          </aside>
+        </main>
+      ) : (
+        <main className="empty">
+          {derived && !pattern ? (
+            <p>The pattern has errors and cannot be shown.</p>
+          ) : (
+            <div className="empty-start">
+              <p>Open a pattern, import a FOLD file, or start from a generator.</p>
+              <div>
+                <button className="primary" onClick={() => dispatch({ type: 'dialog', dialog: 'new' })}>New from a generator…</button>
+                <button onClick={() => void controller.open('any')}>Open…</button>
+              </div>
+            </div>
+          )}
+        </main>
+      )}
+      {state.dialog === 'new' && (
+        <NewDialog
+          onClose={() => dispatch({ type: 'dialog', dialog: null })}
+          onCreate={async (spec) => {
+            if (!(await controller.confirmDiscard('start a new pattern'))) return null;
+            const r = await controller.api.newDocument(spec);
+            if (!r.ok) return [{ severity: 'error', code: r.error.code, text: r.error.message }];
+            if (r.value.status === 'failed') return r.value.messages;
+            controller.opened(r.value);
+            dispatch({ type: 'dialog', dialog: null });
+            return null;
+          }}
+        />
+      )}
+      {state.dialog === 'export' && (
+        <ExportDialog hasPath={!!state.path.result} onClose={() => dispatch({ type: 'dialog', dialog: null })} onExport={(k, o) => controller.exportFile(k, o)} />
+      )}
+    </div>
+  );
+}

@@ -1,0 +1,462 @@
+// Everything the interface asks of the main process, in one place: opening and saving, solving when the
+// drives change, paths with progress and cancel, exports, the unsaved-changes prompt and recovery copies.
+// Views call these methods; results come back as actions on the store.
+
+import type { HingeplanApi } from './api';
+import type { DriveSpec, ExportKind, ExportOptionsDto, GeneratorSpec, MenuCommand, OpenResult, ProjectDto, SweepOptionsDto } from '../electron/contract';
+import { currentProject, isDirty, type AppState } from './state/app';
+import type { Store } from './state/store';
+import { addDrive, creaseIndexByLabel, removeDrive, setDriveAngle, type Edit } from './state/document';
+import { shownState } from './state/display';
+
+let counter = 0;
+export function newId(prefix: string): string {
+  counter += 1;
+  return `${prefix}-${Date.now().toString(36)}-${counter}`;
+}
+
+/** How long edits wait before their recovery copy is written. */
+export const RECOVERY_DELAY_MS = 2000;
+
+export interface PathRequest {
+  drive?: string;
+  fromDeg?: number;
+  toDeg?: number;
+  stepDeg?: number;
+  branchId?: string;
+}
+
+export class Controller {
+  private patternKeys = new WeakMap<object, string>();
+  private patternsSent = new Map<string, Promise<boolean>>();
+  private solvedFor: { source: unknown; drives: unknown } | null = null;
+  private recoveryTimer: ReturnType<typeof setTimeout> | undefined;
+  private lastDocState = '';
+  private unsubscribe: (() => void)[] = [];
+  /** path options last used, so "compute path" repeats them */
+  pathDefaults: Required<Omit<PathRequest, 'drive' | 'branchId'>> = { fromDeg: 0, toDeg: 180, stepDeg: 1 };
+
+  constructor(
+    readonly api: HingeplanApi,
+    readonly store: Store,
+  ) {}
+
+  get state(): AppState {
+    return this.store.getState();
+  }
+
+  start(): void {
+    this.unsubscribe.push(this.store.subscribe(() => this.onStateChange()));
+    this.unsubscribe.push(
+      this.api.onProgress((e) => {
+        this.store.dispatch({ type: 'path-progress', requestId: e.requestId, done: e.done, total: e.total });
+      }),
+    );
+    this.unsubscribe.push(this.api.onMenuCommand((e) => void this.command(e.command, e.path)));
+  }
+
+  stop(): void {
+    for (const u of this.unsubscribe) u();
+    this.unsubscribe = [];
+    clearTimeout(this.recoveryTimer);
+  }
+
+  // ---------- documents ----------
+
+  async startup(): Promise<void> {
+    const r = await this.api.startup({});
+    if (!r.ok) return this.fail('Hingeplan could not start', r.error.message);
+    const info = r.value;
+    if (info.startupMessages.length) this.store.dispatch({ type: 'notice', kind: 'error', title: 'The startup document could not be opened', messages: info.startupMessages });
+    if (info.document) this.opened({ status: 'opened', document: info.document });
+    if (info.recovery.length) {
+      this.store.dispatch({
+        type: 'notice',
+        kind: 'info',
+        title: 'Unsaved edits from an earlier session were kept',
+        messages: info.recovery.map((e) => ({ severity: 'info', code: `recovery:${e.id}`, text: `${e.documentName}, ${new Date(e.savedAt).toLocaleString()}` })),
+      });
+    }
+  }
+
+  /** Apply an open/new result: show the document, or the readers' messages saying what is wrong. */
+  opened(result: OpenResult): boolean {
+    if (result.status === 'canceled') return false;
+    if (result.status === 'failed') {
+      this.store.dispatch({ type: 'notice', kind: 'error', title: `${result.fileName} could not be opened`, messages: result.messages });
+      return false;
+    }
+    const doc = result.document;
+    this.solvedFor = null;
+    this.store.dispatch({ type: 'document-opened', document: doc, id: newId('doc') });
+    const problems = doc.messages.filter((m) => m.severity !== 'info');
+    if (problems.length) this.store.dispatch({ type: 'notice', kind: 'warning', title: `${doc.fileName}: the readers reported`, messages: problems });
+    this.store.dispatch({ type: 'fit-view' });
+    if (doc.computePath && doc.project.drives.length === 1) void this.computePath();
+    if (doc.recovered) this.scheduleRecovery();
+    return true;
+  }
+
+  /** Ask before an action would drop unsaved edits. Resolves true when it may go ahead. */
+  async confirmDiscard(action: string): Promise<boolean> {
+    const doc = this.state.doc;
+    if (!doc || !isDirty(doc)) return true;
+    const r = await this.api.confirmDiscard({ documentName: doc.fileName, action });
+    if (!r.ok) return false;
+    if (r.value.choice === 'cancel') return false;
+    if (r.value.choice === 'save') return this.save(false);
+    await this.clearRecovery();
+    return true;
+  }
+
+  async open(format: 'any' | 'fold' = 'any'): Promise<void> {
+    if (!(await this.confirmDiscard(format === 'fold' ? 'import a FOLD file' : 'open another file'))) return;
+    const r = await this.api.open({ format });
+    if (!r.ok) return this.fail('The file could not be opened', r.error.message);
+    this.opened(r.value);
+  }
+
+  async openRecent(path: string): Promise<void> {
+    if (!(await this.confirmDiscard('open another file'))) return;
+    const r = await this.api.openRecent({ path });
+    if (!r.ok) return this.fail('The file could not be opened', r.error.message);
+    this.opened(r.value);
+  }
+
+  async newDocument(spec: GeneratorSpec): Promise<boolean> {
+    if (!(await this.confirmDiscard('start a new pattern'))) return false;
+    const r = await this.api.newDocument(spec);
+    if (!r.ok) {
+      this.fail('The pattern could not be made', r.error.message);
+      return false;
+    }
+    return this.opened(r.value);
+  }
+
+  async restoreRecovery(id: string): Promise<void> {
+    if (!(await this.confirmDiscard('restore the recovered edits'))) return;
+    const r = await this.api.restoreRecovery({ id });
+    if (!r.ok) return this.fail('The recovery copy could not be read', r.error.message);
+    this.opened(r.value);
+  }
+
+  async discardRecovery(id: string): Promise<void> {
+    await this.api.clearRecovery({ id });
+  }
+
+  /** Save; resolves true when the document is on disk. */
+  async save(saveAs: boolean): Promise<boolean> {
+    const doc = this.state.doc;
+    if (!doc) return false;
+    const project = doc.history.present;
+    const r = await this.api.save({ project, filePath: doc.filePath, saveAs: saveAs || doc.format === 'fold', suggestedName: doc.fileName });
+    if (!r.ok) {
+      this.fail('The document was not saved', r.error.message);
+      return false;
+    }
+    if (r.value.status === 'canceled') return false;
+    if (r.value.status === 'failed') {
+      this.fail('The document was not saved', r.value.message);
+      return false;
+    }
+    this.store.dispatch({ type: 'saved', filePath: r.value.filePath, fileName: r.value.fileName, project });
+    await this.clearRecovery();
+    return true;
+  }
+
+  async exportFile(kind: ExportKind, options: ExportOptionsDto): Promise<string | null> {
+    const doc = this.state.doc;
+    const project = currentProject(this.state);
+    if (!doc || !project) return null;
+    const key = await this.ensurePattern(project);
+    if (!key) return null;
+    const shown = this.shownAngles();
+    const r = await this.api.exportFile({
+      kind,
+      project,
+      key,
+      pathId: this.state.path.result?.pathId,
+      options: { ...options, anglesDeg: options.anglesDeg ?? shown ?? undefined, basePanel: project.source.basePanel },
+      suggestedName: doc.fileName,
+    });
+    if (!r.ok) {
+      this.fail('The export failed', r.error.message);
+      return null;
+    }
+    if (r.value.status === 'failed') {
+      this.fail('The export failed', r.value.message);
+      return null;
+    }
+    if (r.value.status === 'canceled') return null;
+    this.store.dispatch({ type: 'notice', kind: 'info', title: `Exported ${r.value.fileName}`, messages: [{ severity: 'info', code: 'exported', text: r.value.filePath }] });
+    return r.value.filePath;
+  }
+
+  async copyText(text: string): Promise<boolean> {
+    const r = await this.api.copyText({ text });
+    if (!r.ok) this.fail('Nothing was copied', r.error.message);
+    return r.ok;
+  }
+
+  // ---------- edits ----------
+
+  /** Apply an edit to the document, or show why it was refused. */
+  edit(make: (p: ProjectDto) => Edit, coalesceKey?: string): boolean {
+    const project = currentProject(this.state);
+    if (!project) return false;
+    const r = make(project);
+    if (!r.ok) {
+      this.store.dispatch({ type: 'edit-refused', message: r.message });
+      return false;
+    }
+    this.store.dispatch({ type: 'edit', project: r.project, coalesceKey });
+    return true;
+  }
+
+  setDrive(label: string, angleDeg: number, dragging = false): void {
+    this.edit((p) => setDriveAngle(p, label, angleDeg), dragging ? `drive:${label}` : undefined);
+    if (!dragging) this.store.dispatch({ type: 'seal-edit' });
+  }
+
+  toggleDrive(index: number): void {
+    const project = currentProject(this.state);
+    if (!project) return;
+    const label = project.source.labels[index] ?? String(index);
+    if (project.drives.some((d) => d.crease === label)) this.edit((p) => removeDrive(p, label));
+    else {
+      // start the new drive where the crease is now, so marking it does not jump the shape
+      const now = this.shownAngles()?.[index] ?? 0;
+      this.edit((p) => addDrive(p, index, Math.round(now * 100) / 100));
+    }
+  }
+
+  /** End a scrub: the drive takes the sample's value (one undo step) and the solve follows. */
+  commitScrub(): void {
+    const s = this.state;
+    const path = s.path.result;
+    if (s.scrubIndex === null || !path) return;
+    const sample = path.samples[s.scrubIndex];
+    const project = currentProject(s);
+    if (!project || !sample) return;
+    if (project.drives.some((d) => d.crease === path.driveLabel)) this.setDrive(path.driveLabel, Math.round(sample.driveDeg * 1e6) / 1e6);
+  }
+
+  undo(): void {
+    this.store.dispatch({ type: 'undo' });
+  }
+
+  redo(): void {
+    this.store.dispatch({ type: 'redo' });
+  }
+
+  // ---------- solver ----------
+
+  /** The key the solver knows this pattern by: one per source object, sent once. */
+  async ensurePattern(project: ProjectDto): Promise<string | null> {
+    const doc = this.state.doc;
+    if (!doc) return null;
+    let key = this.patternKeys.get(project.source);
+    if (!key) {
+      key = `${doc.id}:${newId('p')}`;
+      this.patternKeys.set(project.source, key);
+    }
+    let sent = this.patternsSent.get(key);
+    if (!sent) {
+      sent = this.api.setPattern({ key, source: project.source }).then((r) => {
+        if (!r.ok) {
+          this.fail('The solver could not take the pattern', r.error.message);
+          this.patternsSent.delete(key!);
+          return false;
+        }
+        if (!r.value.ok) {
+          this.store.dispatch({ type: 'notice', kind: 'error', title: 'The pattern has errors', messages: r.value.messages });
+          return false;
+        }
+        return true;
+      });
+      this.patternsSent.set(key, sent);
+    }
+    return (await sent) ? key : null;
+  }
+
+  async solve(): Promise<void> {
+    const project = currentProject(this.state);
+    if (!project) return;
+    this.solvedFor = { source: project.source, drives: project.drives };
+    const requestId = newId('solve');
+    const drives: DriveSpec[] = project.drives;
+    this.store.dispatch({ type: 'solve-started', requestId, forDrives: JSON.stringify(drives) });
+    const key = await this.ensurePattern(project);
+    if (!key) {
+      this.store.dispatch({ type: 'solve-failed', requestId, error: 'the pattern could not be given to the solver' });
+      return;
+    }
+    const prefer = this.shownAngles() ?? undefined;
+    const r = await this.api.solve({ requestId, key, drives });
+    if (!r.ok) {
+      this.store.dispatch({ type: 'solve-failed', requestId, error: r.error.message });
+      return;
+    }
+    if (r.value.status === 'done') this.store.dispatch({ type: 'solve-finished', requestId, result: r.value.value, preferAngles: prefer });
+  }
+
+  async computePath(request: PathRequest = {}): Promise<void> {
+    const project = currentProject(this.state);
+    if (!project) return;
+    const drive = request.drive ?? this.state.path.drive ?? project.drives[0]?.crease;
+    if (!drive) {
+      this.store.dispatch({ type: 'notice', kind: 'warning', title: 'No drive to follow', messages: [{ severity: 'warning', code: 'no-drive', text: 'Mark a crease as a drive first (click it on the sheet).' }] });
+      return;
+    }
+    const defaults = { ...this.pathDefaults, ...Object.fromEntries(Object.entries(request).filter(([, v]) => v !== undefined)) };
+    this.pathDefaults = { fromDeg: defaults.fromDeg, toDeg: defaults.toDeg, stepDeg: defaults.stepDeg };
+    const requestId = newId('sweep');
+    this.store.dispatch({ type: 'path-started', requestId, drive, branchId: request.branchId });
+    const key = await this.ensurePattern(project);
+    if (!key) {
+      this.store.dispatch({ type: 'path-stopped', requestId, status: 'error', error: 'the pattern could not be given to the solver' });
+      return;
+    }
+    const options: SweepOptionsDto = {
+      drive,
+      fromDeg: defaults.fromDeg,
+      toDeg: defaults.toDeg,
+      stepDeg: defaults.stepDeg,
+      held: project.drives.filter((d) => d.crease !== drive),
+      ...(request.branchId ? { branchId: request.branchId } : {}),
+    };
+    const r = await this.api.sweep({ requestId, key, options });
+    if (!r.ok) {
+      this.store.dispatch({ type: 'path-stopped', requestId, status: 'error', error: r.error.message });
+      return;
+    }
+    if (r.value.status === 'done') this.store.dispatch({ type: 'path-finished', requestId, result: r.value.value });
+    else this.store.dispatch({ type: 'path-stopped', requestId, status: 'cancelled' });
+  }
+
+  async cancelPath(): Promise<void> {
+    const id = this.state.path.requestId;
+    if (!id || this.state.path.status !== 'running') return;
+    await this.api.cancelJob({ requestId: id });
+    this.store.dispatch({ type: 'path-stopped', requestId: id, status: 'cancelled' });
+  }
+
+  async loadBranches(): Promise<void> {
+    const project = currentProject(this.state);
+    if (!project) return;
+    const requestId = newId('branches');
+    this.store.dispatch({ type: 'branches-started', requestId });
+    const key = await this.ensurePattern(project);
+    if (!key) return;
+    const r = await this.api.branches({ requestId, key, drives: project.drives });
+    if (!r.ok) this.store.dispatch({ type: 'branches-failed', requestId, error: r.error.message });
+    else if (r.value.status === 'done') this.store.dispatch({ type: 'branches-finished', requestId, result: r.value.value });
+  }
+
+  /** Angles on screen (degrees per crease), or null when nothing is solved. */
+  shownAngles(): number[] | null {
+    const project = currentProject(this.state);
+    if (!project) return null;
+    const shown = shownState(this.state, project.source.edges.length);
+    return shown.source === 'flat' ? null : shown.anglesDeg;
+  }
+
+  // ---------- reactions to state changes ----------
+
+  private onStateChange(): void {
+    const s = this.state;
+    const project = currentProject(s);
+    if (project && (!this.solvedFor || this.solvedFor.source !== project.source || this.solvedFor.drives !== project.drives)) {
+      void this.solve();
+    }
+    const doc = s.doc;
+    const docState = doc ? JSON.stringify([isDirty(doc), doc.fileName, doc.filePath]) : '';
+    if (doc && docState !== this.lastDocState) {
+      this.lastDocState = docState;
+      void this.api.setDocumentState({ dirty: isDirty(doc), title: doc.fileName, filePath: doc.filePath });
+      if (isDirty(doc)) this.scheduleRecovery();
+    } else if (doc && isDirty(doc)) this.scheduleRecovery();
+  }
+
+  private scheduleRecovery(): void {
+    clearTimeout(this.recoveryTimer);
+    this.recoveryTimer = setTimeout(() => void this.writeRecovery(), RECOVERY_DELAY_MS);
+  }
+
+  async writeRecovery(): Promise<void> {
+    const doc = this.state.doc;
+    if (!doc || !isDirty(doc)) return;
+    await this.api.writeRecovery({ id: doc.id, project: doc.history.present, documentName: doc.fileName, originalPath: doc.filePath });
+  }
+
+  private async clearRecovery(): Promise<void> {
+    clearTimeout(this.recoveryTimer);
+    const doc = this.state.doc;
+    if (doc) await this.api.clearRecovery({ id: doc.id });
+  }
+
+  // ---------- menu commands and shortcuts ----------
+
+  async command(command: MenuCommand, path?: string): Promise<void> {
+    switch (command) {
+      case 'new':
+        this.store.dispatch({ type: 'dialog', dialog: 'new' });
+        return;
+      case 'open':
+        return this.open('any');
+      case 'import-fold':
+        return this.open('fold');
+      case 'open-recent':
+        if (path) return this.openRecent(path);
+        return;
+      case 'save':
+        await this.save(false);
+        return;
+      case 'save-as':
+        await this.save(true);
+        return;
+      case 'save-and-close':
+        if (await this.save(false)) await this.api.closeReady({});
+        return;
+      case 'export-fold':
+        await this.exportFile('fold', {});
+        return;
+      case 'export-obj':
+        await this.exportFile('obj', {});
+        return;
+      case 'export-stl':
+        await this.exportFile('stl', {});
+        return;
+      case 'export-table':
+        this.store.dispatch({ type: 'dialog', dialog: 'export' });
+        return;
+      case 'undo':
+        return this.undo();
+      case 'redo':
+        return this.redo();
+      case 'compute-path':
+        return this.computePath();
+      case 'cancel-job':
+        return this.cancelPath();
+      case 'fit-view':
+        this.store.dispatch({ type: 'fit-view' });
+        return;
+      case 'toggle-ghost':
+        this.store.dispatch({ type: 'toggle-ghost' });
+        return;
+      case 'toggle-labels':
+        this.store.dispatch({ type: 'toggle-labels' });
+        return;
+    }
+  }
+
+  private fail(title: string, text: string): void {
+    this.store.dispatch({ type: 'notice', kind: 'error', title, messages: [{ severity: 'error', code: 'failed', text }] });
+  }
+
+  /** The drive crease index of a label (for views). */
+  driveIndex(label: string): number | undefined {
+    const project = currentProject(this.state);
+    return project ? creaseIndexByLabel(project, label) : undefined;
+  }
+}

@@ -1,0 +1,294 @@
+// What the views show, computed from the state as plain functions: the status in words, the state on
+// screen (a solution or a path sample), the hinge table rows and its CSV, the tint scale, chart curves.
+
+import { scaleDiverging } from 'd3-scale';
+import type { PathResultDto, ProjectDto, SolutionDto, SolveResultDto } from '../../electron/contract';
+import { CAUTIONS } from '../../solver/formats/cautions';
+import type { AppState } from './app';
+import { creaseIndexByLabel, creaseLabel, limitDeg, limitState } from './document';
+
+// ---------- the status in words ----------
+
+export interface StatusWords {
+  /** one or two words: the kind of specification */
+  headline: string;
+  /** a sentence saying what it means and what to do */
+  detail: string;
+  tone: 'good' | 'note' | 'bad';
+}
+
+const listLabels = (labels: string[] | undefined, max = 6): string => {
+  if (!labels?.length) return '';
+  const shown = labels.slice(0, max).join(', ');
+  return labels.length > max ? `${shown} and ${labels.length - max} more` : shown;
+};
+
+const plural = (n: number, one: string, many = `${one}s`) => `${n} ${n === 1 ? one : many}`;
+
+export function statusInWords(result: SolveResultDto | undefined, driveCount: number): StatusWords {
+  if (!result) return { headline: 'Not solved yet', detail: 'Set a drive to fold the pattern.', tone: 'note' };
+  const firstError = result.messages.find((m) => m.severity === 'error')?.text;
+  switch (result.status) {
+    case 'solved':
+      return { headline: 'Solved', detail: 'One folded state meets the drives.', tone: 'good' };
+    case 'several-solutions':
+      return {
+        headline: 'Several solutions',
+        detail: `${result.solutions.length} folded states meet the drives; choose one below.`,
+        tone: 'note',
+      };
+    case 'underspecified': {
+      const add = listLabels(result.suggestedDrives);
+      return {
+        headline: 'Underspecified',
+        detail:
+          driveCount === 0
+            ? `No drive is set; the pattern has ${plural(result.patternDof, 'degree')} of freedom.${add ? ` Mark a drive, e.g. ${add}.` : ''}`
+            : `${plural(result.dof, 'degree')} of freedom left.${add ? ` Add a drive at ${add}.` : ''}`,
+        tone: 'note',
+      };
+    }
+    case 'overspecified':
+      return {
+        headline: 'Overspecified',
+        detail: `${plural(driveCount, 'drive')} for a pattern with ${plural(result.patternDof, 'degree')} of freedom. ${firstError ?? 'Remove a drive.'}`,
+        tone: 'bad',
+      };
+    case 'inconsistent': {
+      const worst = (result.worstVertices ?? []).map(([v, r]) => `vertex ${v} (${((r * 180) / Math.PI).toFixed(2)}°)`);
+      return {
+        headline: 'Inconsistent',
+        detail: `No folded state meets all drives.${result.conflictingDrives?.length ? ` Conflicting drives: ${listLabels(result.conflictingDrives)}.` : ''}${worst.length ? ` Worst vertices: ${worst.join(', ')}.` : ''}`,
+        tone: 'bad',
+      };
+    }
+    case 'dependent-drives':
+      return {
+        headline: 'Dependent drives',
+        detail: `${result.conflictingDrives?.length ? `${listLabels(result.conflictingDrives)} move together: one of them fixes the other. ` : ''}Remove one of them.`,
+        tone: 'bad',
+      };
+    case 'unreachable': {
+      const ranges = (result.reachableRangeDeg ?? []).map(([a, b]) => `${a.toFixed(1)}° to ${b.toFixed(1)}°`);
+      return {
+        headline: 'Unreachable',
+        detail: `The pattern cannot fold to this drive value.${ranges.length ? ` Reachable: ${ranges.join(', ')}.` : ''}`,
+        tone: 'bad',
+      };
+    }
+    case 'not-isolated':
+      return {
+        headline: 'Not isolated',
+        detail: `The drives do not pin the pattern down here (${plural(result.dof, 'degree')} of freedom left at this state).`,
+        tone: 'note',
+      };
+    case 'invalid':
+      return { headline: 'Cannot solve', detail: firstError ?? 'The pattern or the drives have errors; see the messages.', tone: 'bad' };
+  }
+}
+
+// ---------- the state on screen ----------
+
+export interface ShownState {
+  anglesDeg: number[];
+  /** d(crease)/d(first drive), degrees per degree; null where unknown */
+  rates: (number | null)[] | null;
+  source: 'solution' | 'compromise' | 'path' | 'flat';
+  caption: string;
+  solution?: SolutionDto;
+}
+
+export function shownState(state: AppState, creaseCount: number): ShownState {
+  const project = state.doc?.history.present;
+  const path = state.path.result;
+  if (state.scrubIndex !== null && path && path.samples[state.scrubIndex]) {
+    const s = path.samples[state.scrubIndex];
+    return { anglesDeg: s.anglesDeg, rates: s.rates, source: 'path', caption: `path sample ${state.scrubIndex + 1} of ${path.samples.length}, ${path.driveLabel} = ${s.driveDeg.toFixed(2)}°` };
+  }
+  const result = state.solve.result;
+  if (result && result.solutions.length && result.solutions[0].anglesDeg.length === creaseCount) {
+    const i = Math.min(state.selectedSolution, result.solutions.length - 1);
+    const sol = result.solutions[i];
+    return { anglesDeg: sol.anglesDeg, rates: ratesOf(sol, project, creaseCount), source: 'solution', caption: `solution ${i + 1} of ${result.solutions.length}`, solution: sol };
+  }
+  if (result?.compromise && result.compromise.anglesDeg.length === creaseCount) {
+    return { anglesDeg: result.compromise.anglesDeg, rates: null, source: 'compromise', caption: 'closest compromise (does not close)', solution: result.compromise };
+  }
+  return { anglesDeg: new Array(creaseCount).fill(0), rates: null, source: 'flat', caption: 'flat sheet' };
+}
+
+/** Rate of every crease with respect to the first drive, from the solution's sensitivity. */
+export function ratesOf(sol: SolutionDto, project: ProjectDto | undefined, creaseCount: number): (number | null)[] | null {
+  if (!project || !project.drives.length) return null;
+  const drive = creaseIndexByLabel(project, project.drives[0].crease);
+  if (drive === undefined) return null;
+  const rates: (number | null)[] = new Array(creaseCount).fill(null);
+  rates[drive] = 1;
+  for (const [c, d, v] of sol.sensitivity) if (d === drive) rates[c] = v;
+  return rates;
+}
+
+// ---------- hinge table ----------
+
+export interface HingeRow {
+  index: number;
+  label: string;
+  assignment: string;
+  minDeg?: number;
+  maxDeg?: number;
+  angleDeg: number;
+  rate: number | null;
+  status: string;
+  isDrive: boolean;
+  violates: boolean;
+}
+
+export const ASSIGNMENT_WORDS: Record<string, string> = { M: 'mountain', V: 'valley', U: 'unassigned', F: 'flat (held)', B: 'boundary' };
+
+export function hingeRows(project: ProjectDto, shown: ShownState, includeBoundary = false): HingeRow[] {
+  const driveLabels = new Set(project.drives.map((d) => d.crease));
+  const rows: HingeRow[] = [];
+  const n = project.source.edges.length;
+  for (let i = 0; i < n; i++) {
+    const assignment = project.source.assignments[i];
+    if (assignment === 'B' && !includeBoundary) continue;
+    const label = creaseLabel(project, i);
+    const angleDeg = shown.anglesDeg[i] ?? 0;
+    const { minDeg, maxDeg } = limitDeg(project, i);
+    const lim = limitState(project, i, angleDeg);
+    const isDrive = driveLabels.has(label);
+    const sign = angleDeg > 1e-6 ? 'V' : angleDeg < -1e-6 ? 'M' : '0';
+    const words: string[] = [];
+    if (isDrive) words.push('drive');
+    if (assignment === 'F') words.push('held flat');
+    if (lim === 'beyond') words.push('beyond limit');
+    else if (lim === 'at-limit') words.push('at limit');
+    if ((assignment === 'M' && sign === 'V') || (assignment === 'V' && sign === 'M')) words.push('against assignment');
+    if (Math.abs(Math.abs(angleDeg) - 180) < 0.5) words.push('folded flat');
+    rows.push({ index: i, label, assignment, minDeg, maxDeg, angleDeg, rate: shown.rates?.[i] ?? null, status: words.join(', ') || 'ok', isDrive, violates: lim === 'beyond' });
+  }
+  return rows;
+}
+
+export type SortKey = 'index' | 'label' | 'assignment' | 'angle' | 'rate' | 'status';
+
+export function sortRows(rows: HingeRow[], key: SortKey, descending: boolean): HingeRow[] {
+  const value = (r: HingeRow): number | string => {
+    switch (key) {
+      case 'index': return r.index;
+      case 'label': return r.label;
+      case 'assignment': return r.assignment;
+      case 'angle': return r.angleDeg;
+      case 'rate': return r.rate ?? -Infinity;
+      case 'status': return r.status;
+    }
+  };
+  const collator = new Intl.Collator(undefined, { numeric: true });
+  const sorted = [...rows].sort((a, b) => {
+    const va = value(a), vb = value(b);
+    const c = typeof va === 'number' && typeof vb === 'number' ? va - vb : collator.compare(String(va), String(vb));
+    return c || a.index - b.index;
+  });
+  return descending ? sorted.reverse() : sorted;
+}
+
+function csvField(v: string): string {
+  return /[",\n\r]/.test(v) ? `"${v.replace(/"/g, '""')}"` : v;
+}
+
+/** The hinge table as CSV (RFC 4180 quoting), with the cautions line every exported table carries. */
+export function hingeTableCsv(rows: HingeRow[], caption: string): string {
+  const lines = [
+    `# ${CAUTIONS}`,
+    `# hinge table, ${caption}; angles in degrees, valley positive, mountain negative`,
+    ['index', 'label', 'assignment', 'min_deg', 'max_deg', 'angle_deg', 'rate_deg_per_deg', 'status'].join(','),
+  ];
+  for (const r of rows) {
+    lines.push(
+      [
+        String(r.index),
+        csvField(r.label),
+        r.assignment,
+        r.minDeg !== undefined ? r.minDeg.toFixed(4) : '',
+        r.maxDeg !== undefined ? r.maxDeg.toFixed(4) : '',
+        r.angleDeg.toFixed(6),
+        r.rate === null ? '' : r.rate.toFixed(6),
+        csvField(r.status),
+      ].join(','),
+    );
+  }
+  return lines.join('\n') + '\n';
+}
+
+// ---------- tint by signed fold angle ----------
+
+/** Mountain end (−180°), flat (0°) and valley end (+180°) of the diverging scale: colours of our own. */
+export const TINT_STOPS = { mountain: [178, 74, 36], flat: [226, 223, 214], valley: [22, 104, 140] } as const;
+
+function mix(a: readonly number[], b: readonly number[], t: number): string {
+  // ease toward the ends so small angles still read as tinted
+  const s = Math.sqrt(t);
+  const c = a.map((x, i) => Math.round(x + (b[i] - x) * s));
+  return `rgb(${c[0]}, ${c[1]}, ${c[2]})`;
+}
+
+/** Diverging scale over the signed fold angle: d3's scale maps the domain, we supply the colours. */
+export const tintScale = scaleDiverging<string>((t: number) =>
+  t < 0.5 ? mix(TINT_STOPS.flat, TINT_STOPS.mountain, (0.5 - t) * 2) : mix(TINT_STOPS.flat, TINT_STOPS.valley, (t - 0.5) * 2),
+).domain([-180, 0, 180]).clamp(true);
+
+/** Tints are drawn in steps of this many degrees, so a sheet of thousands of creases needs few paths. */
+export const TINT_STEP_DEG = 5;
+
+export function tintBucket(angleDeg: number): number {
+  return Math.round(Math.max(-180, Math.min(180, angleDeg)) / TINT_STEP_DEG);
+}
+
+export function bucketColor(bucket: number): string {
+  return tintScale(bucket * TINT_STEP_DEG);
+}
+
+// ---------- path charts ----------
+
+export interface CurveGroup {
+  /** crease indices that follow this same curve */
+  creases: number[];
+  /** one value per sample */
+  values: number[];
+}
+
+/**
+ * Creases whose curves coincide (a Miura sheet has a handful of distinct curves for thousands of creases)
+ * are drawn once; the legend says how many creases each line stands for.
+ */
+export function groupCurves(path: PathResultDto, creases: number[], pick: 'angle' | 'rate', tolerance = 1e-6): CurveGroup[] {
+  const groups = new Map<string, CurveGroup>();
+  const quantum = tolerance * 10;
+  for (const c of creases) {
+    const values = path.samples.map((s) => (pick === 'angle' ? s.anglesDeg[c] : (s.rates[c] ?? NaN)));
+    const key = values.map((v) => (Number.isFinite(v) ? Math.round(v / quantum) : 'x')).join(',');
+    const g = groups.get(key);
+    if (g) g.creases.push(c);
+    else groups.set(key, { creases: [c], values });
+  }
+  return [...groups.values()];
+}
+
+/** Sample index nearest to a drive value. */
+export function sampleNearest(path: PathResultDto, driveDeg: number): number {
+  let best = 0;
+  let bestD = Infinity;
+  path.samples.forEach((s, i) => {
+    const d = Math.abs(s.driveDeg - driveDeg);
+    if (d < bestD) {
+      bestD = d;
+      best = i;
+    }
+  });
+  return best;
+}
+
+export function formatAngle(deg: number, digits = 2): string {
+  const v = Math.abs(deg) < 0.5 * 10 ** -digits ? 0 : deg;
+  return `${v.toFixed(digits)}°`;
+}

@@ -1,0 +1,116 @@
+// The folded shape in 3D: orbit (drag), pan (right-drag or shift-drag), zoom (wheel), fit, optional flat
+// ghost and labels. The scene itself is renderer/views/folded-scene.ts.
+
+import { useEffect, useRef, useState } from 'react';
+import type { Pattern } from '../../solver/types';
+import type { ProjectDto } from '../../electron/contract';
+import { creaseLabel } from '../state/document';
+import { formatAngle } from '../state/display';
+import { FoldedScene, webglAvailable } from './folded-scene';
+
+export interface FoldedViewProps {
+  pattern: Pattern;
+  project: ProjectDto;
+  anglesDeg: readonly number[];
+  caption: string;
+  selectedCrease: number | null;
+  violatingPanels: Set<number>;
+  ghost: boolean;
+  labels: boolean;
+  fitRequest: number;
+  maxMismatch?: number;
+  onToggleGhost(): void;
+  onToggleLabels(): void;
+  onFit(): void;
+}
+
+export function FoldedView(props: FoldedViewProps) {
+  const hostRef = useRef<HTMLDivElement>(null);
+  const sceneRef = useRef<FoldedScene | null>(null);
+  const [failed, setFailed] = useState<string | null>(null);
+  const { pattern, project, anglesDeg, selectedCrease, violatingPanels, ghost, labels, fitRequest } = props;
+  const basePanel = project.source.basePanel ?? pattern.basePanel;
+  const fitted = useRef<Pattern | null>(null);
+
+  useEffect(() => {
+    const host = hostRef.current;
+    if (!host) return;
+    if (!webglAvailable()) {
+      setFailed('The 3D view needs WebGL, which this computer does not offer. The sheet, the charts and the table still work.');
+      return;
+    }
+    let scene: FoldedScene;
+    try {
+      scene = new FoldedScene(host);
+    } catch (err) {
+      setFailed(`The 3D view could not start: ${err instanceof Error ? err.message : String(err)}`);
+      return;
+    }
+    sceneRef.current = scene;
+    const ro = typeof ResizeObserver !== 'undefined' ? new ResizeObserver(() => scene.resize()) : null;
+    ro?.observe(host);
+    return () => {
+      ro?.disconnect();
+      scene.dispose();
+      sceneRef.current = null;
+      fitted.current = null;
+    };
+  }, []);
+
+  useEffect(() => {
+    const scene = sceneRef.current;
+    if (!scene) return;
+    scene.setPattern(pattern);
+    scene.setAngles(anglesDeg, basePanel);
+    if (fitted.current !== pattern) {
+      fitted.current = pattern;
+      scene.fit();
+    }
+  }, [pattern, anglesDeg, basePanel]);
+
+  useEffect(() => {
+    const scene = sceneRef.current;
+    if (!scene) return;
+    const driveLabels = new Set(project.drives.map((d) => d.crease));
+    scene.setOptions({
+      ghost,
+      labels,
+      selected: selectedCrease,
+      drives: pattern.creases.filter((c) => driveLabels.has(c.label)).map((c) => c.index),
+      violatingPanels,
+      basePanel,
+      labelText: (c) => `${creaseLabel(project, c)} ${formatAngle(anglesDeg[c] ?? 0, 1)}`,
+    });
+  }, [ghost, labels, selectedCrease, violatingPanels, basePanel, project, pattern, anglesDeg]);
+
+  useEffect(() => {
+    if (fitRequest > 0) sceneRef.current?.fit();
+  }, [fitRequest]);
+
+  return (
+    <div className="folded-view">
+      <div className="view-toolbar">
+        <span className="view-caption" data-testid="shape-caption">{props.caption}</span>
+        <button onClick={props.onFit} title="Fit the shape to the view (F)">Fit</button>
+        <label title="Show the flat sheet behind the shape (G)">
+          <input type="checkbox" checked={ghost} onChange={props.onToggleGhost} /> flat ghost
+        </label>
+        <label title="Label every hinge (L)">
+          <input type="checkbox" checked={labels} onChange={props.onToggleLabels} /> hinge labels
+        </label>
+      </div>
+      <div className="scene-host" ref={hostRef} data-testid="scene">
+        {failed && <div className="scene-failed">{failed}</div>}
+      </div>
+      <div className="scene-key">
+        <span className="key-swatch key-base" /> base panel (held)
+        <span className="key-swatch key-violating" /> past a hinge limit
+        <span className="key-swatch key-under" /> underside
+        {props.maxMismatch !== undefined && props.maxMismatch > 1e-6 * 1 && (
+          <span className="mismatch" title="Largest gap between two placements of one vertex">gap {props.maxMismatch.toExponential(1)}</span>
+        )}
+        <span className="scene-hint">drag: orbit · right-drag: pan · wheel: zoom</span>
+      </div>
+    </div>
+  );
+}

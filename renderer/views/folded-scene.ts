@@ -1,0 +1,315 @@
+// The 3D scene of the folded shape, outside React so a scrubbed frame is one buffer update and one draw.
+// Each panel is placed by its own rigid transform (the base panel stays where the flat sheet has it);
+// top and underside are told apart by shade, the base panel and panels past a hinge limit by colour.
+
+import * as THREE from 'three';
+import { OrbitControls } from 'three/examples/jsm/controls/OrbitControls.js';
+import type { Pattern } from '../../solver/types';
+import { triangulatePanel } from '../../solver/formats/shape-export';
+import { shapeFor, flatBounds } from '../geometry';
+
+export interface SceneOptions {
+  ghost: boolean;
+  labels: boolean;
+  selected: number | null;
+  drives: number[];
+  violatingPanels: Set<number>;
+  basePanel: number;
+  labelText: (crease: number) => string;
+}
+
+const COLORS = {
+  top: new THREE.Color('#f7f5f0'),
+  base: new THREE.Color('#efd88f'),
+  violating: new THREE.Color('#e0573f'),
+  valley: new THREE.Color('#16688c'),
+  mountain: new THREE.Color('#b24a24'),
+  unassigned: new THREE.Color('#5d5a53'),
+  boundary: new THREE.Color('#2f2d29'),
+  selected: new THREE.Color('#111111'),
+  drive: new THREE.Color('#d49b00'),
+};
+
+/** Most labels drawn at once; beyond that the drives and the selected crease are labelled. */
+export const MAX_LABELS = 250;
+
+export class FoldedScene {
+  readonly renderer: THREE.WebGLRenderer;
+  private scene = new THREE.Scene();
+  private camera = new THREE.PerspectiveCamera(35, 1, 0.01, 1e7);
+  private controls: OrbitControls;
+  private topMesh: THREE.Mesh;
+  private backMesh: THREE.Mesh;
+  private lines: THREE.LineSegments;
+  private marks: THREE.LineSegments;
+  private ghost: THREE.LineSegments;
+  private geometry = new THREE.BufferGeometry();
+  private lineGeometry = new THREE.BufferGeometry();
+  private markGeometry = new THREE.BufferGeometry();
+  private ghostGeometry = new THREE.BufferGeometry();
+  private pattern: Pattern | null = null;
+  /** per panel: flat (x, y) of its triangle corners, in buffer order */
+  private triangles: { panel: number; corners: number[] }[] = [];
+  private creasePanel: number[] = [];
+  private positions = new Float32Array(0);
+  private linePositions = new Float32Array(0);
+  private transforms: Float64Array[] = [];
+  private options: SceneOptions | null = null;
+  private labelLayer: HTMLDivElement;
+  private labelPool: HTMLDivElement[] = [];
+  private frameRequested = false;
+  /** frames drawn so far (the benchmark counts them) */
+  frames = 0;
+
+  constructor(private readonly host: HTMLElement) {
+    this.renderer = new THREE.WebGLRenderer({ antialias: true, preserveDrawingBuffer: true });
+    this.renderer.setPixelRatio(Math.min(2, window.devicePixelRatio || 1));
+    this.renderer.setClearColor('#e9e6de');
+    host.appendChild(this.renderer.domElement);
+    this.labelLayer = document.createElement('div');
+    this.labelLayer.className = 'scene-labels';
+    host.appendChild(this.labelLayer);
+
+    this.scene.add(new THREE.HemisphereLight('#ffffff', '#8d8a80', 1.6));
+    const sun = new THREE.DirectionalLight('#ffffff', 1.4);
+    sun.position.set(0.4, -0.6, 1);
+    this.camera.add(sun);
+    this.scene.add(this.camera);
+
+    const top = new THREE.MeshLambertMaterial({ vertexColors: true, side: THREE.FrontSide, polygonOffset: true, polygonOffsetFactor: 1, polygonOffsetUnits: 1 });
+    const back = new THREE.MeshLambertMaterial({ vertexColors: true, side: THREE.BackSide, color: '#aeb9c2', polygonOffset: true, polygonOffsetFactor: 1, polygonOffsetUnits: 1 });
+    this.topMesh = new THREE.Mesh(this.geometry, top);
+    this.backMesh = new THREE.Mesh(this.geometry, back);
+    this.lines = new THREE.LineSegments(this.lineGeometry, new THREE.LineBasicMaterial({ vertexColors: true }));
+    this.marks = new THREE.LineSegments(this.markGeometry, new THREE.LineBasicMaterial({ vertexColors: true, depthTest: false }));
+    this.marks.renderOrder = 2;
+    this.ghost = new THREE.LineSegments(this.ghostGeometry, new THREE.LineBasicMaterial({ color: '#7f7b72', transparent: true, opacity: 0.45 }));
+    this.scene.add(this.topMesh, this.backMesh, this.lines, this.marks, this.ghost);
+
+    this.controls = new OrbitControls(this.camera, this.renderer.domElement);
+    this.controls.enableDamping = false;
+    this.controls.screenSpacePanning = true;
+    this.controls.addEventListener('change', () => this.requestFrame());
+    this.resize();
+  }
+
+  setPattern(pattern: Pattern): void {
+    if (pattern === this.pattern) return;
+    this.pattern = pattern;
+    this.triangles = pattern.panels.map((p) => ({
+      panel: p.index,
+      corners: triangulatePanel(pattern, p.vertices).flatMap((t) => t.map((k) => p.vertices[k])),
+    }));
+    const count = this.triangles.reduce((n, t) => n + t.corners.length, 0);
+    this.positions = new Float32Array(count * 3);
+    this.geometry.setAttribute('position', new THREE.BufferAttribute(this.positions, 3));
+    this.geometry.setAttribute('color', new THREE.BufferAttribute(new Float32Array(count * 3), 3));
+    // each crease is drawn from the side of one panel that touches it
+    this.creasePanel = pattern.creases.map((c) => (c.leftPanel >= 0 ? c.leftPanel : c.rightPanel));
+    this.linePositions = new Float32Array(pattern.creases.length * 6);
+    this.lineGeometry.setAttribute('position', new THREE.BufferAttribute(this.linePositions, 3));
+    const lineColors = new Float32Array(pattern.creases.length * 6);
+    pattern.creases.forEach((c, i) => {
+      const col = c.assignment === 'V' ? COLORS.valley : c.assignment === 'M' ? COLORS.mountain : c.assignment === 'B' ? COLORS.boundary : COLORS.unassigned;
+      col.toArray(lineColors, 6 * i);
+      col.toArray(lineColors, 6 * i + 3);
+    });
+    this.lineGeometry.setAttribute('color', new THREE.BufferAttribute(lineColors, 3));
+    const ghost = new Float32Array(pattern.creases.length * 6);
+    pattern.creases.forEach((c, i) => {
+      const [a, b] = c.vertices;
+      ghost.set([pattern.vertices[a][0], pattern.vertices[a][1], 0, pattern.vertices[b][0], pattern.vertices[b][1], 0], 6 * i);
+    });
+    this.ghostGeometry.setAttribute('position', new THREE.BufferAttribute(ghost, 3));
+    this.ghostGeometry.computeBoundingSphere();
+  }
+
+  /** Place every panel for these fold angles (degrees per crease) and redraw. */
+  setAngles(anglesDeg: readonly number[], basePanel: number): void {
+    const pattern = this.pattern;
+    if (!pattern) return;
+    const shape = shapeFor(pattern, anglesDeg, basePanel);
+    this.transforms = shape.panelTransforms;
+    const P = pattern.vertices;
+    let o = 0;
+    const pos = this.positions;
+    for (const t of this.triangles) {
+      const T = this.transforms[t.panel];
+      for (const v of t.corners) {
+        const x = P[v][0], y = P[v][1];
+        pos[o++] = T[0] * x + T[1] * y + T[3];
+        pos[o++] = T[4] * x + T[5] * y + T[7];
+        pos[o++] = T[8] * x + T[9] * y + T[11];
+      }
+    }
+    this.geometry.attributes.position.needsUpdate = true;
+    this.geometry.computeVertexNormals();
+    this.geometry.computeBoundingSphere();
+    const lp = this.linePositions;
+    pattern.creases.forEach((c, i) => {
+      const T = this.transforms[this.creasePanel[i]] ?? this.transforms[0];
+      for (let e = 0; e < 2; e++) {
+        const x = P[c.vertices[e]][0], y = P[c.vertices[e]][1];
+        lp[6 * i + 3 * e] = T[0] * x + T[1] * y + T[3];
+        lp[6 * i + 3 * e + 1] = T[4] * x + T[5] * y + T[7];
+        lp[6 * i + 3 * e + 2] = T[8] * x + T[9] * y + T[11];
+      }
+    });
+    this.lineGeometry.attributes.position.needsUpdate = true;
+    this.lineGeometry.computeBoundingSphere();
+    this.updateMarks();
+    this.requestFrame();
+  }
+
+  setOptions(options: SceneOptions): void {
+    this.options = options;
+    this.ghost.visible = options.ghost;
+    const colors = this.geometry.getAttribute('color') as THREE.BufferAttribute | undefined;
+    if (colors) {
+      const arr = colors.array as Float32Array;
+      let o = 0;
+      for (const t of this.triangles) {
+        const col = options.violatingPanels.has(t.panel) ? COLORS.violating : t.panel === options.basePanel ? COLORS.base : COLORS.top;
+        for (let k = 0; k < t.corners.length; k++) {
+          col.toArray(arr, o);
+          o += 3;
+        }
+      }
+      colors.needsUpdate = true;
+    }
+    this.updateMarks();
+    this.requestFrame();
+  }
+
+  /** The selected crease and the drives drawn on top, so they stay visible through panels. */
+  private updateMarks(): void {
+    const pattern = this.pattern;
+    const opts = this.options;
+    if (!pattern || !opts) return;
+    const marked = [...opts.drives, ...(opts.selected !== null ? [opts.selected] : [])];
+    const pos = new Float32Array(marked.length * 6);
+    const col = new Float32Array(marked.length * 6);
+    marked.forEach((c, k) => {
+      pos.set(this.linePositions.subarray(6 * c, 6 * c + 6), 6 * k);
+      const color = opts.selected === c ? COLORS.selected : COLORS.drive;
+      color.toArray(col, 6 * k);
+      color.toArray(col, 6 * k + 3);
+    });
+    this.markGeometry.setAttribute('position', new THREE.BufferAttribute(pos, 3));
+    this.markGeometry.setAttribute('color', new THREE.BufferAttribute(col, 3));
+  }
+
+  /** Look at the whole shape from above and to the side. */
+  fit(): void {
+    this.geometry.computeBoundingSphere();
+    const sphere = this.geometry.boundingSphere;
+    const pattern = this.pattern;
+    if (!sphere || !pattern || !Number.isFinite(sphere.radius) || sphere.radius === 0) {
+      if (!pattern) return;
+      const b = flatBounds(pattern);
+      this.frame(new THREE.Vector3((b.minX + b.maxX) / 2, (b.minY + b.maxY) / 2, 0), Math.hypot(b.maxX - b.minX, b.maxY - b.minY) / 2);
+      return;
+    }
+    this.frame(sphere.center.clone(), sphere.radius);
+  }
+
+  private frame(center: THREE.Vector3, radius: number): void {
+    const fov = (this.camera.fov * Math.PI) / 180;
+    const dist = (radius * 1.15) / Math.sin(Math.min(fov, fov * this.camera.aspect) / 2);
+    const dir = new THREE.Vector3(0.35, -0.75, 0.85).normalize();
+    this.camera.up.set(0, 0, 1);
+    this.camera.position.copy(center).addScaledVector(dir, dist);
+    this.camera.near = dist / 1000;
+    this.camera.far = dist * 100;
+    this.camera.updateProjectionMatrix();
+    this.controls.target.copy(center);
+    this.controls.update();
+    this.requestFrame();
+  }
+
+  resize(): void {
+    const w = Math.max(1, this.host.clientWidth);
+    const h = Math.max(1, this.host.clientHeight);
+    this.renderer.setSize(w, h, true);
+    this.camera.aspect = w / h;
+    this.camera.updateProjectionMatrix();
+    this.requestFrame();
+  }
+
+  requestFrame(): void {
+    if (this.frameRequested) return;
+    this.frameRequested = true;
+    requestAnimationFrame(() => {
+      this.frameRequested = false;
+      this.draw();
+    });
+  }
+
+  private draw(): void {
+    this.renderer.render(this.scene, this.camera);
+    this.frames++;
+    this.host.dataset.frames = String(this.frames);
+    this.drawLabels();
+  }
+
+  private drawLabels(): void {
+    const pattern = this.pattern;
+    const opts = this.options;
+    const show: number[] = [];
+    if (pattern && opts) {
+      if (opts.labels) {
+        const all = pattern.creases.filter((c) => c.assignment !== 'B').map((c) => c.index);
+        show.push(...(all.length <= MAX_LABELS ? all : [...opts.drives, ...(opts.selected !== null ? [opts.selected] : [])]));
+      } else {
+        show.push(...opts.drives);
+        if (opts.selected !== null && !opts.drives.includes(opts.selected)) show.push(opts.selected);
+      }
+    }
+    const w = this.host.clientWidth, h = this.host.clientHeight;
+    const v = new THREE.Vector3();
+    while (this.labelPool.length < show.length) {
+      const d = document.createElement('div');
+      d.className = 'scene-label';
+      this.labelLayer.appendChild(d);
+      this.labelPool.push(d);
+    }
+    this.labelPool.forEach((d, k) => {
+      const c = show[k];
+      if (c === undefined || !opts) {
+        d.style.display = 'none';
+        return;
+      }
+      const lp = this.linePositions;
+      v.set((lp[6 * c] + lp[6 * c + 3]) / 2, (lp[6 * c + 1] + lp[6 * c + 4]) / 2, (lp[6 * c + 2] + lp[6 * c + 5]) / 2).project(this.camera);
+      if (v.z > 1 || v.z < -1) {
+        d.style.display = 'none';
+        return;
+      }
+      d.style.display = '';
+      d.style.transform = `translate(${((v.x + 1) / 2) * w}px, ${((1 - v.y) / 2) * h}px)`;
+      d.textContent = opts.labelText(c);
+      d.classList.toggle('is-drive', opts.drives.includes(c));
+      d.classList.toggle('is-selected', opts.selected === c);
+    });
+  }
+
+  dispose(): void {
+    this.controls.dispose();
+    this.geometry.dispose();
+    this.lineGeometry.dispose();
+    this.markGeometry.dispose();
+    this.ghostGeometry.dispose();
+    this.renderer.dispose();
+    this.renderer.domElement.remove();
+    this.labelLayer.remove();
+  }
+}
+
+export function webglAvailable(): boolean {
+  try {
+    const c = document.createElement('canvas');
+    return !!(c.getContext('webgl2') || c.getContext('webgl'));
+  } catch {
+    return false;
+  }
+}
