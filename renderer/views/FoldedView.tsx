@@ -93,10 +93,10 @@ export function FoldedView(props: FoldedViewProps) {
         <span className="view-caption" data-testid="shape-caption">{props.caption}</span>
         <button onClick={props.onFit} title="Fit the shape to the view (F)">Fit</button>
         <label title="Show the flat sheet behind the shape (G)">
-          <input type="checkbox" checked={ghost} onChange={props.onToggleGhost} /> flat ghost
+          <input type="checkbox" checked={ghost} onChange={props.onToggleGhost} /> ghost
         </label>
         <label title="Label every hinge (L)">
-          <input type="checkbox" checked={labels} onChange={props.onToggleLabels} /> hinge labels
+          <input type="checkbox" checked={labels} onChange={props.onToggleLabels} /> labels
         </label>
       </div>
       <div className="scene-host" ref={hostRef} data-testid="scene">

@@ -142,8 +142,9 @@ export interface AppSession {
 }
 
 export interface SessionOptions {
-  /** a file to open at startup instead of the built-in sample */
-  openPath?: string;
+  /** a sample (file name in samples/) to open at startup instead of the built-in one; it is copied into the
+   * session's temporary folder first, so a test that saves never writes over the repository's samples */
+  openSample?: string;
   viewport?: { width: number; height: number };
 }
 
@@ -164,6 +165,11 @@ export class Harness {
   /** A fresh window: its own backend (service, solver workers, temp folder) and its own page. */
   async open(options: SessionOptions = {}): Promise<AppSession> {
     const tmp = mkdtempSync(path.join(os.tmpdir(), 'hingeplan-e2e-'));
+    let openPath: string | undefined;
+    if (options.openSample) {
+      openPath = path.join(tmp, options.openSample);
+      await fs.copyFile(path.join(SAMPLES, options.openSample), openPath);
+    }
     const host = new HarnessHost();
     const solver = new SolverClient({ spawn: nodeWorkerSpawner(path.join(DIST, 'electron', 'solver-worker.cjs')) });
     const service = createService({
@@ -171,7 +177,7 @@ export class Harness {
       host,
       recovery: new RecoveryStore(path.join(tmp, 'user-data', 'recovery')),
       recent: new RecentFiles(path.join(tmp, 'user-data', 'recent-files.json')),
-      startup: { version: 'e2e', platform: process.platform, openPath: options.openPath, samplePath: path.join(SAMPLES, 'sunshade-panel.hingeplan.json') },
+      startup: { version: 'e2e', platform: process.platform, openPath, samplePath: path.join(SAMPLES, 'sunshade-panel.hingeplan.json') },
     });
     const context = await this.browser!.newContext({ viewport: options.viewport ?? { width: 1480, height: 920 }, deviceScaleFactor: 1 });
     // nothing but the app's own server: any other request is refused

@@ -1,0 +1,320 @@
+// End-to-end tests: the shipped renderer in Chromium, the real handlers and solver worker behind it.
+// Each test checks what a person sees against the solver run directly in Node, and saves a screenshot.
+import assert from 'node:assert/strict';
+import { promises as fs, readFileSync } from 'node:fs';
+import path from 'node:path';
+import Papa from 'papaparse';
+import type { Page } from 'playwright-core';
+import { CAUTIONS, loadPatternText, solveDrives, resolveDrives, type Pattern } from '../../solver';
+import { screenshot, SAMPLES, type AppSession, type Harness, type SessionOptions } from './harness';
+
+export interface E2ETest {
+  name: string;
+  timeoutMs?: number;
+  run(h: Harness): Promise<void>;
+}
+
+const DEG = 180 / Math.PI;
+const COUPON_FILE = 'hinge-coupon.hingeplan.json';
+const COUPON = path.join(SAMPLES, COUPON_FILE);
+
+async function withSession(h: Harness, name: string, options: SessionOptions, fn: (s: AppSession) => Promise<void>): Promise<void> {
+  const s = await h.open(options);
+  try {
+    await fn(s);
+    // nothing the page did may have broken the CSP or thrown
+    assert.deepEqual(s.pageErrors.filter((e) => !/GL Driver Message/.test(e)), [], 'the page reported errors');
+  } catch (err) {
+    await screenshot(s.page, `${name}-FAILED`).catch(() => undefined);
+    throw err;
+  } finally {
+    await s.close();
+  }
+}
+
+async function waitSolved(page: Page, timeout = 60_000): Promise<string> {
+  await page.waitForFunction(
+    () => {
+      const t = document.querySelector('[data-testid=solve-status]')?.textContent ?? '';
+      return t && !t.includes('solving') && !t.includes('Not solved yet');
+    },
+    null,
+    { timeout },
+  );
+  return (await page.textContent('[data-testid=solve-status]')) ?? '';
+}
+
+/** Angles in the hinge table as shown: label → degrees. */
+async function tableAngles(page: Page): Promise<Map<string, number>> {
+  const rows = await page.$$eval('[data-testid=hinge-table] .row', (els) =>
+    els.map((e) => [e.getAttribute('data-label')!, e.querySelector('[data-testid=angle-cell]')!.textContent!] as [string, string]),
+  );
+  return new Map(rows.map(([l, t]) => [l, Number(t.replace('°', ''))]));
+}
+
+function loadSample(file: string) {
+  const loaded = loadPatternText(readFileSync(file, 'utf8'), path.basename(file));
+  assert.ok(loaded.pattern && loaded.project, `${file} loads`);
+  return { pattern: loaded.pattern, project: loaded.project, drives: loaded.drives! };
+}
+
+function referenceSolve(pattern: Pattern, drives: { crease: string; angleDeg: number }[]) {
+  const resolved = resolveDrives(pattern, drives);
+  return solveDrives(pattern, resolved.drives);
+}
+
+async function currentCardIndex(page: Page): Promise<number> {
+  const idx = await page.getAttribute('[data-testid=solution-card][aria-selected=true]', 'data-index');
+  assert.ok(idx !== null, 'a solution card is current');
+  return Number(idx);
+}
+
+async function assertTableMatches(page: Page, pattern: Pattern, angles: Float64Array, what: string) {
+  const shown = await tableAngles(page);
+  assert.ok(shown.size > 0, 'the table shows rows');
+  for (const [label, deg] of shown) {
+    const c = pattern.labelIndex.get(label) ?? Number(label);
+    assert.ok(Math.abs(deg - angles[c] * DEG) <= 0.0051, `${what}: crease ${label} shows ${deg}°, the solver says ${(angles[c] * DEG).toFixed(4)}°`);
+  }
+}
+
+/** Click the middle of a crease on the flat sheet (sheet coordinates → screen through the SVG's own matrix). */
+async function clickCrease(page: Page, pattern: Pattern, index: number) {
+  const c = pattern.creases[index];
+  const [a, b] = c.vertices.map((v) => pattern.vertices[v]);
+  const point = await page.evaluate(([x, y]) => {
+    const g = document.querySelector('[data-testid=sheet] g.sheet-flip') as SVGGElement;
+    const p = new DOMPoint(x, y).matrixTransform(g.getScreenCTM()!);
+    return { x: p.x, y: p.y };
+  }, [(a[0] + b[0]) / 2, (a[1] + b[1]) / 2]);
+  await page.mouse.move(point.x, point.y);
+  await page.mouse.down();
+  await page.mouse.up();
+}
+
+async function setDriveField(page: Page, label: string, value: number) {
+  const field = page.getByLabel(`angle of drive ${label} in degrees`);
+  await field.click();
+  await field.fill(String(value));
+  await field.press('Enter');
+}
+
+export const e2eTests: E2ETest[] = [
+  {
+    name: 'opens the built-in sunshade sample with its drive set and a path computed',
+    timeoutMs: 180_000,
+    async run(h) {
+      await withSession(h, 'startup-sunshade', {}, async ({ page }) => {
+        await page.waitForSelector('[data-testid=doc-title]:has-text("sunshade-panel.hingeplan.json")', { timeout: 30_000 });
+        const row = page.locator('[data-testid=drive-row][data-crease=z6_4]');
+        assert.equal(await row.getByLabel('angle of drive z6_4 in degrees').inputValue(), '60');
+        const status = await waitSolved(page, 90_000);
+        assert.match(status, /Solved|Several solutions/);
+        // the card on screen follows the mountain/valley assignment of the sample
+        const current = page.locator('[data-testid=solution-card][aria-selected=true]');
+        assert.match((await current.textContent()) ?? '', /follows M\/V/);
+        await page.waitForSelector('[data-testid=path-summary]', { timeout: 150_000 });
+        assert.match((await page.textContent('[data-testid=path-summary]')) ?? '', /\d+ samples/);
+        await screenshot(page, 'startup-sunshade');
+      });
+    },
+  },
+  {
+    name: 'a drive typed in shows the solver’s angles in the table and the crease inspector',
+    async run(h) {
+      const { pattern } = loadSample(COUPON);
+      await withSession(h, 'set-drive', { openSample: COUPON_FILE }, async ({ page }) => {
+        await waitSolved(page);
+        await setDriveField(page, 'c0', 30);
+        await page.waitForFunction(() => document.querySelector('[data-testid=hinge-table] .row[data-label=c0] [data-testid=angle-cell]')?.textContent === '30.00°');
+        await waitSolved(page);
+        const reference = referenceSolve(pattern, [{ crease: 'c0', angleDeg: 30 }]);
+        const idx = await currentCardIndex(page);
+        await assertTableMatches(page, pattern, reference.solutions[idx].angles, `solution ${idx + 1}`);
+        // the inspector of a crease clicked on the sheet shows the same angle, to three decimals
+        const c1 = pattern.labelIndex.get('c1')!;
+        await clickCrease(page, pattern, c1);
+        await page.waitForSelector('[data-testid=inspector]:has-text("c1")');
+        const text = (await page.textContent('[data-testid=inspector-angle]'))!;
+        assert.ok(Math.abs(Number(text.replace('°', '')) - reference.solutions[idx].angles[c1] * DEG) <= 0.0006, `inspector shows ${text}`);
+        await page.mouse.move(10, 10);
+        await screenshot(page, 'set-drive');
+      });
+    },
+  },
+  {
+    name: 'choosing another solution card shows that solution',
+    async run(h) {
+      const { pattern } = loadSample(COUPON);
+      await withSession(h, 'switch-solution', { openSample: COUPON_FILE }, async ({ page }) => {
+        await waitSolved(page);
+        const reference = referenceSolve(pattern, [{ crease: 'c0', angleDeg: 45 }]);
+        assert.ok(reference.solutions.length >= 2, 'the coupon has more than one solution at 45°');
+        const filter = page.getByLabel(/only the \d+ that follow/);
+        if (await filter.count()) await filter.uncheck();
+        const cards = page.locator('[data-testid=solution-card]');
+        assert.equal(await cards.count(), reference.solutions.length);
+        const before = await currentCardIndex(page);
+        const other = (before + 1) % reference.solutions.length;
+        await page.click(`[data-testid=solution-card][data-index="${other}"]`);
+        assert.equal(await currentCardIndex(page), other);
+        await assertTableMatches(page, pattern, reference.solutions[other].angles, `solution ${other + 1}`);
+        assert.match((await page.textContent('[data-testid=shape-caption]')) ?? '', new RegExp(`solution ${other + 1} of ${reference.solutions.length}`));
+        await screenshot(page, 'switch-solution');
+      });
+    },
+  },
+  {
+    name: 'a long sweep shows progress and can be cancelled; a short one completes',
+    timeoutMs: 240_000,
+    async run(h) {
+      await withSession(h, 'sweep-cancel', { openSample: COUPON_FILE }, async ({ page, host }) => {
+        await waitSolved(page);
+        // a new Miura-ori sheet of 20 × 20 cells from the generator dialog
+        await page.click('button:has-text("New…")');
+        const dialog = page.getByRole('dialog');
+        await dialog.getByLabel('rows of cells').fill('20');
+        await dialog.getByLabel('columns of cells').fill('20');
+        host.confirmAnswers.push('discard');
+        await dialog.getByRole('button', { name: 'Create' }).click();
+        await page.waitForSelector('[data-testid=doc-title]:has-text("miura")', { timeout: 30_000 });
+        await waitSolved(page, 90_000);
+        // the generator's document has one drive, so its path starts at once; stop it, ask for a finer one
+        if (await page.locator('[data-testid=cancel-path]').count()) await page.click('[data-testid=cancel-path]');
+        await page.getByLabel('path step, degrees').fill('0.1');
+        const events0 = host.progressEvents;
+        await page.click('[data-testid=compute-path]');
+        await page.waitForFunction(() => {
+          const p = document.querySelector('[data-testid=path-progress]');
+          return p && Number(p.getAttribute('aria-valuenow')) > 0;
+        }, null, { timeout: 90_000 });
+        assert.ok(host.progressEvents > events0, 'progress events reached the page');
+        await screenshot(page, 'sweep-progress');
+        await page.click('[data-testid=cancel-path]');
+        await page.waitForSelector('[data-testid=path-cancelled]');
+        assert.equal(await page.locator('[data-testid=path-progress]').count(), 0);
+        await screenshot(page, 'sweep-cancelled');
+        // a coarse path of the same sheet runs to the end
+        await page.getByLabel('path step, degrees').fill('10');
+        await page.click('[data-testid=compute-path]');
+        await page.waitForSelector('[data-testid=path-summary]', { timeout: 120_000 });
+        assert.match((await page.textContent('[data-testid=path-summary]')) ?? '', /\d+ samples/);
+      });
+    },
+  },
+  {
+    name: 'the angle table exports with the cautions line and parses back to the path’s angles',
+    timeoutMs: 150_000,
+    async run(h) {
+      const { pattern } = loadSample(COUPON);
+      await withSession(h, 'export-table', { openSample: COUPON_FILE }, async ({ page, host, tmp }) => {
+        await waitSolved(page);
+        await page.getByLabel('path from, degrees').fill('0');
+        await page.getByLabel('path to, degrees').fill('160');
+        await page.getByLabel('path step, degrees').fill('10');
+        await page.click('[data-testid=compute-path]');
+        await page.waitForSelector('[data-testid=path-summary]', { timeout: 60_000 });
+        await page.click('button:has-text("Export…")');
+        const dialog = page.getByRole('dialog');
+        await dialog.getByLabel('Angle table of the computed path').check();
+        await dialog.getByLabel('table format').selectOption('csv');
+        const target = path.join(tmp, 'coupon.angles.csv');
+        host.saveAnswers.push(target);
+        await screenshot(page, 'export-dialog');
+        await dialog.getByTestId('export-go').click();
+        await page.waitForSelector('[data-testid=notice-info]:has-text("Exported")', { timeout: 30_000 });
+        assert.match(host.saveRequests.at(-1)!.defaultName, /hinge-coupon\.angles\.csv$/);
+        const text = await fs.readFile(target, 'utf8');
+        assert.ok(text.includes(CAUTIONS), 'the table carries the cautions line');
+        const body = text.split('\n').filter((l) => l && !l.startsWith('#')).join('\n');
+        const parsed = Papa.parse<Record<string, string>>(body, { header: true, skipEmptyLines: true });
+        assert.deepEqual(parsed.errors, []);
+        assert.ok(parsed.data.length >= 10, `${parsed.data.length} rows`);
+        // each row's angles are a closed state of the coupon at that drive value: check against the solver
+        const cols = parsed.meta.fields!;
+        const driveCol = cols.find((c) => /drive|c0/i.test(c))!;
+        const row = parsed.data[Math.floor(parsed.data.length / 2)];
+        const drive = Number(row[driveCol]);
+        const reference = referenceSolve(pattern, [{ crease: 'c0', angleDeg: drive }]);
+        const labels = ['c1', 'c2', 'c3'].filter((l) => cols.some((c) => c.startsWith(l)));
+        assert.ok(labels.length > 0, `the table has crease columns (${cols.join(', ')})`);
+        const matches = reference.solutions.some((s) => labels.every((l) => Math.abs(Number(row[cols.find((c) => c.startsWith(l))!]) - s.angles[pattern.labelIndex.get(l)!] * DEG) < 1e-3));
+        assert.ok(matches, `the row at ${drive}° is one of the solver's states`);
+      });
+    },
+  },
+  {
+    name: 'a malformed file shows the readers’ message with where it is, and the app stays up',
+    async run(h) {
+      await withSession(h, 'malformed-file', { openSample: COUPON_FILE }, async ({ page, host, tmp }) => {
+        await waitSolved(page);
+        const broken = path.join(tmp, 'broken.hingeplan.json');
+        await fs.writeFile(broken, '{\n  "format": "hingeplan-project",\n  "version": 1,\n  "vertices": [[0, 0], [1, 0],\n');
+        host.openAnswers.push(broken);
+        await page.click('button:has-text("Open…")');
+        const notice = page.locator('[data-testid=notice-error]');
+        await notice.waitFor();
+        const text = (await notice.textContent()) ?? '';
+        assert.match(text, /broken\.hingeplan\.json could not be opened/);
+        assert.match(text, /line \d+/);
+        // the document that was open is still there and still solved
+        assert.match((await page.textContent('[data-testid=doc-title]')) ?? '', /hinge-coupon/);
+        assert.match(await waitSolved(page), /Solved|Several/);
+        // a file that reads but names a vertex that does not exist
+        const badRef = path.join(tmp, 'bad-crease.hingeplan.json');
+        const sample = JSON.parse(readFileSync(COUPON, 'utf8'));
+        sample.creases[2].vertices = [0, 99];
+        await fs.writeFile(badRef, JSON.stringify(sample, null, 2));
+        host.openAnswers.push(badRef);
+        await page.click('button:has-text("Open…")');
+        await page.waitForSelector('[data-testid=notice-error]:has-text("bad-crease.hingeplan.json")');
+        const second = (await page.locator('[data-testid=notice-error]').last().textContent()) ?? '';
+        assert.match(second, /creases\[2\]/);
+        await screenshot(page, 'malformed-file');
+      });
+    },
+  },
+  {
+    name: 'unsaved edits are kept: opening asks first, saving writes the file, undo and redo work from the keyboard',
+    async run(h) {
+      await withSession(h, 'unsaved-and-save', { openSample: COUPON_FILE }, async ({ page, host, tmp }) => {
+        await waitSolved(page);
+        await setDriveField(page, 'c0', 20);
+        await page.waitForSelector('[data-testid=doc-title]:has-text("edited")');
+        host.confirmAnswers.push('cancel');
+        await page.click('button:has-text("Open…")');
+        await page.waitForTimeout(200);
+        assert.equal(host.confirmRequests.length, 1);
+        assert.equal(host.openRequests.length, 0, 'no file dialog after Cancel');
+        assert.equal(await page.getByLabel('angle of drive c0 in degrees').inputValue(), '20');
+        // undo and redo from the keyboard (focus outside the text fields)
+        await page.click('.doc-title');
+        await page.keyboard.press('Control+z');
+        await page.waitForFunction(() => (document.querySelector('[aria-label="angle of drive c0 in degrees"]') as HTMLInputElement).value === '45');
+        await page.keyboard.press('Control+Shift+z');
+        await page.waitForFunction(() => (document.querySelector('[aria-label="angle of drive c0 in degrees"]') as HTMLInputElement).value === '20');
+        // Save as… asks where; the copy opened at startup stays as it was
+        const target = path.join(tmp, 'coupon-20.hingeplan.json');
+        host.saveAnswers.push(target);
+        await page.keyboard.press('Control+Shift+s');
+        await page.waitForFunction(() => !document.querySelector('[data-testid=doc-title]')?.textContent?.includes('edited'));
+        const saved = loadPatternText(await fs.readFile(target, 'utf8'), 'coupon-20.hingeplan.json');
+        assert.equal(saved.project!.drives[0].angleDeg, 20);
+        assert.equal(host.states.at(-1)!.dirty, false);
+        const left = (await fs.readdir(tmp)).filter((n) => n.endsWith('.tmp'));
+        assert.deepEqual(left, [], 'no temporary file is left next to the saved one');
+        assert.equal(loadPatternText(await fs.readFile(path.join(tmp, COUPON_FILE), 'utf8'), COUPON_FILE).project!.drives[0].angleDeg, 45);
+        // a plain Save now writes to the chosen file without asking
+        await setDriveField(page, 'c0', 25);
+        await page.waitForSelector('[data-testid=doc-title]:has-text("edited")');
+        const asked = host.saveRequests.length;
+        await page.click('.doc-title');
+        await page.keyboard.press('Control+s');
+        await page.waitForFunction(() => !document.querySelector('[data-testid=doc-title]')?.textContent?.includes('edited'));
+        assert.equal(host.saveRequests.length, asked);
+        assert.equal(loadPatternText(await fs.readFile(target, 'utf8'), 'x.hingeplan.json').project!.drives[0].angleDeg, 25);
+        await screenshot(page, 'unsaved-and-save');
+      });
+    },
+  },
+];
