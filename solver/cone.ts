@@ -73,7 +73,8 @@ export function straightCreaseLines(pattern: Pattern, held: (c: number) => boole
     const i = iv.creases.indexOf(crease);
     for (let j = 0; j < iv.creases.length; j++) {
       if (j === i) continue;
-      const d = Math.abs(((iv.directions[j] - iv.directions[i] + 3 * Math.PI) % (2 * Math.PI)) - Math.PI);
+      // collinear through the vertex: the two directions differ by π (mod 2π)
+      const d = Math.abs((((iv.directions[j] - iv.directions[i]) % (2 * Math.PI)) + 2 * Math.PI) % (2 * Math.PI) - Math.PI);
       if (d < 1e-9) return iv.creases[j];
     }
     return undefined;
