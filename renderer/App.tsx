@@ -49,7 +49,11 @@ export function App({ controller }: { controller: Controller }) {
     [project, pattern, shown.anglesDeg],
   );
   const rows = useMemo(() => (project ? hingeRows(project, shown) : []), [project, shown]);
-  const mismatch = useMemo(() => (pattern && project ? shapeFor(pattern, shown.anglesDeg, project.source.basePanel).maxMismatch : undefined), [pattern, project, shown.anglesDeg]);
+  // the gap check walks the whole shape: not while scrubbing, where every sample is a solved state anyway
+  const mismatch = useMemo(
+    () => (pattern && project && shown.source !== 'path' ? shapeFor(pattern, shown.anglesDeg, project.source.basePanel).maxMismatch : undefined),
+    [pattern, project, shown.anglesDeg, shown.source],
+  );
   const [tableRef, tableHeight] = useElementHeight();
 
   useEffect(() => {

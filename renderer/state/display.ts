@@ -244,8 +244,14 @@ export function tintBucket(angleDeg: number): number {
   return Math.round(Math.max(-180, Math.min(180, angleDeg)) / TINT_STEP_DEG);
 }
 
+const bucketColors = new Map<number, string>();
 export function bucketColor(bucket: number): string {
-  return tintScale(bucket * TINT_STEP_DEG);
+  let c = bucketColors.get(bucket);
+  if (c === undefined) {
+    c = tintScale(bucket * TINT_STEP_DEG);
+    bucketColors.set(bucket, c);
+  }
+  return c;
 }
 
 // ---------- path charts ----------

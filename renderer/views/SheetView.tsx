@@ -41,17 +41,31 @@ export interface CreaseGroup {
   d: string;
 }
 
+const segmentCache = new WeakMap<Pattern, string[]>();
+
+/** The path text of every crease, made once per pattern (formatting numbers is the costly part). */
+function segments(pattern: Pattern): string[] {
+  let s = segmentCache.get(pattern);
+  if (!s) {
+    s = pattern.creases.map((c) => {
+      const [ax, ay] = pattern.vertices[c.vertices[0]];
+      const [bx, by] = pattern.vertices[c.vertices[1]];
+      return `M${ax} ${ay}L${bx} ${by}`;
+    });
+    segmentCache.set(pattern, s);
+  }
+  return s;
+}
+
 /** Paths of the creases grouped by line style and tint step. */
 export function creaseGroups(pattern: Pattern, anglesDeg: readonly number[]): CreaseGroup[] {
   const parts = new Map<string, { style: LineStyle; color: string; segs: string[] }>();
+  const segs = segments(pattern);
   for (const c of pattern.creases) {
     const style = STYLE_OF[c.assignment] ?? 'unassigned';
     const color = style === 'boundary' ? '#3b3934' : style === 'flat' ? '#8c877c' : bucketColor(tintBucket(anglesDeg[c.index] ?? 0));
     const key = `${style}|${color}`;
-    const [a, b] = c.vertices;
-    const [ax, ay] = pattern.vertices[a];
-    const [bx, by] = pattern.vertices[b];
-    const seg = `M${ax} ${ay}L${bx} ${by}`;
+    const seg = segs[c.index];
     const g = parts.get(key);
     if (g) g.segs.push(seg);
     else parts.set(key, { style, color, segs: [seg] });

@@ -6,7 +6,8 @@ import * as THREE from 'three';
 import { OrbitControls } from 'three/examples/jsm/controls/OrbitControls.js';
 import type { Pattern } from '../../solver/types';
 import { triangulatePanel } from '../../solver/formats/shape-export';
-import { shapeFor, flatBounds } from '../geometry';
+import { flatBounds } from '../geometry';
+import { placePanels, planShape, type ShapePlan } from '../shape-kernel';
 
 export interface SceneOptions {
   ghost: boolean;
@@ -53,16 +54,22 @@ export class FoldedScene {
   private creasePanel: number[] = [];
   private positions = new Float32Array(0);
   private linePositions = new Float32Array(0);
-  private transforms: Float64Array[] = [];
+  private plan: ShapePlan | null = null;
+  private transforms = new Float64Array(0);
+  private radians = new Float64Array(0);
+  private width = 1;
+  private height = 1;
   private options: SceneOptions | null = null;
   private labelLayer: HTMLDivElement;
   private labelPool: HTMLDivElement[] = [];
   private frameRequested = false;
+  private disposed = false;
   /** frames drawn so far (the benchmark counts them) */
   frames = 0;
 
   constructor(private readonly host: HTMLElement) {
-    this.renderer = new THREE.WebGLRenderer({ antialias: true, preserveDrawingBuffer: true });
+    // multisampling on a software GL (virtual machines, remote desktops, CI) costs more than the whole scene
+    this.renderer = new THREE.WebGLRenderer({ antialias: !softwareGl() });
     this.renderer.setPixelRatio(Math.min(2, window.devicePixelRatio || 1));
     this.renderer.setClearColor('#e9e6de');
     host.appendChild(this.renderer.domElement);
@@ -96,6 +103,7 @@ export class FoldedScene {
   setPattern(pattern: Pattern): void {
     if (pattern === this.pattern) return;
     this.pattern = pattern;
+    this.plan = null;
     this.triangles = pattern.panels.map((p) => ({
       panel: p.index,
       corners: triangulatePanel(pattern, p.vertices).flatMap((t) => t.map((k) => p.vertices[k])),
@@ -128,18 +136,23 @@ export class FoldedScene {
   setAngles(anglesDeg: readonly number[], basePanel: number): void {
     const pattern = this.pattern;
     if (!pattern) return;
-    const shape = shapeFor(pattern, anglesDeg, basePanel);
-    this.transforms = shape.panelTransforms;
+    if (!this.plan || this.plan.base !== basePanel) {
+      this.plan = planShape(pattern, basePanel);
+      this.transforms = new Float64Array(12 * pattern.panels.length);
+      this.radians = new Float64Array(pattern.creases.length);
+    }
+    for (let i = 0; i < this.radians.length; i++) this.radians[i] = ((anglesDeg[i] ?? 0) * Math.PI) / 180;
+    const T = placePanels(this.plan, this.radians, this.transforms);
     const P = pattern.vertices;
     let o = 0;
     const pos = this.positions;
     for (const t of this.triangles) {
-      const T = this.transforms[t.panel];
+      const b = 12 * t.panel;
       for (const v of t.corners) {
         const x = P[v][0], y = P[v][1];
-        pos[o++] = T[0] * x + T[1] * y + T[3];
-        pos[o++] = T[4] * x + T[5] * y + T[7];
-        pos[o++] = T[8] * x + T[9] * y + T[11];
+        pos[o++] = T[b] * x + T[b + 1] * y + T[b + 3];
+        pos[o++] = T[b + 4] * x + T[b + 5] * y + T[b + 7];
+        pos[o++] = T[b + 8] * x + T[b + 9] * y + T[b + 11];
       }
     }
     this.geometry.attributes.position.needsUpdate = true;
@@ -147,12 +160,12 @@ export class FoldedScene {
     this.geometry.computeBoundingSphere();
     const lp = this.linePositions;
     pattern.creases.forEach((c, i) => {
-      const T = this.transforms[this.creasePanel[i]] ?? this.transforms[0];
+      const b = 12 * Math.max(0, this.creasePanel[i]);
       for (let e = 0; e < 2; e++) {
         const x = P[c.vertices[e]][0], y = P[c.vertices[e]][1];
-        lp[6 * i + 3 * e] = T[0] * x + T[1] * y + T[3];
-        lp[6 * i + 3 * e + 1] = T[4] * x + T[5] * y + T[7];
-        lp[6 * i + 3 * e + 2] = T[8] * x + T[9] * y + T[11];
+        lp[6 * i + 3 * e] = T[b] * x + T[b + 1] * y + T[b + 3];
+        lp[6 * i + 3 * e + 1] = T[b + 4] * x + T[b + 5] * y + T[b + 7];
+        lp[6 * i + 3 * e + 2] = T[b + 8] * x + T[b + 9] * y + T[b + 11];
       }
     });
     this.lineGeometry.attributes.position.needsUpdate = true;
@@ -230,18 +243,22 @@ export class FoldedScene {
   resize(): void {
     const w = Math.max(1, this.host.clientWidth);
     const h = Math.max(1, this.host.clientHeight);
+    // kept, so drawing labels never forces a layout in the middle of a frame
+    this.width = w;
+    this.height = h;
     this.renderer.setSize(w, h, true);
     this.camera.aspect = w / h;
     this.camera.updateProjectionMatrix();
     this.requestFrame();
   }
 
+  /** Draw once after the current task: several changes in one React commit make one draw, in this frame. */
   requestFrame(): void {
     if (this.frameRequested) return;
     this.frameRequested = true;
-    requestAnimationFrame(() => {
+    queueMicrotask(() => {
       this.frameRequested = false;
-      this.draw();
+      if (!this.disposed) this.draw();
     });
   }
 
@@ -265,7 +282,7 @@ export class FoldedScene {
         if (opts.selected !== null && !opts.drives.includes(opts.selected)) show.push(opts.selected);
       }
     }
-    const w = this.host.clientWidth, h = this.host.clientHeight;
+    const w = this.width, h = this.height;
     const v = new THREE.Vector3();
     while (this.labelPool.length < show.length) {
       const d = document.createElement('div');
@@ -294,6 +311,7 @@ export class FoldedScene {
   }
 
   dispose(): void {
+    this.disposed = true;
     this.controls.dispose();
     this.geometry.dispose();
     this.lineGeometry.dispose();
@@ -303,6 +321,23 @@ export class FoldedScene {
     this.renderer.domElement.remove();
     this.labelLayer.remove();
   }
+}
+
+let software: boolean | undefined;
+/** True when WebGL runs on a CPU renderer (SwiftShader, llvmpipe, Microsoft Basic Render). */
+export function softwareGl(): boolean {
+  if (software === undefined) {
+    try {
+      const gl = document.createElement('canvas').getContext('webgl');
+      const info = gl?.getExtension('WEBGL_debug_renderer_info');
+      const name = info && gl ? String(gl.getParameter(info.UNMASKED_RENDERER_WEBGL)) : '';
+      software = /swiftshader|llvmpipe|softpipe|basic render/i.test(name);
+      gl?.getExtension('WEBGL_lose_context')?.loseContext();
+    } catch {
+      software = false;
+    }
+  }
+  return software;
 }
 
 export function webglAvailable(): boolean {

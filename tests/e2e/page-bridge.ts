@@ -4,6 +4,10 @@ import { createHingeplanApi } from '../../electron/bridge';
 import type { Channel, EventName } from '../../electron/contract';
 
 type Listener = (payload: unknown) => void;
+
+// functions that tests send with page.evaluate() are compiled by tsx, which names them through a helper
+// `__name`; the page needs it too
+(globalThis as unknown as { __name?: (f: unknown) => unknown }).__name ??= (f) => f;
 const w = window as unknown as {
   __hpInvoke(channel: Channel, payload: unknown): Promise<unknown>;
   __hpEmit(event: EventName, payload: unknown): void;
