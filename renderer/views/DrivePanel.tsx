@@ -65,7 +65,7 @@ function DriveRow({ drive, onChange, onDragEnd, onRemove }: { drive: DriveSpec }
         aria-label={`slider for drive ${drive.crease}`}
         onChange={(e) => onChange(drive.crease, Number(e.target.value), true)}
         onPointerUp={onDragEnd}
-        onKeyUp={onDragEnd}
+        onBlur={onDragEnd}
       />
       <button className="icon-button" title={`Stop driving ${drive.crease}`} aria-label={`remove drive ${drive.crease}`} onClick={() => onRemove(drive.crease)}>
         ×

@@ -317,4 +317,53 @@ export const e2eTests: E2ETest[] = [
       });
     },
   },
+  {
+    name: 'dragging a drive supersedes stale solves: the table ends on the solver’s state at the last value',
+    async run(h) {
+      const { pattern } = loadSample(COUPON);
+      await withSession(h, 'drag-drive', { openSample: COUPON_FILE }, async ({ page }) => {
+        await waitSolved(page);
+        const slider = page.getByLabel('slider for drive c0');
+        await slider.focus();
+        // 40 steps of 0.5° as fast as the keyboard repeats: each asks for a solve, most are superseded
+        for (let i = 0; i < 40; i++) await slider.press('ArrowRight');
+        const final = Number(await slider.inputValue());
+        assert.ok(final > 55, `the slider moved to ${final}°`);
+        const docValue = await page.getByLabel('angle of drive c0 in degrees').inputValue();
+        assert.equal(Number(docValue), final, 'the drive field follows the slider');
+        await page.waitForFunction((v) => document.querySelector('[data-testid=hinge-table] .row[data-label=c0] [data-testid=angle-cell]')?.textContent === `${v.toFixed(2)}°`, final);
+        await waitSolved(page);
+        await page.waitForTimeout(300);
+        const reference = referenceSolve(pattern, [{ crease: 'c0', angleDeg: final }]);
+        const idx = await currentCardIndex(page);
+        await assertTableMatches(page, pattern, reference.solutions[idx].angles, 'after the drag');
+        // the run of slider steps is one undo step
+        await page.click('.doc-title');
+        await page.keyboard.press('Control+z');
+        await page.waitForFunction(() => (document.querySelector('[aria-label="angle of drive c0 in degrees"]') as HTMLInputElement).value === '45');
+      });
+    },
+  },
+  {
+    name: 'the hinge table copies as CSV with the cautions line',
+    async run(h) {
+      const { pattern } = loadSample(COUPON);
+      await withSession(h, 'copy-table', { openSample: COUPON_FILE }, async ({ page, host }) => {
+        await waitSolved(page);
+        await page.click('button:has-text("Copy as CSV")');
+        await page.waitForFunction(() => true);
+        for (let i = 0; i < 20 && !host.clipboard; i++) await page.waitForTimeout(50);
+        const lines = host.clipboard.split('\n');
+        assert.equal(lines[0], `# ${CAUTIONS}`);
+        const parsed = Papa.parse<Record<string, string>>(lines.filter((l) => !l.startsWith('#')).join('\n'), { header: true, skipEmptyLines: true });
+        assert.deepEqual(parsed.errors, []);
+        assert.equal(parsed.data.length, pattern.creases.filter((c) => c.assignment !== 'B').length);
+        const reference = referenceSolve(pattern, [{ crease: 'c0', angleDeg: 45 }]);
+        const idx = await currentCardIndex(page);
+        for (const row of parsed.data) {
+          assert.ok(Math.abs(Number(row.angle_deg) - reference.solutions[idx].angles[Number(row.index)] * DEG) < 1e-5, `row ${row.label}`);
+        }
+      });
+    },
+  },
 ];
