@@ -278,18 +278,21 @@ function where(e: number, label: string | undefined): Where {
 // ---------------------------------------------------------------------------------------------------
 // Stage 2: geometry of vertices and creases
 
-function checkGeometry(c: Checked, out: Messages): { size: number; tol: number } | undefined {
-  const { xy, nv, ev, ne } = c;
-  let x0 = Infinity;
-  let y0 = Infinity;
-  let x1 = -Infinity;
-  let y1 = -Infinity;
+/** [xmin, ymin, xmax, ymax] of the first nv vertices. */
+function boundingBox(xy: Float64Array, nv: number): [number, number, number, number] {
+  let x0 = Infinity, y0 = Infinity, x1 = -Infinity, y1 = -Infinity;
   for (let v = 0; v < nv; v++) {
     x0 = Math.min(x0, xy[2 * v]);
     x1 = Math.max(x1, xy[2 * v]);
     y0 = Math.min(y0, xy[2 * v + 1]);
     y1 = Math.max(y1, xy[2 * v + 1]);
   }
+  return [x0, y0, x1, y1];
+}
+
+function checkGeometry(c: Checked, out: Messages): { size: number; tol: number } | undefined {
+  const { xy, nv, ev, ne } = c;
+  const [x0, y0, x1, y1] = boundingBox(xy, nv);
   const size = Math.hypot(x1 - x0, y1 - y0);
   if (!(size > 0) || !Number.isFinite(size)) {
     out.add('error', 'degenerate-sheet', `All vertices are at one point (or the sheet is too large to measure): the sheet has no area.`);
@@ -836,16 +839,7 @@ function chooseBasePanel(requested: unknown, panels: Panel[], xy: Float64Array, 
       { field: 'basePanel' },
     );
   }
-  let x0 = Infinity;
-  let y0 = Infinity;
-  let x1 = -Infinity;
-  let y1 = -Infinity;
-  for (let v = 0; v < nv; v++) {
-    x0 = Math.min(x0, xy[2 * v]);
-    x1 = Math.max(x1, xy[2 * v]);
-    y0 = Math.min(y0, xy[2 * v + 1]);
-    y1 = Math.max(y1, xy[2 * v + 1]);
-  }
+  const [x0, y0, x1, y1] = boundingBox(xy, nv);
   const mx = (x0 + x1) / 2;
   const my = (y0 + y1) / 2;
   let best = 0;

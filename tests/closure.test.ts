@@ -3,17 +3,9 @@ import { Quaternion, Vector3 } from 'three';
 import { buildClosureSystem, closureScratch, evaluateBlock } from '../solver/closure';
 import { axisAngleRotation, mat3, multiplyMat3, rotationVector, vec3 } from '../solver/math/rotation';
 import { directionsFromSectors, vertexPattern } from './support/vertex';
+import { mulberry32 } from '../solver/cone';
 
-function rng(seed: number) {
-  let s = seed >>> 0;
-  return () => {
-    s = (s + 0x6d2b79f5) >>> 0;
-    let t = s;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+const rng = mulberry32;
 
 describe('rotation kernels', () => {
   it('compose like three.js quaternions (independent library from the npm registry)', () => {
