@@ -64,6 +64,27 @@ try {
     };
   }, seconds * 1000);
   await screenshot(page, 'bench-scrub-miura');
+  if (process.env.SCRUB_PROFILE) {
+    const cdp = await page.context().newCDPSession(page);
+    await cdp.send('Profiler.enable');
+    await cdp.send('Profiler.start');
+    await page.evaluate(async () => {
+      const c = (window as unknown as { __hingeplan: { store: { dispatch(a: unknown): void } } }).__hingeplan;
+      for (let k = 0; k < 60; k++) {
+        c.store.dispatch({ type: 'scrub', index: k * 3 });
+        await new Promise((r) => requestAnimationFrame(r));
+      }
+    });
+    const { profile } = (await cdp.send('Profiler.stop')) as unknown as { profile: { nodes: { id: number; callFrame: { functionName: string; url: string; lineNumber: number } }[]; samples: number[]; timeDeltas: number[] } };
+    const byId = new Map(profile.nodes.map((n) => [n.id, n]));
+    const self = new Map<string, number>();
+    profile.samples.forEach((id, i) => {
+      const f = byId.get(id)!.callFrame;
+      const k = `${f.functionName || '(anonymous)'} ${f.url.split('/').pop()}:${f.lineNumber}`;
+      self.set(k, (self.get(k) ?? 0) + (profile.timeDeltas[i] ?? 0));
+    });
+    console.log([...self].sort((a, b) => b[1] - a[1]).slice(0, 15).map(([k, v]) => `  ${(v / 1000).toFixed(0)} ms ${k}`).join('\n'));
+  }
   console.log(`scrub benchmark: Miura-ori ${cells} × ${cells} cells, ${facts.creases} creases, path of ${facts.samples} samples (computed in ${pathSeconds.toFixed(1)} s)`);
   console.log(`  scrub steps (sheet tint, hinge table, chart marker): ${result.updatesPerSecond.toFixed(1)} per second; frame time median ${result.medianUpdateMs.toFixed(1)} ms, 95th percentile ${result.p95UpdateMs.toFixed(1)} ms`);
   console.log(`  3D shape frames drawn: ${result.shapeFramesPerSecond.toFixed(1)} frames per second`);

@@ -237,6 +237,9 @@ export const PathEventSchema = z.object({
   driveDeg: finite,
   text: z.string(),
   crease: z.number().int().optional(),
+  /** at a branch point: the rays leaving it, and the state there (degrees per crease) */
+  branches: z.array(BranchSchema).optional(),
+  anglesDeg: z.array(finite).optional(),
 });
 export type PathEventDto = z.output<typeof PathEventSchema>;
 
@@ -245,6 +248,7 @@ export const PathResultSchema = z.object({
   driveCrease: z.number().int(),
   driveLabel: z.string(),
   branchId: z.string().optional(),
+  branchName: z.string().optional(),
   samples: z.array(PathSampleSchema),
   events: z.array(PathEventSchema),
   messages: z.array(MessageSchema),

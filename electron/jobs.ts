@@ -40,8 +40,10 @@ import {
   type SolutionDto,
   type SolveResultDto,
 } from './contract';
-import { JobFailure, type Job, type JobContext } from './worker-protocol';
+import { JobFailure } from './worker-protocol';
 import { LruMap } from './lru';
+import { angleTable, deploymentSchedule } from './path-tables';
+import type { SweepResult } from '../solver/path';
 import { z } from 'zod';
 
 const DEG = 180 / Math.PI;
@@ -264,24 +266,9 @@ export function exportJob(state: JobState, payload: unknown): ExportData {
   }
 }
 
-function writeTable(kind: 'angle-table' | 'schedule', _pattern: Pattern, _path: StoredPath, _options: z.output<typeof ExportOptionsSchema>): ExportData {
-  throw new JobFailure('not-available', `${kind} export waits for the fold-path writers`);
+function writeTable(kind: 'angle-table' | 'schedule', pattern: Pattern, path: StoredPath, options: z.output<typeof ExportOptionsSchema>): ExportData {
+  const raw = path.raw as SweepResult;
+  return kind === 'angle-table' ? angleTable(pattern, raw, options) : deploymentSchedule(pattern, raw, options);
 }
 
 // ---------- the job table ----------
-
-export function createJobs(state: JobState = createJobState()): Record<string, Job> {
-  const withState =
-    <T>(f: (s: JobState, p: unknown, ctx: JobContext) => T): Job =>
-    (payload, ctx) =>
-      f(state, payload, ctx);
-  return {
-    load: withState(loadJob),
-    'write-project': withState(writeProjectJob),
-    generate: withState(generateJob),
-    'set-pattern': withState(setPatternJob),
-    solve: withState(solveJob),
-    shape: withState(shapeJob),
-    export: withState(exportJob),
-  };
-}

@@ -2,7 +2,7 @@
 // middle with the path below, the crease and the hinge table on the right. The views only draw the state;
 // the controller does the work.
 
-import { useEffect, useMemo, useRef, useState } from 'react';
+import { useCallback, useEffect, useMemo, useRef, useState } from 'react';
 import type { Controller } from './controller';
 import { useStore } from './state/store';
 import { canRedo, canUndo } from './state/history';
@@ -21,16 +21,18 @@ import { PathPanel } from './views/PathPanel';
 import { NewDialog, ExportDialog } from './views/Dialogs';
 import { Notices } from './views/Notices';
 
-function useElementHeight(): [React.RefObject<HTMLDivElement | null>, number] {
-  const ref = useRef<HTMLDivElement>(null);
+/** Height of an element that may appear later (a callback ref, so it is measured whenever it mounts). */
+function useElementHeight(): [(el: HTMLDivElement | null) => void, number] {
   const [h, setH] = useState(400);
-  useEffect(() => {
-    const el = ref.current;
+  const observer = useRef<ResizeObserver | null>(null);
+  const ref = useCallback((el: HTMLDivElement | null) => {
+    observer.current?.disconnect();
+    observer.current = null;
     if (!el || typeof ResizeObserver === 'undefined') return;
     const ro = new ResizeObserver(() => setH(Math.max(120, el.clientHeight)));
     ro.observe(el);
+    observer.current = ro;
     setH(Math.max(120, el.clientHeight));
-    return () => ro.disconnect();
   }, []);
   return [ref, h];
 }
@@ -183,6 +185,7 @@ export function App({ controller }: { controller: Controller }) {
                 if (done) controller.commitScrub();
               }}
               onLoadBranches={() => void controller.loadBranches()}
+              onFollowRay={(e, b) => void controller.followRay(e, b)}
             />
           </section>
           <aside className="right">

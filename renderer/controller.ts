@@ -3,7 +3,7 @@
 // Views call these methods; results come back as actions on the store.
 
 import type { HingeplanApi } from './api';
-import type { DriveSpec, ExportKind, ExportOptionsDto, GeneratorSpec, MenuCommand, OpenResult, ProjectDto, SweepOptionsDto } from '../electron/contract';
+import type { BranchDto, PathEventDto, DriveSpec, ExportKind, ExportOptionsDto, GeneratorSpec, MenuCommand, OpenResult, ProjectDto, SweepOptionsDto } from '../electron/contract';
 import { currentProject, isDirty, type AppState } from './state/app';
 import type { Store } from './state/store';
 import { addDrive, creaseIndexByLabel, removeDrive, setDriveAngle, type Edit } from './state/document';
@@ -24,6 +24,8 @@ export interface PathRequest {
   toDeg?: number;
   stepDeg?: number;
   branchId?: string;
+  /** start from this state (degrees per crease) instead of the flat sheet */
+  startAnglesDeg?: number[];
 }
 
 export class Controller {
@@ -34,7 +36,7 @@ export class Controller {
   private lastDocState = '';
   private unsubscribe: (() => void)[] = [];
   /** path options last used, so "compute path" repeats them */
-  pathDefaults: Required<Omit<PathRequest, 'drive' | 'branchId'>> = { fromDeg: 0, toDeg: 180, stepDeg: 1 };
+  pathDefaults: Required<Omit<PathRequest, 'drive' | 'branchId' | 'startAnglesDeg'>> = { fromDeg: 0, toDeg: 180, stepDeg: 1 };
 
   constructor(
     readonly api: HingeplanApi,
@@ -308,8 +310,8 @@ export class Controller {
       this.store.dispatch({ type: 'notice', kind: 'warning', title: 'No drive to follow', messages: [{ severity: 'warning', code: 'no-drive', text: 'Mark a crease as a drive first (click it on the sheet).' }] });
       return;
     }
-    const defaults = { ...this.pathDefaults, ...Object.fromEntries(Object.entries(request).filter(([, v]) => v !== undefined)) };
-    this.pathDefaults = { fromDeg: defaults.fromDeg, toDeg: defaults.toDeg, stepDeg: defaults.stepDeg };
+    const defaults = { ...this.pathDefaults, ...Object.fromEntries(Object.entries(request).filter(([k, v]) => v !== undefined && k !== 'startAnglesDeg')) } as typeof this.pathDefaults;
+    if (!request.startAnglesDeg) this.pathDefaults = { fromDeg: defaults.fromDeg, toDeg: defaults.toDeg, stepDeg: defaults.stepDeg };
     const requestId = newId('sweep');
     this.store.dispatch({ type: 'path-started', requestId, drive, branchId: request.branchId });
     const key = await this.ensurePattern(project);
@@ -323,7 +325,8 @@ export class Controller {
       toDeg: defaults.toDeg,
       stepDeg: defaults.stepDeg,
       held: project.drives.filter((d) => d.crease !== drive),
-      ...(request.branchId ? { branchId: request.branchId } : {}),
+      ...(request.branchId && !request.startAnglesDeg ? { branchId: request.branchId } : {}),
+      ...(request.startAnglesDeg ? { startAnglesDeg: request.startAnglesDeg } : {}),
     };
     const r = await this.api.sweep({ requestId, key, options });
     if (!r.ok) {
@@ -332,6 +335,26 @@ export class Controller {
     }
     if (r.value.status === 'done') this.store.dispatch({ type: 'path-finished', requestId, result: r.value.value });
     else this.store.dispatch({ type: 'path-stopped', requestId, status: 'cancelled' });
+  }
+
+  /**
+   * Leave a branch point of the path along one of its rays: start half a degree of drive along the ray's
+   * first-order direction (the solver closes that state) and follow the drive to the same end.
+   */
+  async followRay(event: PathEventDto, branch: BranchDto): Promise<void> {
+    const path = this.state.path.result;
+    if (!path || !event.anglesDeg) return;
+    const d = path.driveCrease;
+    const td = branch.tangent[d] ?? 0;
+    if (Math.abs(td) < 1e-6) {
+      this.store.dispatch({ type: 'notice', kind: 'warning', title: `Branch ${branch.name} does not move the drive`, messages: [{ severity: 'warning', code: 'ray-without-drive', text: `Along ${branch.name} the drive ${path.driveLabel} stays put; drive another crease to follow it.` }] });
+      return;
+    }
+    const scale = 0.5 / Math.abs((td * 180) / Math.PI);
+    const start = event.anglesDeg.map((a, c) => a + ((branch.tangent[c] ?? 0) * 180 * scale) / Math.PI);
+    const fromDeg = start[d];
+    const toDeg = Math.sign(td) > 0 ? Math.max(fromDeg, this.pathDefaults.toDeg) : Math.min(fromDeg, this.pathDefaults.fromDeg);
+    await this.computePath({ drive: path.driveLabel, fromDeg, toDeg: toDeg === fromDeg ? (td > 0 ? 180 : -180) : toDeg, startAnglesDeg: start, branchId: `ray:${branch.name}` });
   }
 
   async cancelPath(): Promise<void> {

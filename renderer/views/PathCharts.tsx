@@ -30,12 +30,14 @@ interface ChartProps {
   height: number;
   yLabel: string;
   yDomain: [number, number];
+  kind: 'angle' | 'rate';
   shadeNearSingular?: boolean;
   onScrub(index: number, done: boolean): void;
   testId: string;
 }
 
-function linePath(xs: number[], ys: number[]): string {
+/** SVG path through the points; breaks where a value is missing or where an angle wraps past ±180°. */
+function linePath(xs: number[], ys: number[], values: number[], wrap: boolean): string {
   let d = '';
   let pen = false;
   for (let i = 0; i < xs.length; i++) {
@@ -43,6 +45,7 @@ function linePath(xs: number[], ys: number[]): string {
       pen = false;
       continue;
     }
+    if (wrap && i > 0 && Math.abs(values[i] - values[i - 1]) > 180) pen = false;
     d += `${pen ? 'L' : 'M'}${xs[i].toFixed(1)} ${ys[i].toFixed(1)}`;
     pen = true;
   }
@@ -56,6 +59,8 @@ const Chart = memo(function Chart(p: ChartProps) {
   const lo = Math.min(...drives), hi = Math.max(...drives);
   const x = scaleLinear().domain(lo === hi ? [lo - 1, hi + 1] : [lo, hi]).range([m.l, width - m.r]);
   const y = scaleLinear().domain(p.yDomain).range([height - m.b, m.t]).nice();
+  // angles never go past ±180°: keep the axis there even when rounding would widen it
+  if (p.kind === 'angle') y.domain([Math.max(-180, y.domain()[0]), Math.min(180, y.domain()[1])]);
   const xs = drives.map((d) => x(d));
   const dragging = useRef(false);
   const svgRef = useRef<SVGSVGElement>(null);
@@ -76,6 +81,8 @@ const Chart = memo(function Chart(p: ChartProps) {
         d: linePath(
           xs,
           g.values.map((v) => (Number.isFinite(v) ? y(Math.max(p.yDomain[0] - span, Math.min(p.yDomain[1] + span, v))) : NaN)),
+          g.values,
+          p.kind === 'angle',
         ),
         creases: g.creases,
         color: CURVE_COLORS[p.assignments[g.creases[0]]] ?? '#6b675f',
@@ -213,11 +220,11 @@ export function PathCharts({ path, project, selectedCrease, current, width, onSc
       <div className="chart-caption">
         Hinge angles (°) against drive {path.driveLabel}: {angleGroups.length} distinct {angleGroups.length === 1 ? 'curve' : 'curves'} for {creases.length} creases
       </div>
-      <Chart path={path} groups={angleGroups} assignments={project.source.assignments} selectedCrease={selectedCrease} current={current} width={width} height={h} yLabel="angle °" yDomain={aDomain} onScrub={onScrub} testId="angle-chart" />
+      <Chart path={path} groups={angleGroups} assignments={project.source.assignments} selectedCrease={selectedCrease} current={current} width={width} height={h} kind="angle" yLabel="angle °" yDomain={aDomain} onScrub={onScrub} testId="angle-chart" />
       <div className="chart-caption">
         Hinge rates (° per ° of drive); <span className="near-singular-key">shaded</span>: near-singular
       </div>
-      <Chart path={path} groups={rateGroups} assignments={project.source.assignments} selectedCrease={selectedCrease} current={current} width={width} height={h - 20} yLabel="rate" yDomain={rDomain} shadeNearSingular onScrub={onScrub} testId="rate-chart" />
+      <Chart path={path} groups={rateGroups} assignments={project.source.assignments} selectedCrease={selectedCrease} current={current} width={width} height={h - 20} kind="rate" yLabel="rate" yDomain={rDomain} shadeNearSingular onScrub={onScrub} testId="rate-chart" />
     </div>
   );
 }

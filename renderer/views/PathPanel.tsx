@@ -2,7 +2,7 @@
 // scrub slider, the events, and the branch map to switch branch.
 
 import { useEffect, useRef, useState } from 'react';
-import type { BranchesResultDto, PathResultDto, ProjectDto } from '../../electron/contract';
+import type { BranchDto, BranchesResultDto, PathEventDto, PathResultDto, ProjectDto } from '../../electron/contract';
 import type { PathState, BranchState } from '../state/app';
 import { PathCharts, EVENT_LOOK } from './PathCharts';
 import type { PathRequest } from '../controller';
@@ -18,6 +18,7 @@ export interface PathPanelProps {
   onCancel(): void;
   onScrub(index: number | null, done: boolean): void;
   onLoadBranches(): void;
+  onFollowRay(event: PathEventDto, branch: BranchDto): void;
 }
 
 function useWidth<T extends HTMLElement>(): [React.RefObject<T | null>, number] {
@@ -157,6 +158,23 @@ export function PathPanel(props: PathPanelProps) {
         <BranchMap result={branches.result} current={path.branchId} onPick={(id) => compute(id)} />
       )}
       {branches.status === 'error' && <p className="message message-error">Branches: {branches.error}</p>}
+      {result?.events
+        .filter((e) => e.type === 'branch-point' && e.branches?.length)
+        .map((e, i) => (
+          <div key={i} className="branch-map" data-testid="branch-point">
+            <div className="branch-group">
+              <div className="branch-group-name">◆ branch point at {result.driveLabel} = {e.driveDeg.toFixed(2)}°: leave it along</div>
+              <div className="branch-list">
+                {e.branches!.map((b) => (
+                  <button key={b.id} className="branch" onClick={() => props.onFollowRay(e, b)} title={b.matchesAssignment ? 'folds the way the creases are assigned' : 'folds against the assignment somewhere'}>
+                    {b.name} <span className="branch-kind">{b.group}</span>
+                    {b.matchesAssignment ? <span className="badge good">M/V</span> : null}
+                  </button>
+                ))}
+              </div>
+            </div>
+          </div>
+        ))}
       {hasBranchPoints && branches.status === 'idle' && <p className="hint">The path passes branch points (◆): “Branches at flat” lists where else the sheet can go.</p>}
       <div ref={ref} className="chart-area">
         {result ? (

@@ -10,6 +10,8 @@ import { nodeWorkerSpawner } from '../../electron/worker-client';
 import { RecentFiles, RecoveryStore } from '../../electron/files';
 import { loadPatternText, solveDrives, CAUTIONS } from '../../solver';
 import { buildWorker, SAMPLES } from './support';
+import Papa from 'papaparse';
+import { miura } from '../../solver';
 
 class FakeHost implements DialogHost {
   open: (string | null)[] = [];
@@ -215,5 +217,55 @@ describe('main-process handlers', () => {
   it('copies text to the clipboard through the host', async () => {
     await call('clipboard:write', { text: 'a,b\n1,2\n' });
     expect(host.clip).toBe('a,b\n1,2\n');
+  });
+
+  it('runs a sweep in the worker with progress to the page, and stops it on cancel', async () => {
+    const m = miura({ rows: 12, cols: 12, a: 20, b: 15, alphaDeg: 70 }).project!;
+    await call('pattern:set', { key: 'm12', source: m.source });
+    host.events = [];
+    const options = { drive: m.drives[0].crease, fromDeg: 0, toDeg: 180, stepDeg: 0.05, held: [] };
+    const running = service.dispatch('sweep', { requestId: 'long-1', key: 'm12', options });
+    for (let i = 0; i < 200 && !host.events.length; i++) await new Promise((r) => setTimeout(r, 20));
+    expect(host.events.length).toBeGreaterThan(0);
+    expect(host.events[0]).toMatchObject(['job:progress', { requestId: 'long-1', total: 3601 }]);
+    expect(await call('job:cancel', { requestId: 'long-1' })).toEqual({ cancelled: true });
+    expect(await running).toEqual({ ok: true, value: { status: 'cancelled' } });
+    // the lane is free again soon: the sweep saw the stop flag
+    const t0 = Date.now();
+    const short = (await call('sweep', { requestId: 'short-1', key: 'm12', options: { ...options, stepDeg: 30 } })) as { status: string; value: { samples: unknown[]; complete: boolean } };
+    expect(Date.now() - t0).toBeLessThan(3000);
+    expect(short.status).toBe('done');
+    expect(short.value.samples.length).toBe(7);
+  });
+
+  it('writes the angle table and the schedule of a computed path, each with the cautions line', async () => {
+    const loaded = loadPatternText(readFileSync(coupon, 'utf8'), 'c.hingeplan.json');
+    await call('pattern:set', { key: 'tab', source: loaded.project!.source });
+    const path1 = (await call('sweep', { requestId: 'tab-1', key: 'tab', options: { drive: 'c0', fromDeg: 0, toDeg: 120, stepDeg: 2, held: [] } })) as { value: { pathId: string; samples: { driveDeg: number; anglesDeg: number[] }[] } };
+    const target = path.join(tmp, 'table.csv');
+    host.save.push(target);
+    await call('doc:export', { kind: 'angle-table', project: loaded.project, key: 'tab', pathId: path1.value.pathId, options: { format: 'csv', every: 3 }, suggestedName: 'c' });
+    const text = readFileSync(target, 'utf8');
+    expect(text.split('\n')[0]).toBe(`# ${CAUTIONS}`);
+    const rows = Papa.parse<Record<string, string>>(text.split('\n').filter((l) => !l.startsWith('#')).join('\n'), { header: true, skipEmptyLines: true });
+    expect(rows.errors).toEqual([]);
+    expect(rows.data.length).toBe(Math.ceil(path1.value.samples.length / 3));
+    const c1 = loaded.pattern!.labelIndex.get('c1')!;
+    rows.data.forEach((r, k) => {
+      const s = path1.value.samples[Math.min(3 * k, path1.value.samples.length - 1)];
+      expect(Number(r.drive_deg)).toBeCloseTo(s.driveDeg, 5);
+      expect(Number(r.c1_deg)).toBeCloseTo(s.anglesDeg[c1], 5);
+    });
+    // a schedule needs samples at its step: 2° samples give a 10° schedule, not a 3° one
+    const sched = path.join(tmp, 'schedule.csv');
+    host.save.push(sched);
+    expect(await call('doc:export', { kind: 'schedule', project: loaded.project, key: 'tab', pathId: path1.value.pathId, options: { stepDeg: 10, rateDegPerSec: 5 }, suggestedName: 'c' })).toMatchObject({ status: 'saved' });
+    const lines = readFileSync(sched, 'utf8').split('\n').filter((l) => l && !l.startsWith('#'));
+    expect(lines[0].split(',').slice(0, 3)).toEqual(['step', 'time_s', 'drive_deg']);
+    expect(lines[2].split(',').slice(0, 3)).toEqual(['1', '2.000', '10.000000']);
+    host.save.push(path.join(tmp, 'bad.csv'));
+    const bad = (await call('doc:export', { kind: 'schedule', project: loaded.project, key: 'tab', pathId: path1.value.pathId, options: { stepDeg: 3 }, suggestedName: 'c' })) as { status: string; message: string };
+    expect(bad.status).toBe('failed');
+    expect(bad.message).toContain('no sample at 3.000°');
   });
 });

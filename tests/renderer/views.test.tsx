@@ -9,7 +9,7 @@ import { buildPattern } from '../../solver/pattern';
 import { loadPatternText, solveDrives } from '../../solver';
 import type { PathResultDto, ProjectDto, SolutionDto } from '../../electron/contract';
 import { createHingeplanApi, type Transport } from '../../electron/bridge';
-import { createJobs } from '../../electron/jobs';
+import { createJobs } from '../../electron/job-table';
 import { SheetView, DASHES, creaseGroups } from '../../renderer/views/SheetView';
 import { DrivePanel } from '../../renderer/views/DrivePanel';
 import { HingeTable } from '../../renderer/views/HingeTable';
