@@ -933,7 +933,7 @@ export class SweepRun {
         if (c.index === this.options.drive) continue;
         // reaching ±180° exactly is reported at the sample; going past it (the unwrapped angle leaves
         // [−180°, 180°], or the wrapped one jumps by about 360°) ends the path
-        if (Math.abs(a) >= Math.PI - FLAT_FOLDED) continue;
+        if (Math.abs(Math.abs(a) - Math.PI) < FLAT_FOLDED) continue;
         if (Math.abs(a - a0) > Math.PI || (Math.abs(a0) <= Math.PI && Math.abs(a) > Math.PI)) return { type: 'folded-flat', crease: c.index };
       }
       return undefined;

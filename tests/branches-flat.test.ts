@@ -1,0 +1,175 @@
+// Branch analysis at the flat state and at folded states, against published first-order relations.
+import { describe, expect, it } from 'vitest';
+import { branchesAt, flatBranches, flatModeOfMesh, tangentMatchesAssignment } from '../solver/branches';
+import { miura, degree4Assignment } from '../solver/generators';
+import { buildPattern } from '../solver/pattern';
+import { sweep, secondOrderRows } from '../solver/path';
+import { ClosureProblem } from '../solver/newton';
+import { buildClosureSystem, evaluateClosure } from '../solver/closure';
+import { directionsFromSectors, vertexPattern } from './support/vertex';
+
+const D = Math.PI / 180;
+
+/**
+ * Flat-foldable degree-4 vertex, sectors α, β, 180°−α, 180°−β. Published fold-angle multipliers (T. Tachi,
+ * J. IASS 50(3) 2009; T. Evans, R. Lang, S. Magleby, L. Howell, R. Soc. Open Sci. 2:150067, 2015; R. Lang,
+ * L. Howell, J. Mech. Robot. 10(2):021004, 2018): |tan(ρ1/2)| = k·|tan(ρ0/2)|, so at flat the first-order
+ * ratio |t1/t0| is k itself:
+ *   mode A (c0 = −c2, c1 = c3): k = |sin((α+β)/2) / sin((α−β)/2)|
+ *   mode B (c0 = c2, c1 = −c3): k = |cos((α+β)/2) / cos((α−β)/2)|
+ */
+describe('flat-foldable degree-4 vertex: four rays at flat, each one of the published modes', () => {
+  const cases: [number, number][] = [[60, 100], [45, 80], [30, 70], [75, 95], [50, 140], [85, 20]];
+  for (const [a, b] of cases) {
+    it(`sectors ${a}/${b}/${180 - a}/${180 - b}`, () => {
+      const sectors = [a, b, 180 - a, 180 - b];
+      const p = vertexPattern(directionsFromSectors(sectors), degree4Assignment(sectors));
+      const r = flatBranches(p, { drive: 0 });
+      expect(r.state).toBe('flat');
+      expect(r.branches.length).toBe(4);
+      expect(r.groups.length).toBe(2);
+      const kA = Math.abs(Math.sin(((a + b) / 2) * D) / Math.sin(((a - b) / 2) * D));
+      const kB = Math.abs(Math.cos(((a + b) / 2) * D) / Math.cos(((a - b) / 2) * D));
+      const modeOf = (t: Float64Array) => {
+        const r1 = t[1] / t[0], r2 = t[2] / t[0], r3 = t[3] / t[0];
+        if (Math.abs(r2 + 1) < 1e-9 && Math.abs(r3 - r1) < 1e-9 && Math.abs(Math.abs(r1) - kA) < 1e-9) return 'A';
+        if (Math.abs(r2 - 1) < 1e-9 && Math.abs(r3 + r1) < 1e-9 && Math.abs(Math.abs(r1) - kB) < 1e-9) return 'B';
+        return '?';
+      };
+      const modes = r.branches.map((x) => modeOf(x.tangent));
+      expect(modes.filter((m) => m === 'A').length).toBe(2);
+      expect(modes.filter((m) => m === 'B').length).toBe(2);
+      // the two rays of a group are one curve, both senses; ratios are relative to the drive c0
+      for (const g of r.groups) {
+        const [p1, p2] = g.branches.map((id) => r.branches.find((x) => x.id === id)!);
+        expect(modeOf(p1.tangent)).toBe(modeOf(p2.tangent));
+        expect(p1.tangent[0] * p2.tangent[0]).toBeLessThan(0);
+        expect(p1.name.endsWith('+') && p2.name.endsWith('-')).toBe(true);
+        expect(p1.ratios.get(0)).toBe(1);
+      }
+      // exactly one ray has the signs of a Maekawa assignment (3 + 1, odd crease at the smallest sector)
+      expect(r.branches.filter((x) => x.matchesAssignment).length).toBe(1);
+      // its curve is listed first (group A)
+      expect(r.branches.find((x) => x.matchesAssignment)!.group).toBe('A');
+      for (const x of r.branches) expect(x.verified).toBe(true);
+    });
+  }
+});
+
+function miuraSheet(rows: number, cols: number, alphaDeg: number) {
+  const g = miura({ rows, cols, a: 40, b: 30, alphaDeg });
+  const { pattern } = buildPattern(g.project!.source);
+  return { pattern: pattern!, drive: pattern!.labelIndex.get(g.project!.drives[0].crease)! };
+}
+
+describe('Miura-ori sheet at flat', () => {
+  it('has its Miura ray pair (straight/zigzag ratio cos α, Schenk & Guest 2013 to first order) and every straight line folding alone', () => {
+    const alpha = 65;
+    const { pattern, drive } = miuraSheet(2, 3, alpha);
+    const r = flatBranches(pattern, { drive });
+    expect(r.partial).toBe(false);
+    const miuraRays = r.branches.filter((b) => b.kind === 'curve' && b.group === 'A');
+    expect(miuraRays.length).toBe(2);
+    expect(miuraRays.some((b) => b.matchesAssignment)).toBe(true);
+    for (const b of miuraRays) {
+      for (const c of pattern.creases) {
+        if (c.assignment === 'B') continue;
+        const want = c.label.startsWith('z') ? 1 : Math.cos(alpha * D);
+        expect(Math.abs(Math.abs(b.ratios.get(c.index)!) - want), c.label).toBeLessThan(1e-9);
+      }
+    }
+    // interior straight crease lines j = 1 … 2·rows − 1, each folding alone, both senses
+    const lines = r.groups.filter((g) => g.kind === 'line');
+    expect(lines.length).toBe(2 * 2 - 1);
+    for (const g of lines) {
+      expect(g.branches.length).toBe(2);
+      const b = r.branches.find((x) => x.id === g.branches[0])!;
+      const moving = [...b.ratios.keys()].map((c) => pattern.creases[c].label);
+      const row = moving[0].split('_')[1];
+      expect(moving.every((l) => l.startsWith('s') && l.endsWith(`_${row}`))).toBe(true);
+      expect(moving.length).toBe(2 * 3);
+      expect([...b.ratios.values()].every((v) => Math.abs(Math.abs(v) - 1) < 1e-12)).toBe(true);
+    }
+    expect(r.messages.some((m) => m.code === 'lines-together')).toBe(true);
+    // ids are 1 … n, the assignment's curve first
+    expect(r.branches.map((b) => b.id)).toEqual(r.branches.map((_, i) => i + 1));
+  });
+
+  it('above the dense limit: the mode pair by first-order propagation plus the lines, marked partial', () => {
+    const alpha = 70;
+    const { pattern, drive } = miuraSheet(12, 12, alpha);
+    const r = flatBranches(pattern, { drive });
+    expect(r.partial).toBe(true);
+    expect(r.messages.some((m) => m.code === 'branches-partial')).toBe(true);
+    const a = r.branches.filter((b) => b.group === 'A');
+    expect(a.length).toBe(2);
+    for (const c of pattern.creases) {
+      if (c.assignment === 'B') continue;
+      const want = c.label.startsWith('z') ? 1 : Math.cos(alpha * D);
+      expect(Math.abs(Math.abs(a[0].ratios.get(c.index)!) - want)).toBeLessThan(1e-9);
+    }
+    expect(r.groups.filter((g) => g.kind === 'line').length).toBe(2 * 12 - 1);
+  });
+
+  it('the first-order propagation agrees with the dense tangent cone on a small sheet', () => {
+    const { pattern, drive } = miuraSheet(2, 2, 55);
+    const t = flatModeOfMesh(pattern, new Set(), drive)!;
+    const r = flatBranches(pattern, { drive });
+    const best = Math.max(...r.branches.map((b) => Math.abs(b.tangent.reduce((s, x, i) => s + x * t[i], 0))));
+    expect(best).toBeGreaterThan(1 - 1e-12);
+    expect(tangentMatchesAssignment(pattern, t)).toBe(true);
+  });
+});
+
+describe('branches at a folded state', () => {
+  it('a regular state of a one-DOF path: the family in both senses, ratios equal to the path rates', () => {
+    const { pattern, drive } = miuraSheet(2, 2, 60);
+    const sign = pattern.creases[drive].assignment === 'M' ? -1 : 1;
+    const s = sweep(pattern, { drive, from: sign * 50 * D, to: sign * 50 * D, step: D }).samples[0];
+    const r = branchesAt(pattern, s.angles, { drive });
+    expect(r.state).toBe('regular');
+    expect(r.nullity).toBe(1);
+    expect(r.branches.length).toBe(2);
+    for (const c of pattern.creases) {
+      if (c.assignment === 'B') continue;
+      expect(Math.abs(r.branches[0].ratios.get(c.index)! - s.rates[c.index])).toBeLessThan(1e-8);
+    }
+  });
+
+  it('a state that does not close has no branches and says so', () => {
+    const p = vertexPattern(directionsFromSectors([90, 90, 90, 90]));
+    const r = branchesAt(p, Float64Array.from([0.3, 0.1, 0, 0]));
+    expect(r.branches.length).toBe(0);
+    expect(r.messages[0].code).toBe('not-closed');
+  });
+});
+
+describe('second order of the closure (the curvature right-hand side) against finite differences', () => {
+  it('Q(v) = Σ_{a<b} v_a v_b (w_a × w_b) is d²r/dε² along v at a closed state', () => {
+    const { pattern, drive } = miuraSheet(2, 2, 60);
+    const sign = pattern.creases[drive].assignment === 'M' ? -1 : 1;
+    const s = sweep(pattern, { drive, from: sign * 70 * D, to: sign * 70 * D, step: D }).samples[0];
+    const sys = buildClosureSystem(pattern);
+    const problem = new ClosureProblem(pattern, () => false, sys);
+    problem.evaluate(s.angles, true);
+    // any direction, not only the path's
+    const v = new Float64Array(pattern.creases.length).map((_, i) => (pattern.creases[i].assignment === 'B' ? 0 : Math.sin(1 + 3 * i)));
+    const Q = secondOrderRows(sys, problem.jacobian, v, new Float64Array(3 * sys.blockCount));
+    const eps = 1e-4;
+    const at = (e: number) => {
+      const x = s.angles.map((a, i) => a + e * v[i]);
+      const r = new Float64Array(3 * sys.blockCount);
+      evaluateClosure(sys, x, r, null);
+      return r;
+    };
+    const rp = at(eps), rm = at(-eps), r0 = at(0);
+    let worst = 0, scale = 0;
+    for (let i = 0; i < Q.length; i++) {
+      const fd = (rp[i] + rm[i] - 2 * r0[i]) / (eps * eps);
+      worst = Math.max(worst, Math.abs(fd - Q[i]));
+      scale = Math.max(scale, Math.abs(Q[i]));
+    }
+    expect(scale).toBeGreaterThan(0.1);
+    expect(worst / scale).toBeLessThan(1e-5);
+  });
+});

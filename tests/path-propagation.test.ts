@@ -1,0 +1,92 @@
+// The closed-form degree-4 vertex and the vertex-by-vertex propagation.
+import { describe, expect, it } from 'vitest';
+import { degree4States, planPropagation, propagate, propagationWork } from '../solver/propagate';
+import { buildClosureSystem, evaluateBlock, closureScratch } from '../solver/closure';
+import { miura, waterbomb, degree5 } from '../solver/generators';
+import { buildPattern } from '../solver/pattern';
+import { sweep } from '../solver/path';
+import { directionsFromSectors, vertexPattern } from './support/vertex';
+
+const D = Math.PI / 180;
+
+/** Spherical four-bar input–output equation (McCarthy & Soh 2011, ch. 5; the form tests/vertex-modes.test.ts uses). */
+function fourBarResidual(a: number[], rho0: number, rho3: number): number {
+  const [a1, a2, a3, a4] = a;
+  const w1 = [Math.cos(a1), Math.sin(a1) * Math.cos(rho0), Math.sin(a1) * Math.sin(rho0)];
+  const c2 = [Math.cos(a4 + a3), -Math.sin(a4 + a3), 0];
+  const c3 = [Math.cos(a4), -Math.sin(a4), 0];
+  const A = w1[0] * (c2[0] - Math.cos(a3) * c3[0]) + w1[1] * (c2[1] - Math.cos(a3) * c3[1]);
+  const B = w1[2] * Math.sin(a3);
+  const C = Math.cos(a2) - Math.cos(a3) * (w1[0] * c3[0] + w1[1] * c3[1]);
+  return A * Math.cos(rho3) + B * Math.sin(rho3) - C;
+}
+
+describe('closed-form degree-4 vertex', () => {
+  const sets = [[70, 95, 100, 95], [80, 90, 110, 80], [60, 85, 120, 95], [60, 100, 120, 80]];
+  for (const s of sets) {
+    it(`sectors ${s.join('/')}: both roots close the vertex and satisfy the four-bar equation, from any input slot`, () => {
+      const dirs = directionsFromSectors(s);
+      const ux = dirs.map(Math.cos), uy = dirs.map(Math.sin);
+      const p = vertexPattern(dirs);
+      const sys = buildClosureSystem(p);
+      const out = new Float64Array(8);
+      const res = new Float64Array(3);
+      const jac = new Float64Array(12);
+      let checked = 0;
+      for (const input of [0, 1, 2, 3]) {
+        for (const rho of [-150, -60, -5, 5, 40, 100, 160].map((x) => x * D)) {
+          const n = degree4States(ux, uy, input, rho, out);
+          for (let r = 0; r < n; r++) {
+            const angles = out.subarray(4 * r, 4 * r + 4);
+            expect(angles[input]).toBe(rho);
+            expect(evaluateBlock(sys, 0, Float64Array.from(angles), res, jac, closureScratch())).toBeLessThan(1e-12);
+            expect(Math.abs(fourBarResidual(s.map((x) => x * D), angles[0], angles[3]))).toBeLessThan(1e-12);
+            checked++;
+          }
+        }
+      }
+      expect(checked).toBeGreaterThan(20);
+    });
+  }
+});
+
+describe('propagation', () => {
+  it('applies to Miura-ori (every interior vertex degree 4) and not to a degree-8 or degree-5 vertex or with a crease held', () => {
+    const m = buildPattern(miura({ rows: 2, cols: 3, a: 40, b: 30, alphaDeg: 70 }).project!.source).pattern!;
+    expect(planPropagation(m, buildClosureSystem(m), 0 + m.labelIndex.get('z3_2')!).plan).toBeDefined();
+    const held = planPropagation(m, buildClosureSystem(m), m.labelIndex.get('z3_2')!, (c) => c === m.labelIndex.get('z1_1'));
+    expect(held.plan).toBeUndefined();
+    expect(held.reason).toMatch(/held/);
+    const w = buildPattern(waterbomb().project!.source).pattern!;
+    expect(planPropagation(w, buildClosureSystem(w), 1).reason).toMatch(/degree 4/);
+    const d5 = buildPattern(degree5().project!.source).pattern!;
+    expect(planPropagation(d5, buildClosureSystem(d5), 0).reason).toMatch(/degree 4/);
+  });
+
+  it('rates and curvature of a generic vertex match central differences of the propagated states', () => {
+    const s = [70, 95, 100, 95];
+    const p = vertexPattern(directionsFromSectors(s));
+    const sys = buildClosureSystem(p);
+    const { plan } = planPropagation(p, sys, 0);
+    const work = propagationWork(sys, 4);
+    const at = (v: number, ref: Float64Array) => {
+      const x = new Float64Array(4);
+      x[0] = v;
+      const rates = new Float64Array(4), curv = new Float64Array(4);
+      const out = propagate(sys, plan!, x, { kind: 'nearest', reference: ref }, work, rates, curv);
+      expect(out.ok).toBe(true);
+      return { x, rates, curv };
+    };
+    const path = sweep(p, { drive: 0, from: 10 * D, to: 90 * D, step: 40 * D, branch: 1 });
+    for (const sample of path.samples) {
+      const h = 1e-5;
+      const mid = at(sample.drive, sample.angles);
+      const lo = at(sample.drive - h, mid.x), hi = at(sample.drive + h, mid.x);
+      for (let c = 1; c < 4; c++) {
+        expect(Math.abs(mid.rates[c] - (hi.x[c] - lo.x[c]) / (2 * h))).toBeLessThan(1e-8);
+        expect(Math.abs(mid.curv[c] - (hi.rates[c] - lo.rates[c]) / (2 * h))).toBeLessThan(1e-6);
+        expect(Math.abs(mid.rates[c] - sample.rates[c])).toBeLessThan(1e-12);
+      }
+    }
+  });
+});
