@@ -28,6 +28,9 @@ try {
     const c = (window as unknown as { __hingeplan: { state: { path: { result?: { samples: unknown[] } }; doc: { history: { present: { source: { edges: unknown[] } } } } } } }).__hingeplan;
     return { samples: c.state.path.result?.samples.length ?? 0, creases: c.state.doc.history.present.source.edges.length };
   });
+  // SCRUB_HIDE=".sheet-view" (a CSS selector) leaves a view out, to see what each one costs
+  // (through the CSSOM: the page's CSP refuses style elements)
+  if (process.env.SCRUB_HIDE) await page.evaluate((sel) => document.querySelectorAll<HTMLElement>(sel).forEach((e) => (e.style.visibility = 'hidden')), process.env.SCRUB_HIDE);
   const result = await page.evaluate(async (ms) => {
     type C = { store: { dispatch(a: unknown): void }; state: { path: { result?: { samples: unknown[] } } } };
     const c = (window as unknown as { __hingeplan: C }).__hingeplan;

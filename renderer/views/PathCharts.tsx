@@ -52,7 +52,7 @@ function linePath(xs: number[], ys: number[], values: number[], wrap: boolean): 
   return d;
 }
 
-const Chart = memo(function Chart(p: ChartProps) {
+const ChartBody = memo(function ChartBody(p: Omit<ChartProps, 'current' | 'onScrub'>) {
   const { path, groups, width, height } = p;
   const m = { l: 46, r: 12, t: 10, b: 22 };
   const drives = path.samples.map((s) => s.driveDeg);
@@ -62,17 +62,6 @@ const Chart = memo(function Chart(p: ChartProps) {
   // angles never go past ±180°: keep the axis there even when rounding would widen it
   if (p.kind === 'angle') y.domain([Math.max(-180, y.domain()[0]), Math.min(180, y.domain()[1])]);
   const xs = drives.map((d) => x(d));
-  const dragging = useRef(false);
-  const svgRef = useRef<SVGSVGElement>(null);
-  const indexAt = (clientX: number): number => {
-    const r = svgRef.current!.getBoundingClientRect();
-    const drive = x.invert(((clientX - r.left) / r.width) * width);
-    let best = 0;
-    drives.forEach((d, i) => {
-      if (Math.abs(d - drive) < Math.abs(drives[best] - drive)) best = i;
-    });
-    return best;
-  };
   const span = p.yDomain[1] - p.yDomain[0];
   const paths = useMemo(
     () =>
@@ -104,30 +93,10 @@ const Chart = memo(function Chart(p: ChartProps) {
     });
     return out;
   }, [path, width, p.shadeNearSingular]);
-  const onPointer = (e: ReactPointerEvent<SVGSVGElement>, kind: 'down' | 'move' | 'up') => {
-    if (kind === 'down') {
-      dragging.current = true;
-      (e.target as Element).setPointerCapture?.(e.pointerId);
-    }
-    if (!dragging.current) return;
-    p.onScrub(indexAt(e.clientX), kind === 'up');
-    if (kind === 'up') dragging.current = false;
-  };
   const ticksX = x.ticks(8);
   const ticksY = y.ticks(5);
-  const cur = p.current !== null && path.samples[p.current] ? xs[p.current] : null;
   return (
-    <svg
-      ref={svgRef}
-      className="chart"
-      width={width}
-      height={height}
-      viewBox={`0 0 ${width} ${height}`}
-      data-testid={p.testId}
-      onPointerDown={(e) => onPointer(e, 'down')}
-      onPointerMove={(e) => onPointer(e, 'move')}
-      onPointerUp={(e) => onPointer(e, 'up')}
-    >
+    <svg width={width} height={height} viewBox={`0 0 ${width} ${height}`}>
       {shaded.map(([a, b], i) => (
         <rect key={i} className="near-singular" x={Math.min(a, b) - 2} y={m.t} width={Math.abs(b - a) + 4} height={height - m.t - m.b}>
           <title>near-singular: the rates grow without bound here</title>
@@ -171,10 +140,52 @@ const Chart = memo(function Chart(p: ChartProps) {
           <title>{`${EVENT_LOOK[e.type].word} at ${e.driveDeg.toFixed(2)}°: ${e.text}`}</title>
         </g>
       ))}
-      {cur !== null && <line className="current" x1={cur} x2={cur} y1={m.t - 4} y2={height - m.b + 4} />}
     </svg>
   );
 });
+
+/** The curves are drawn once per path; scrubbing only moves the marker, a layer of its own. */
+function Chart(p: ChartProps) {
+  const { current, onScrub, testId, ...rest } = p;
+  const ref = useRef<HTMLDivElement>(null);
+  const dragging = useRef(false);
+  const drives = p.path.samples.map((s) => s.driveDeg);
+  const lo = Math.min(...drives), hi = Math.max(...drives);
+  const x = scaleLinear().domain(lo === hi ? [lo - 1, hi + 1] : [lo, hi]).range([46, p.width - 12]);
+  const cur = current !== null && p.path.samples[current] ? x(p.path.samples[current].driveDeg) : null;
+  const indexAt = (clientX: number): number => {
+    const r = ref.current!.getBoundingClientRect();
+    const drive = x.invert(((clientX - r.left) / r.width) * p.width);
+    let best = 0;
+    drives.forEach((d, i) => {
+      if (Math.abs(d - drive) < Math.abs(drives[best] - drive)) best = i;
+    });
+    return best;
+  };
+  const onPointer = (e: ReactPointerEvent<HTMLDivElement>, kind: 'down' | 'move' | 'up') => {
+    if (kind === 'down') {
+      dragging.current = true;
+      (e.target as Element).setPointerCapture?.(e.pointerId);
+    }
+    if (!dragging.current) return;
+    onScrub(indexAt(e.clientX), kind === 'up');
+    if (kind === 'up') dragging.current = false;
+  };
+  return (
+    <div
+      ref={ref}
+      className="chart"
+      style={{ width: p.width, height: p.height }}
+      data-testid={testId}
+      onPointerDown={(e) => onPointer(e, 'down')}
+      onPointerMove={(e) => onPointer(e, 'move')}
+      onPointerUp={(e) => onPointer(e, 'up')}
+    >
+      <ChartBody {...rest} testId={testId} />
+      {cur !== null && <div className="current" style={{ transform: `translateX(${cur}px)`, height: p.height - 24 }} />}
+    </div>
+  );
+}
 
 /** The extent of the angles, padded, within ±180°. */
 export function angleDomain(groups: CurveGroup[]): [number, number] {
