@@ -54,6 +54,8 @@ export interface SweepOptions {
   branch?: number;
   /** with holds that are not zero: which solution of the start (1-based, in solveDrives order) */
   solution?: number;
+  /** at a flat start without `branch`: take the ray closest to this direction (over creases) */
+  prefer?: Float64Array;
   /** a closed state to start from (full crease vector); the sweep first follows it to `from` */
   start?: Float64Array;
   /** 'auto' (default): propagation when it applies, else continuation */
@@ -277,11 +279,11 @@ export class SweepRun {
       this.messages.push({ severity: 'info', code: 'propagation-not-applicable', text: 'Propagation does not apply with held creases; using continuation.' });
     }
     const first = this.targets[0];
-    const base = new Float64Array(this.pattern.creases.length);
-    for (const h of o.holds ?? []) base[h.crease] = h.value;
     const holdsZero = (o.holds ?? []).every((h) => h.value === 0);
 
-    if (o.start) {
+    // a start at the flat state is a flat start: the branch comes from the flat state's rays
+    const startIsFlat = !!o.start && holdsZero && o.start.every((v, c) => Math.abs(v) < 1e-6 || this.pattern.creases[c].assignment === 'B');
+    if (o.start && !startIsFlat) {
       const y = Float64Array.from(o.start);
       for (const h of o.holds ?? []) y[h.crease] = h.value;
       const fixed = new ClosureProblem(this.pattern, (c) => this.holdSet.has(c) || c === o.drive, this.sys);
@@ -367,6 +369,13 @@ export class SweepRun {
         this.fail('branch-does-not-drive', `Branch ${b.id} (${b.name}) does not move ${this.label} ${sense > 0 ? 'up' : 'down'} from flat; branches that do: ${list(moving) || 'none'}.`);
         return null;
       }
+      this.branchInfo = { id: b.id, name: b.name, matchesAssignment: b.matchesAssignment, text: analysis.groups.find((g) => g.name === b.group)?.text ?? '' };
+      return b.tangent;
+    }
+    if (o.prefer && moving.length) {
+      // continuity with a neighbouring path (a grid row next to this one)
+      const score = (b: Branch) => b.tangent.reduce((acc, x, c) => acc + x * o.prefer![c], 0);
+      const b = moving.reduce((p, q) => (score(q) > score(p) ? q : p));
       this.branchInfo = { id: b.id, name: b.name, matchesAssignment: b.matchesAssignment, text: analysis.groups.find((g) => g.name === b.group)?.text ?? '' };
       return b.tangent;
     }

@@ -1,0 +1,346 @@
+// Angle tables for the actuator team, CSV or JSON: a metadata header (pattern and the SHA-256 of its file,
+// branch, drive, units, sign convention, tolerance, largest residual over the table, program version, date,
+// the cautions line and the command that wrote it), then one row per sample. Pure text in, text out: the
+// caller supplies the date, version and command, so the core does no I/O and reads no clock.
+
+import type { Pattern } from './types';
+import type { SweepEvent, SweepResult } from './path.js';
+import type { ScheduleResult } from './schedule';
+import type { FollowResult } from './schedule';
+import type { GridResult } from './grid';
+import { CAUTIONS } from './formats/cautions';
+import { RESIDUAL_TOLERANCE } from './newton';
+
+const DEG = 180 / Math.PI;
+
+export const SIGN_CONVENTION = 'fold angle 0 = flat, valley positive, mountain negative, ±180 = folded flat';
+export const TABLE_FORMAT = 'hingeplan-angle-table';
+export const SCHEDULE_FORMAT = 'hingeplan-deployment-schedule';
+export const FOLLOW_FORMAT = 'hingeplan-followed-schedule';
+export const GRID_FORMAT = 'hingeplan-angle-grid';
+export const TABLE_VERSION = 1;
+
+export interface TableHeader {
+  patternName: string;
+  /** the pattern file's name as given on the command line */
+  file: string;
+  /** SHA-256 of the file's text (hex) */
+  fileSha256: string;
+  /** program version */
+  version: string;
+  /** ISO 8601 time the table was written */
+  date: string;
+  /** the command line that wrote it (reproduces every number) */
+  command: string;
+}
+
+export type TableFormat = 'csv' | 'json';
+
+export interface AngleTableOptions {
+  format: TableFormat;
+  /** add a rate column per crease (degrees per degree of drive) */
+  rates?: boolean;
+  /** creases to list: every crease that is not a boundary edge (default) */
+  creases?: number[];
+}
+
+/** Numbers as the shortest text that reads back to the same double (so the file loses nothing). */
+export function num(x: number | undefined): string {
+  if (x === undefined || Number.isNaN(x)) return '';
+  if (!Number.isFinite(x)) return x > 0 ? 'inf' : '-inf';
+  return String(x === 0 ? 0 : x);
+}
+
+function jsonNum(x: number | undefined): number | null {
+  return x === undefined || !Number.isFinite(x) ? null : x === 0 ? 0 : x;
+}
+
+/** A CSV cell, quoted when it holds a comma, quote or line break (RFC 4180). */
+export function csvCell(s: string): string {
+  return /[",\r\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
+}
+
+function listed(pattern: Pattern, opts: { creases?: number[] }): number[] {
+  return opts.creases ?? pattern.creases.filter((c) => c.assignment !== 'B').map((c) => c.index);
+}
+
+function metadataLines(meta: Record<string, string | number | boolean | null>): string {
+  // one "# key: value" line each; values never carry line breaks
+  return Object.entries(meta).map(([k, v]) => `# ${k}: ${String(v ?? '').replace(/[\r\n]+/g, ' ')}`).join('\n') + '\n';
+}
+
+function eventsJson(pattern: Pattern, events: SweepEvent[]) {
+  return events.map((e) => ({
+    type: e.type,
+    drive: e.drive * DEG,
+    text: e.text,
+    ...(e.crease !== undefined ? { crease: pattern.creases[e.crease].label } : {}),
+  }));
+}
+
+function holdsText(pattern: Pattern, holds: { crease: number; value: number }[]): string {
+  return holds.map((h) => `${pattern.creases[h.crease].label}=${num(h.value * DEG)}`).join(' ') || 'none';
+}
+
+/** The angle table of a sweep. */
+export function angleTable(
+  pattern: Pattern,
+  result: SweepResult,
+  header: TableHeader,
+  holds: { crease: number; value: number }[],
+  opts: AngleTableOptions,
+): string {
+  const cols = listed(pattern, opts);
+  const label = (c: number) => pattern.creases[c].label;
+  const largest = result.samples.reduce((m, s) => Math.max(m, s.maxResidual), 0);
+  const meta = {
+    format: TABLE_FORMAT,
+    version: TABLE_VERSION,
+    pattern: header.patternName,
+    file: header.file,
+    fileSha256: header.fileSha256,
+    branch: result.branch ? `${result.branch.id ?? ''}${result.branch.id !== undefined ? ' ' : ''}${result.branch.name}${result.branch.matchesAssignment ? ' (matches the mountain/valley assignment)' : ''}` : 'none',
+    drive: label(result.drive),
+    held: holdsText(pattern, holds),
+    units: 'degrees (angles), degrees per degree of drive (rates), radians (residuals)',
+    signConvention: SIGN_CONVENTION,
+    tolerance: `${RESIDUAL_TOLERANCE} rad largest vertex residual`,
+    largestResidual: largest,
+    status: result.status,
+    samples: `${result.samples.length} of ${result.requested}`,
+    method: result.method,
+    program: `hingeplan ${header.version}`,
+    date: header.date,
+    command: header.command,
+    cautions: CAUTIONS,
+  };
+  if (opts.format === 'json') {
+    return JSON.stringify({
+      ...meta,
+      largestResidual: jsonNum(largest),
+      columns: cols.map(label),
+      samples: result.samples.map((s) => ({
+        drive: s.drive * DEG,
+        angles: Object.fromEntries(cols.map((c) => [label(c), s.angles[c] * DEG])),
+        ...(opts.rates ? { rates: Object.fromEntries(cols.map((c) => [label(c), s.rates[c]])) } : {}),
+        maxResidual: s.maxResidual,
+        condition: jsonNum(s.condition),
+        nearSingular: s.nearSingular,
+      })),
+      events: eventsJson(pattern, result.events),
+      messages: result.messages.map((m) => ({ severity: m.severity, code: m.code, text: m.text })),
+    }, null, 2) + '\n';
+  }
+  const head = ['drive', ...cols.map(label), ...(opts.rates ? cols.map((c) => `rate:${label(c)}`) : []), 'max_residual', 'condition', 'near_singular'];
+  const lines = [metadataLines(meta) + head.map(csvCell).join(',')];
+  for (const s of result.samples) {
+    lines.push([num(s.drive * DEG), ...cols.map((c) => num(s.angles[c] * DEG)), ...(opts.rates ? cols.map((c) => num(s.rates[c])) : []), num(s.maxResidual), num(s.condition), s.nearSingular ? '1' : '0'].join(','));
+  }
+  for (const e of result.events) lines.push(`# event: ${e.type} at ${num(e.drive * DEG)} deg: ${e.text.replace(/[\r\n]+/g, ' ')}`);
+  return lines.join('\n') + '\n';
+}
+
+/** A deployment schedule: time rows, drive position/velocity/acceleration, every hinge angle, velocity and acceleration. */
+export function scheduleTable(
+  pattern: Pattern,
+  result: ScheduleResult,
+  header: TableHeader,
+  drive: number,
+  holds: { crease: number; value: number }[],
+  format: TableFormat,
+  creases?: number[],
+): string {
+  const cols = listed(pattern, { creases });
+  const label = (c: number) => pattern.creases[c].label;
+  const largest = result.rows.reduce((m, r) => Math.max(m, r.maxResidual ?? 0), 0);
+  const prof = result.profile;
+  const meta = {
+    format: SCHEDULE_FORMAT,
+    version: TABLE_VERSION,
+    pattern: header.patternName,
+    file: header.file,
+    fileSha256: header.fileSha256,
+    branch: result.sweep?.branch ? `${result.sweep.branch.id ?? ''} ${result.sweep.branch.name}`.trim() : 'none',
+    drive: label(drive),
+    held: holdsText(pattern, holds),
+    profile: prof ? `${prof.spec.kind} from ${num(prof.spec.from * DEG)} to ${num(prof.spec.to * DEG)} deg in ${num(prof.spec.duration)} s, acceleration time ${num(prof.accelTime)} s, jerk time ${num(prof.jerkTime)} s, peak drive velocity ${num(prof.peakVelocity * DEG)} deg/s, peak drive acceleration ${num(prof.peakAcceleration * DEG)} deg/s^2` : '',
+    units: 'seconds, degrees, degrees/s, degrees/s^2; residuals in radians',
+    signConvention: SIGN_CONVENTION,
+    tolerance: `${RESIDUAL_TOLERANCE} rad largest vertex residual`,
+    largestResidual: largest,
+    status: result.status,
+    unreachableRows: result.rows.filter((r) => r.unreachable).length,
+    program: `hingeplan ${header.version}`,
+    date: header.date,
+    command: header.command,
+    cautions: CAUTIONS,
+  };
+  const flags = (r: ScheduleResult['rows'][number]) =>
+    r.unreachable ? 'unreachable' : [...r.overRate.map((c) => `rate:${label(c)}`), ...r.overAcceleration.map((c) => `accel:${label(c)}`)].join(' ');
+  if (format === 'json') {
+    return JSON.stringify({
+      ...meta,
+      largestResidual: jsonNum(largest),
+      columns: cols.map(label),
+      rows: result.rows.map((r) => ({
+        t: r.t,
+        drive: r.drive * DEG,
+        driveVelocity: r.driveVelocity * DEG,
+        driveAcceleration: r.driveAcceleration * DEG,
+        ...(r.angles
+          ? {
+              angles: Object.fromEntries(cols.map((c) => [label(c), r.angles![c] * DEG])),
+              velocities: Object.fromEntries(cols.map((c) => [label(c), r.velocities![c] * DEG])),
+              accelerations: Object.fromEntries(cols.map((c) => [label(c), r.accelerations![c] * DEG])),
+              maxResidual: r.maxResidual,
+            }
+          : { unreachable: r.unreachable }),
+        overRate: r.overRate.map(label),
+        overAcceleration: r.overAcceleration.map(label),
+      })),
+      hinges: result.hinges.filter((h) => cols.includes(h.crease)).map((h) => ({
+        crease: label(h.crease),
+        peakVelocity: h.peakRate * DEG,
+        peakAcceleration: h.peakAcceleration * DEG,
+        rowsOverRate: h.rowsOverRate,
+        rowsOverAcceleration: h.rowsOverAcceleration,
+      })),
+      events: eventsJson(pattern, result.events),
+      messages: result.messages.map((m) => ({ severity: m.severity, code: m.code, text: m.text })),
+    }, null, 2) + '\n';
+  }
+  const head = ['t', 'drive', 'drive_velocity', 'drive_acceleration', ...cols.map(label), ...cols.map((c) => `velocity:${label(c)}`), ...cols.map((c) => `acceleration:${label(c)}`), 'max_residual', 'flags'];
+  const lines = [metadataLines(meta) + head.map(csvCell).join(',')];
+  for (const r of result.rows) {
+    const a = r.angles, v = r.velocities, ac = r.accelerations;
+    lines.push([
+      num(r.t), num(r.drive * DEG), num(r.driveVelocity * DEG), num(r.driveAcceleration * DEG),
+      ...cols.map((c) => (a ? num(a[c] * DEG) : '')),
+      ...cols.map((c) => (v ? num(v[c] * DEG) : '')),
+      ...cols.map((c) => (ac ? num(ac[c] * DEG) : '')),
+      num(r.maxResidual), csvCell(flags(r)),
+    ].join(','));
+  }
+  for (const h of result.hinges) {
+    if (!cols.includes(h.crease) || !(h.rowsOverRate || h.rowsOverAcceleration)) continue;
+    lines.push(`# over limit: ${label(h.crease)}: peak velocity ${num(h.peakRate * DEG)} deg/s (${h.rowsOverRate} rows over), peak acceleration ${num(h.peakAcceleration * DEG)} deg/s^2 (${h.rowsOverAcceleration} rows over)`);
+  }
+  for (const r of result.rows) if (r.unreachable) lines.push(`# unreachable at t = ${num(r.t)} s: ${r.unreachable.replace(/[\r\n]+/g, ' ')}`);
+  return lines.join('\n') + '\n';
+}
+
+/** A followed schedule: every input row with every hinge angle, or the reason it has none. */
+export function followTable(
+  pattern: Pattern,
+  result: FollowResult,
+  header: TableHeader,
+  holds: { crease: number; value: number }[],
+  format: TableFormat,
+  opts: { rates?: boolean; creases?: number[] } = {},
+): string {
+  const cols = listed(pattern, opts);
+  const label = (c: number) => pattern.creases[c].label;
+  const largest = result.rows.reduce((m, r) => Math.max(m, r.maxResidual ?? 0), 0);
+  const meta = {
+    format: FOLLOW_FORMAT,
+    version: TABLE_VERSION,
+    pattern: header.patternName,
+    file: header.file,
+    fileSha256: header.fileSha256,
+    drives: result.drives.map(label).join(' '),
+    held: holdsText(pattern, holds),
+    units: 'seconds, degrees; residuals in radians' + (opts.rates ? '; rates in degrees per degree of the drive' : ''),
+    signConvention: SIGN_CONVENTION,
+    tolerance: `${RESIDUAL_TOLERANCE} rad largest vertex residual`,
+    largestResidual: largest,
+    status: result.status,
+    unreachableRows: result.rows.filter((r) => r.unreachable).length,
+    program: `hingeplan ${header.version}`,
+    date: header.date,
+    command: header.command,
+    cautions: CAUTIONS,
+  };
+  if (format === 'json') {
+    return JSON.stringify({
+      ...meta,
+      largestResidual: jsonNum(largest),
+      columns: cols.map(label),
+      rows: result.rows.map((r) => ({
+        time: r.time,
+        line: r.line,
+        drives: Object.fromEntries([...r.values].map(([c, v]) => [label(c), v * DEG])),
+        ...(r.angles ? { angles: Object.fromEntries(cols.map((c) => [label(c), r.angles![c] * DEG])), maxResidual: r.maxResidual } : { unreachable: r.unreachable }),
+        ...(r.rates ? { rates: Object.fromEntries(cols.map((c) => [label(c), r.rates![c]])) } : {}),
+      })),
+      events: eventsJson(pattern, result.events),
+      messages: result.messages.map((m) => ({ severity: m.severity, code: m.code, text: m.text })),
+    }, null, 2) + '\n';
+  }
+  const head = ['time', ...cols.map(label), ...(opts.rates ? cols.map((c) => `rate:${label(c)}`) : []), 'max_residual', 'flag'];
+  const lines = [metadataLines(meta) + head.map(csvCell).join(',')];
+  for (const r of result.rows) {
+    lines.push([
+      num(r.time),
+      ...cols.map((c) => (r.angles ? num(r.angles[c] * DEG) : '')),
+      ...(opts.rates ? cols.map((c) => (r.rates ? num(r.rates[c]) : '')) : []),
+      num(r.maxResidual),
+      csvCell(r.unreachable ? `unreachable: ${r.unreachable}` : ''),
+    ].join(','));
+  }
+  return lines.join('\n') + '\n';
+}
+
+/** A grid over two drives: one row per node (x, y), every hinge angle, or the reason the node was not reached. */
+export function gridTable(
+  pattern: Pattern,
+  result: GridResult,
+  header: TableHeader,
+  axes: { x: number; y: number },
+  holds: { crease: number; value: number }[],
+  format: TableFormat,
+  creases?: number[],
+): string {
+  const cols = listed(pattern, { creases });
+  const label = (c: number) => pattern.creases[c].label;
+  const all = result.nodes.flat();
+  const largest = all.reduce((m, n) => Math.max(m, n.maxResidual ?? 0), 0);
+  const meta = {
+    format: GRID_FORMAT,
+    version: TABLE_VERSION,
+    pattern: header.patternName,
+    file: header.file,
+    fileSha256: header.fileSha256,
+    x: label(axes.x),
+    y: label(axes.y),
+    held: holdsText(pattern, holds),
+    units: 'degrees; residuals in radians',
+    signConvention: SIGN_CONVENTION,
+    tolerance: `${RESIDUAL_TOLERANCE} rad largest vertex residual`,
+    largestResidual: largest,
+    status: result.status,
+    unreachableNodes: all.filter((n) => n.unreachable).length,
+    program: `hingeplan ${header.version}`,
+    date: header.date,
+    command: header.command,
+    cautions: CAUTIONS,
+  };
+  if (format === 'json') {
+    return JSON.stringify({
+      ...meta,
+      largestResidual: jsonNum(largest),
+      columns: cols.map(label),
+      nodes: all.map((n) => ({
+        x: n.x * DEG,
+        y: n.y * DEG,
+        ...(n.angles ? { angles: Object.fromEntries(cols.map((c) => [label(c), n.angles![c] * DEG])), maxResidual: n.maxResidual } : { unreachable: n.unreachable }),
+      })),
+      messages: result.messages.map((m) => ({ severity: m.severity, code: m.code, text: m.text })),
+    }, null, 2) + '\n';
+  }
+  const head = [label(axes.x), label(axes.y), ...cols.map(label), 'max_residual', 'flag'];
+  const lines = [metadataLines(meta) + head.map(csvCell).join(',')];
+  for (const n of all) {
+    lines.push([num(n.x * DEG), num(n.y * DEG), ...cols.map((c) => (n.angles ? num(n.angles[c] * DEG) : '')), num(n.maxResidual), csvCell(n.unreachable ? `unreachable: ${n.unreachable}` : '')].join(','));
+  }
+  return lines.join('\n') + '\n';
+}
