@@ -3,7 +3,7 @@
 // solve; nodes the paths cannot reach are flagged with the reason.
 
 import type { Drive, Message, Pattern } from './types';
-import { sweep, type SweepHooks } from './path.js';
+import { runSteps, sweepSteps, type SweepHooks } from './path.js';
 
 export interface GridAxis {
   drive: number;
@@ -39,6 +39,11 @@ export interface GridResult {
 }
 
 export function gridSweep(pattern: Pattern, opts: GridOptions, hooks: SweepHooks = {}): GridResult {
+  return runSteps(gridSteps(pattern, opts, hooks));
+}
+
+/** The grid as resumable steps (see sweepSteps). */
+export function* gridSteps(pattern: Pattern, opts: GridOptions, hooks: SweepHooks = {}): Generator<void, GridResult> {
   const { x, y } = opts;
   const holds = opts.holds ?? [];
   const messages: Message[] = [];
@@ -48,7 +53,7 @@ export function gridSweep(pattern: Pattern, opts: GridOptions, hooks: SweepHooks
   let done = 0;
   let stopped = false;
   // first column: a path in y with x held at its first value
-  const column = sweep(pattern, {
+  const column = yield* sweepSteps(pattern, {
     drive: y.drive,
     from: y.values[0],
     to: y.values[y.values.length - 1],
@@ -74,7 +79,7 @@ export function gridSweep(pattern: Pattern, opts: GridOptions, hooks: SweepHooks
       hooks.onProgress?.(done, total);
       continue;
     }
-    const row = sweep(pattern, {
+    const row = yield* sweepSteps(pattern, {
       drive: x.drive,
       from: x.values[0],
       to: x.values[x.values.length - 1],

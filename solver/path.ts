@@ -140,13 +140,31 @@ export function sampleValues(from: number, to: number, step: number): number[] {
 }
 
 export function sweep(pattern: Pattern, options: SweepOptions, hooks: SweepHooks = {}): SweepResult {
+  return runSteps(sweepSteps(pattern, options, hooks));
+}
+
+/**
+ * The sweep as a sequence of steps (one per sample, or per continuation step): a caller that must stay
+ * responsive (a command line waiting for Ctrl-C, a worker) resumes it a few at a time; `hooks.shouldStop`
+ * is asked before every step and stops the sweep with what it has.
+ */
+export function* sweepSteps(pattern: Pattern, options: SweepOptions, hooks: SweepHooks = {}): Generator<void, SweepResult> {
   const run = createSweep(pattern, options);
   while (!run.finished) {
     if (hooks.shouldStop?.()) { run.stop(); break; }
     run.advance();
     hooks.onProgress?.(run.done, run.total);
+    yield;
   }
   return run.result();
+}
+
+/** Drive a step sequence to its end and return its result. */
+export function runSteps<T>(steps: Generator<void, T>): T {
+  for (;;) {
+    const r = steps.next();
+    if (r.done) return r.value;
+  }
 }
 
 export function createSweep(pattern: Pattern, options: SweepOptions): SweepRun {
@@ -560,7 +578,7 @@ export class SweepRun {
     const last = this.last!;
     const target = this.targets[this.nextTarget];
     const dist = target - last.s;
-    const s = Math.abs(dist) > PROPAGATION_STEP ? last.s + Math.sign(dist) * PROPAGATION_STEP : target;
+    const s = Math.abs(dist) > PROPAGATION_STEP * (1 + 1e-6) ? last.s + Math.sign(dist) * PROPAGATION_STEP : target;
     const solved = this.propagateAt(s, last, this.before);
     if (!solved) {
       // out of reach of some vertex (a turning point of the drive, or a state the mesh cannot take):
@@ -605,7 +623,8 @@ export class SweepRun {
     if (fromFlat && this.firstReference) {
       const t = this.firstReference;
       for (let c = 0; c < n; c++) reference[c] = (s / t[this.options.drive]) * t[c];
-    } else if (before && before.s !== last.s) {
+    } else if (before && Math.abs(before.s - last.s) > 1e-6) {
+      // linear extrapolation of the last two states (a step much shorter than this one would blow it up)
       const f = (s - last.s) / (last.s - before.s);
       for (let c = 0; c < n; c++) reference[c] = last.x[c] + wrapAngle(last.x[c] - before.x[c]) * f;
     } else reference.set(last.x);
@@ -640,7 +659,12 @@ export class SweepRun {
     }
     const t = this.tangent(prefer);
     if (!t) { this.fail('no-tangent', 'The Jacobian has no usable null direction at the last propagated state.'); return; }
-    if (prefer ? dot(t, prefer) < 0 : Math.sign(t[this.d]) !== this.travel) for (let i = 0; i < this.n; i++) t[i] = -t[i];
+    // the way the drive was travelling decides the sense, unless the drive barely moves here
+    let tmax = 0;
+    for (let i = 0; i < this.n; i++) tmax = Math.max(tmax, Math.abs(t[i]));
+    const towards = this.nextTarget < this.targets.length ? Math.sign(this.targets[this.nextTarget] - y[this.options.drive]) || this.travel : this.travel;
+    const flip = Math.abs(t[this.d]) > 1e-3 * tmax ? Math.sign(t[this.d]) !== towards : !!prefer && dot(t, prefer) < 0;
+    if (flip) for (let i = 0; i < this.n; i++) t[i] = -t[i];
     this.point = { y: Float64Array.from(y), t, drive: y[this.options.drive] };
     this.usedMethods.add('continue');
   }
@@ -962,6 +986,8 @@ export class SweepRun {
     // samples up to the event are reachable: the caller has not collected them yet
     this.collectUpTo(lo, solveAt);
     if (this.finished) return true;
+    // beyond the last requested sample: not part of the range asked for
+    if (this.nextTarget >= this.targets.length) { this.finish(); return true; }
     if (hit.type === 'hinge-limit') {
       const lim = c.limit!;
       const which = loX[hit.crease] > 0 && lim.max !== undefined ? `maximum ${(lim.max * DEG).toFixed(4)}°` : `minimum ${((lim.min ?? 0) * DEG).toFixed(4)}°`;

@@ -5,7 +5,7 @@
 // supplies (time and drive angles per row), with a clear flag on rows that have no consistent state.
 
 import type { Drive, Message, Pattern } from './types';
-import { sweep, type SweepEvent, type SweepHooks, type SweepOptions, type SweepResult, type SweepSample } from './path.js';
+import { runSteps, sweepSteps, type SweepEvent, type SweepHooks, type SweepOptions, type SweepResult, type SweepSample } from './path.js';
 import { solveDrives } from './solve';
 import { ClosureProblem, RESIDUAL_TOLERANCE } from './newton';
 import { wrapAngle } from './math/rotation';
@@ -176,6 +176,11 @@ export function timeRows(duration: number, dt?: number, rows?: number): number[]
 }
 
 export function deploymentSchedule(pattern: Pattern, opts: ScheduleOptions, hooks: SweepHooks = {}): ScheduleResult {
+  return runSteps(scheduleSteps(pattern, opts, hooks));
+}
+
+/** The schedule as resumable steps (see sweepSteps). */
+export function* scheduleSteps(pattern: Pattern, opts: ScheduleOptions, hooks: SweepHooks = {}): Generator<void, ScheduleResult> {
   const messages: Message[] = [];
   const { profile, message } = driveProfile(opts.profile);
   if (!profile) return { rows: [], hinges: [], events: [], messages: [message!], status: 'failed' };
@@ -200,9 +205,7 @@ export function deploymentSchedule(pattern: Pattern, opts: ScheduleOptions, hook
     solution: opts.solution,
     curvature: true,
   };
-  const path = values.length === 1
-    ? sweep(pattern, { ...sweepOpts, samples: [values[0]] }, hooks)
-    : sweep(pattern, sweepOpts, hooks);
+  const path = yield* sweepSteps(pattern, sweepOpts, hooks);
   messages.push(...path.messages);
   const byValue = new Map<number, SweepSample>();
   for (const s of path.samples) byValue.set(s.drive, s);
@@ -394,6 +397,11 @@ export interface FollowResult {
  * following rows go on from the last good state.
  */
 export function followSchedule(pattern: Pattern, schedule: ParsedSchedule, opts: FollowOptions = {}, hooks: SweepHooks = {}): FollowResult {
+  return runSteps(followSteps(pattern, schedule, opts, hooks));
+}
+
+/** Following a schedule as resumable steps (see sweepSteps). */
+export function* followSteps(pattern: Pattern, schedule: ParsedSchedule, opts: FollowOptions = {}, hooks: SweepHooks = {}): Generator<void, FollowResult> {
   const messages: Message[] = [];
   const events: SweepEvent[] = [];
   const rows: FollowRow[] = schedule.rows.map((r) => ({ time: r.time, line: r.line, values: r.values }));
@@ -430,7 +438,7 @@ export function followSchedule(pattern: Pattern, schedule: ParsedSchedule, opts:
         if (!values.length || x !== values[values.length - 1]) values.push(x);
       }
       if (values.length) {
-        const res = sweep(pattern, {
+        const res = yield* sweepSteps(pattern, {
           drive,
           from: values[0],
           to: values[values.length - 1],
@@ -460,7 +468,7 @@ export function followSchedule(pattern: Pattern, schedule: ParsedSchedule, opts:
       i = j;
     }
   } else {
-    homotopyFollow(pattern, rows, moving, holds, opts, messages, hooks, () => { done++; progress(); }, () => { stopped = true; });
+    yield* homotopyFollow(pattern, rows, moving, holds, opts, messages, hooks, () => { done++; progress(); }, () => { stopped = true; });
   }
   for (const r of rows) if (!r.angles && !r.unreachable) r.unreachable = stopped ? 'not computed (stopped)' : 'no state';
   const bad = rows.filter((r) => r.unreachable && r.unreachable !== 'not computed (stopped)');
@@ -479,7 +487,7 @@ export function followSchedule(pattern: Pattern, schedule: ParsedSchedule, opts:
 }
 
 /** Several drives moving together: from row to row by homotopy in small steps, Newton at each. */
-function homotopyFollow(
+function* homotopyFollow(
   pattern: Pattern,
   rows: FollowRow[],
   moving: number[],
@@ -489,7 +497,7 @@ function homotopyFollow(
   hooks: SweepHooks,
   onRow: () => void,
   onStop: () => void,
-): void {
+): Generator<void, void> {
   const heldSet = new Set([...moving, ...holds.map((h) => h.crease)]);
   const problem = new ClosureProblem(pattern, (c) => heldSet.has(c));
   const first = rows[0];
@@ -529,6 +537,7 @@ function homotopyFollow(
     }
     if (r.maxResidual !== undefined && r.maxResidual > RESIDUAL_TOLERANCE) { r.unreachable = 'the state found does not close'; r.angles = undefined; }
     onRow();
+    yield;
   }
 }
 

@@ -44,15 +44,26 @@ export interface AngleTableOptions {
   creases?: number[];
 }
 
-/** Numbers as the shortest text that reads back to the same double (so the file loses nothing). */
+/**
+ * Numbers with 15 significant digits (what a double holds for certain), shortest form: a drive asked for as
+ * 30° prints as 30, not as the 29.999999999999996 the degree → radian → degree round trip leaves.
+ */
 export function num(x: number | undefined): string {
   if (x === undefined || Number.isNaN(x)) return '';
   if (!Number.isFinite(x)) return x > 0 ? 'inf' : '-inf';
-  return String(x === 0 ? 0 : x);
+  const r = +x.toPrecision(15);
+  return String(r === 0 ? 0 : r);
 }
 
 function jsonNum(x: number | undefined): number | null {
-  return x === undefined || !Number.isFinite(x) ? null : x === 0 ? 0 : x;
+  if (x === undefined || !Number.isFinite(x)) return null;
+  const r = +x.toPrecision(15);
+  return r === 0 ? 0 : r;
+}
+
+/** Degrees for JSON, to 15 significant digits (see num). */
+function deg(x: number): number {
+  return jsonNum(x * DEG) ?? NaN;
 }
 
 /** A CSV cell, quoted when it holds a comma, quote or line break (RFC 4180). */
@@ -72,7 +83,7 @@ function metadataLines(meta: Record<string, string | number | boolean | null>): 
 function eventsJson(pattern: Pattern, events: SweepEvent[]) {
   return events.map((e) => ({
     type: e.type,
-    drive: e.drive * DEG,
+    drive: deg(e.drive),
     text: e.text,
     ...(e.crease !== undefined ? { crease: pattern.creases[e.crease].label } : {}),
   }));
@@ -120,8 +131,8 @@ export function angleTable(
       largestResidual: jsonNum(largest),
       columns: cols.map(label),
       samples: result.samples.map((s) => ({
-        drive: s.drive * DEG,
-        angles: Object.fromEntries(cols.map((c) => [label(c), s.angles[c] * DEG])),
+        drive: deg(s.drive),
+        angles: Object.fromEntries(cols.map((c) => [label(c), deg(s.angles[c])])),
         ...(opts.rates ? { rates: Object.fromEntries(cols.map((c) => [label(c), s.rates[c]])) } : {}),
         maxResidual: s.maxResidual,
         condition: jsonNum(s.condition),
@@ -184,14 +195,14 @@ export function scheduleTable(
       columns: cols.map(label),
       rows: result.rows.map((r) => ({
         t: r.t,
-        drive: r.drive * DEG,
-        driveVelocity: r.driveVelocity * DEG,
-        driveAcceleration: r.driveAcceleration * DEG,
+        drive: deg(r.drive),
+        driveVelocity: deg(r.driveVelocity),
+        driveAcceleration: deg(r.driveAcceleration),
         ...(r.angles
           ? {
-              angles: Object.fromEntries(cols.map((c) => [label(c), r.angles![c] * DEG])),
-              velocities: Object.fromEntries(cols.map((c) => [label(c), r.velocities![c] * DEG])),
-              accelerations: Object.fromEntries(cols.map((c) => [label(c), r.accelerations![c] * DEG])),
+              angles: Object.fromEntries(cols.map((c) => [label(c), deg(r.angles![c])])),
+              velocities: Object.fromEntries(cols.map((c) => [label(c), deg(r.velocities![c])])),
+              accelerations: Object.fromEntries(cols.map((c) => [label(c), deg(r.accelerations![c])])),
               maxResidual: r.maxResidual,
             }
           : { unreachable: r.unreachable }),
@@ -200,8 +211,8 @@ export function scheduleTable(
       })),
       hinges: result.hinges.filter((h) => cols.includes(h.crease)).map((h) => ({
         crease: label(h.crease),
-        peakVelocity: h.peakRate * DEG,
-        peakAcceleration: h.peakAcceleration * DEG,
+        peakVelocity: deg(h.peakRate),
+        peakAcceleration: deg(h.peakAcceleration),
         rowsOverRate: h.rowsOverRate,
         rowsOverAcceleration: h.rowsOverAcceleration,
       })),
@@ -268,8 +279,8 @@ export function followTable(
       rows: result.rows.map((r) => ({
         time: r.time,
         line: r.line,
-        drives: Object.fromEntries([...r.values].map(([c, v]) => [label(c), v * DEG])),
-        ...(r.angles ? { angles: Object.fromEntries(cols.map((c) => [label(c), r.angles![c] * DEG])), maxResidual: r.maxResidual } : { unreachable: r.unreachable }),
+        drives: Object.fromEntries([...r.values].map(([c, v]) => [label(c), deg(v)])),
+        ...(r.angles ? { angles: Object.fromEntries(cols.map((c) => [label(c), deg(r.angles![c])])), maxResidual: r.maxResidual } : { unreachable: r.unreachable }),
         ...(r.rates ? { rates: Object.fromEntries(cols.map((c) => [label(c), r.rates![c]])) } : {}),
       })),
       events: eventsJson(pattern, result.events),
@@ -330,9 +341,9 @@ export function gridTable(
       largestResidual: jsonNum(largest),
       columns: cols.map(label),
       nodes: all.map((n) => ({
-        x: n.x * DEG,
-        y: n.y * DEG,
-        ...(n.angles ? { angles: Object.fromEntries(cols.map((c) => [label(c), n.angles![c] * DEG])), maxResidual: n.maxResidual } : { unreachable: n.unreachable }),
+        x: deg(n.x),
+        y: deg(n.y),
+        ...(n.angles ? { angles: Object.fromEntries(cols.map((c) => [label(c), deg(n.angles![c])])), maxResidual: n.maxResidual } : { unreachable: n.unreachable }),
       })),
       messages: result.messages.map((m) => ({ severity: m.severity, code: m.code, text: m.text })),
     }, null, 2) + '\n';

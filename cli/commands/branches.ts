@@ -1,0 +1,127 @@
+import type { Command } from '../command';
+import { intOption, parseCommandArgs, UsageError } from '../args';
+import type { OptionSpec } from '../args';
+import { drivesFor, loadFile, printMessages } from '../load';
+import { EXIT, exitForStatus } from '../exit-codes';
+import { messageJson } from '../report-json';
+import { textTable } from '../table-text';
+import { branchesAt, flatBranches, type BranchAnalysis } from '../../solver/branches';
+import { solveDrives } from '../../solver/solve';
+import type { Pattern } from '../../solver/types';
+import { CAUTIONS } from '../../solver/formats/cautions';
+import { creaseOption, holdsOption, joinNegativeNumbers } from './path-common';
+
+function analysisJson(pattern: Pattern, a: BranchAnalysis, at: Float64Array | undefined) {
+  const label = (c: number) => pattern.creases[c].label;
+  const listed = pattern.creases.filter((c) => c.assignment !== 'B').map((c) => c.index);
+  const DEG = 180 / Math.PI;
+  return {
+    state: a.state,
+    nullity: Number.isFinite(a.nullity) ? a.nullity : null,
+    partial: a.partial,
+    ...(at ? { angles: Object.fromEntries(listed.map((c) => [label(c), at[c] * DEG])) } : {}),
+    branches: a.branches.map((b) => ({
+      id: b.id,
+      name: b.name,
+      group: b.group,
+      kind: b.kind,
+      matchesAssignment: b.matchesAssignment,
+      tangent: Object.fromEntries(listed.map((c) => [label(c), b.tangent[c]])),
+      reference: b.reference >= 0 ? label(b.reference) : null,
+      ratios: Object.fromEntries([...b.ratios].map(([c, r]) => [label(c), r])),
+      ...(b.line ? { line: b.line.map(label) } : {}),
+      verified: b.verified,
+    })),
+    groups: a.groups.map((g) => ({ name: g.name, kind: g.kind, branches: g.branches, text: g.text })),
+    messages: a.messages.map(messageJson),
+  };
+}
+
+export const branchesCommand: Command = {
+  name: 'branches',
+  summary: 'the directions a pattern can fold from the flat state (or from any state): rays, ratios, names',
+  help: `Usage: hingeplan branches <file> [--at <crease>=<deg> …] [--solution <k>] [--hold <crease>=<deg> …]
+                          [--drive <crease>] [--json]
+
+Lists the rays that leave a state: the tangent-cone analysis at the flat state (first order Σρu = 0 at every
+vertex, second order Σρρ sin = 0), or at a folded state from the real Jacobian and the second order of the
+closure. Rays are grouped: a curve through the state (its two senses, e.g. A+ and A−), or a straight crease
+line folding alone (L1+, L1−, …). Each ray has its first-order angle ratios (dρ/dρ of a reference crease: the
+drive when given, else the crease that moves most), whether its signs match the mountain/valley assignment,
+and an id for \`hingeplan sweep --branch\`. Above 400 free creases the flat analysis lists the straight lines
+and, for meshes of degree-4 vertices, the mode pair found vertex by vertex (marked partial).
+
+  --at <crease>=<deg>    analyse the state with these fold angles instead of the flat state (solved as
+                         \`hingeplan solve --set …\` would); repeat for more creases.
+  --solution <k>         with --at: which solution (1-based); default: the first matching the assignment.
+  --hold <crease>=<deg>  creases held in the analysis (they do not move along any ray; use the same holds as
+                         the sweep that will follow a ray). At the flat state holds must be 0.
+  --drive <crease>       ratios relative to this crease, and "+" means it folds valley-wards.
+  --json                 {"state", "nullity", "partial", "angles"?, "branches": [{"id": <int>, "name": <string>,
+                         "group", "kind": "curve"|"line"|"direction", "matchesAssignment": <bool>, "tangent":
+                         {"<crease>": <num>}, "reference", "ratios": {"<crease>": <num>}, "line"?, "verified"}],
+                         "groups": [{"name", "kind", "branches": [ids], "text"}], "messages"}
+Exit status 0; 2 invalid input; 3 the --at values have no state.`,
+  run(argv, io) {
+    const spec: OptionSpec = {
+      at: { type: 'string', multiple: true },
+      solution: { type: 'string' },
+      hold: { type: 'string', multiple: true },
+      drive: { type: 'string' },
+      json: { type: 'boolean' },
+    };
+    const { values, positionals } = parseCommandArgs(joinNegativeNumbers(argv, spec), spec);
+    const file = positionals[0];
+    const loaded = loadFile(io, file, 'branches');
+    if (!loaded) return EXIT.usage;
+    const { pattern } = loaded;
+    const holds = holdsOption(io, loaded, values.hold as string[] | undefined, file!);
+    if (!holds) return EXIT.usage;
+    const drive = values.drive === undefined ? undefined : creaseOption(pattern, values.drive as string, 'drive');
+    const held = holds.map((h) => h.crease);
+    let analysis: BranchAnalysis;
+    let at: Float64Array | undefined;
+    const ats = values.at as string[] | undefined;
+    if (ats && ats.length) {
+      const drives = drivesFor(io, loaded, ats.map((a) => a), file!);
+      if (!drives) return EXIT.usage;
+      const all = [...drives, ...holds.filter((h) => !drives.some((d) => d.crease === h.crease))];
+      const report = solveDrives(pattern, all);
+      if (!report.solutions.length) {
+        printMessages(io, report.messages, `${file}: `);
+        return exitForStatus(report.status);
+      }
+      let k = Math.max(0, report.solutions.findIndex((s) => s.matchesAssignment));
+      if (values.solution !== undefined) {
+        k = intOption(values.solution as string, 'solution') - 1;
+        if (k < 0 || k >= report.solutions.length) throw new UsageError(`--solution must be from 1 to ${report.solutions.length}, got ${k + 1}`);
+      }
+      at = report.solutions[k].angles;
+      analysis = branchesAt(pattern, at, { held, drive });
+    } else {
+      if (holds.some((h) => h.value !== 0)) throw new UsageError('--hold values must be 0 at the flat state (use --at to analyse a folded state)');
+      analysis = flatBranches(pattern, { held, drive });
+    }
+    if (values.json) {
+      io.stdout(JSON.stringify(analysisJson(pattern, analysis, at), null, 2) + '\n');
+      return EXIT.ok;
+    }
+    const out: string[] = [];
+    out.push(`${pattern.name}: ${at ? 'state at ' + (ats ?? []).join(', ') : 'flat state'}: ${analysis.state}, ${analysis.branches.length} rays${analysis.partial ? ' (partial analysis)' : ''}`);
+    for (const m of analysis.messages) out.push(`  ${m.severity}: ${m.text}`);
+    if (analysis.branches.length) {
+      out.push('');
+      const label = (c: number) => pattern.creases[c].label;
+      out.push(textTable(['id', 'name', 'matches M/V', 'reference', 'ratios (first order)'], analysis.branches.map((b) => {
+        const entries = [...b.ratios].filter(([c]) => c !== b.reference);
+        const text = entries.slice(0, 6).map(([c, r]) => `${label(c)} ${r.toFixed(4)}`).join(', ') + (entries.length > 6 ? `, … (${entries.length - 6} more)` : '');
+        return [b.id, b.name, b.matchesAssignment ? 'yes' : 'no', b.reference >= 0 ? label(b.reference) : '', text];
+      }), ['r', 'l', 'l', 'l', 'l']).trimEnd());
+      out.push('');
+      for (const g of analysis.groups) out.push(`${g.name}: ${g.text} (ids ${g.branches.join(', ')})`);
+    }
+    out.push(CAUTIONS);
+    io.stdout(out.join('\n') + '\n');
+    return EXIT.ok;
+  },
+};
