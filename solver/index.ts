@@ -12,3 +12,17 @@ export { parseFold, writeFold } from './formats/fold';
 export { shapeToJSON, shapeToOBJ, shapeToSTL } from './formats/shape-export';
 export { CAUTIONS } from './formats/cautions';
 export { singleVertex, miura, waterbomb, degree5 } from './generators';
+export {
+  sweep, sweepSteps, runSteps, createSweep, sampleValues, defaultConditionEvery, secondOrderRows,
+  type SweepOptions, type SweepResult, type SweepSample, type SweepEvent, type SweepEventType, type SweepHooks, type SweepStatus, type SweepMethod,
+} from './path.js';
+export { flatBranches, branchesAt, tangentMatchesAssignment, type Branch, type BranchAnalysis, type BranchGroup } from './branches';
+export {
+  deploymentSchedule, scheduleSteps, driveProfile, followSchedule, followSteps, parseScheduleCsv, timeRows,
+  type ProfileSpec, type ProfileKind, type DriveProfile, type ScheduleOptions, type ScheduleResult, type ScheduleRow, type HingeLimits,
+  type ParsedSchedule, type FollowOptions, type FollowResult, type FollowRow,
+} from './schedule';
+export { gridSweep, gridSteps, type GridOptions, type GridResult, type GridNode } from './grid';
+export { angleTable, scheduleTable, followTable, gridTable, type TableHeader, type TableFormat } from './table';
+export { planPropagation, propagate, degree4States } from './propagate';
+export { sha256 } from './sha256';

@@ -18,7 +18,7 @@ import { NEAR_SINGULAR_CONDITION } from './analysis';
 import { planPropagation, propagate, propagationWork, type PropagationPlan, type PropagationWork, type RootChoice } from './propagate';
 import { ConditionTracker, NormalSystem, dot } from './path-linear';
 import { branchesAt, flatBranches, tangentMatchesAssignment, type Branch } from './branches';
-import { solveDrives } from './solve';
+import { matchesAssignment, solveDrives } from './solve';
 import { wrapAngle } from './math/rotation';
 
 const DEG = 180 / Math.PI;
@@ -399,9 +399,10 @@ export class SweepRun {
     }
     const matching = moving.filter((b) => b.matchesAssignment);
     if (matching.length === 0) {
-      if (analysis.partial && this.plan) {
-        // large degree-4 mesh: start by the assignment's signs, vertex by vertex
-        this.messages.push({ severity: 'info', code: 'branch-by-assignment', text: 'The start follows the mountain/valley assignment vertex by vertex (the flat-state analysis is partial for a sheet this large).' });
+      if (analysis.partial && this.pattern.creases.some((c) => c.assignment === 'M' || c.assignment === 'V')) {
+        // a sheet too large for the full flat analysis: start by the assignment's signs (vertex by vertex
+        // for a degree-4 mesh, else as the first Newton guess a small step from flat)
+        this.messages.push({ severity: 'info', code: 'branch-by-assignment', text: 'The start follows the mountain/valley assignment (the flat-state analysis is partial for a sheet this large).' });
         this.branchInfo = { name: 'assignment', matchesAssignment: true, text: 'the mode whose signs follow the assignment' };
         this.firstAssignment = true;
         return null;
@@ -450,6 +451,7 @@ export class SweepRun {
       this.fail('start-failed', `No closed state was found a small step from flat along the chosen branch (residual ${r.maxResidual.toExponential(2)} rad).`);
       return;
     }
+    if (!ray && this.branchInfo) this.branchInfo.matchesAssignment = matchesAssignment(this.pattern, r.angles);
     this.beginAt(r.angles, ray);
   }
 
