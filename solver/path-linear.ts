@@ -24,6 +24,13 @@ export class NormalSystem {
   readonly active: Uint8Array;
   /** zero pivots in the last factor (directions the Jacobian does not fix besides the held column) */
   zeroPivots = 0;
+  /**
+   * Tikhonov damping μ = damping × (largest diagonal of JᵀJ), added to JᵀJ in the factor and in apply(): for
+   * an underdetermined path the solves then give the smallest motion of the other creases instead of
+   * holding some of them. 0 (the default) solves exactly.
+   */
+  damping = 0;
+  private mu = 0;
   factorizations = 0;
   private readonly rowWork: Float64Array;
   private readonly cg: Float64Array[];
@@ -86,6 +93,13 @@ export class NormalSystem {
       }
     }
     if (held >= 0) env.add(held, held, 1);
+    this.mu = 0;
+    if (this.damping > 0) {
+      let big = 0;
+      for (let i = 0; i < this.n; i++) if (i !== held) big = Math.max(big, env.diagonal(i));
+      this.mu = this.damping * (big || 1);
+      env.addDiagonal(this.mu);
+    }
     this.zeroPivots = env.factor(PIVOT_TOLERANCE);
     this.active.fill(1);
     if (held >= 0) this.active[held] = 0;
@@ -149,10 +163,12 @@ export class NormalSystem {
     return rows;
   }
 
-  /** out = JᵀJ·v with the live Jacobian. */
+  /** out = (JᵀJ + μI)·v with the live Jacobian. */
   apply(out: Float64Array, v: Float64Array): Float64Array {
     this.times(this.rowWork, v);
-    return this.transposeTimes(out, this.rowWork);
+    this.transposeTimes(out, this.rowWork);
+    if (this.mu > 0) for (let i = 0; i < this.n; i++) if (this.active[i]) out[i] += this.mu * v[i];
+    return out;
   }
 
   /**
@@ -350,21 +366,28 @@ export class ConditionTracker {
       const { values, vectors } = symmetricEigen(A);
       const order = values.map((_, i) => i).sort((a, c) => values[a] - values[c]).slice(0, Math.min(bs, k));
       let change = 0;
-      order.forEach((o, j) => {
+      for (let j = 0; j < order.length; j++) {
+        const o = order[j];
         const x = X[j], ax = AX[j], p = P[j], ap = AP[j];
-        x.fill(0); ax.fill(0); p.fill(0); ap.fill(0);
-        for (let a = 0; a < k; a++) {
+        // P: the part of the new vector outside the old X (the locally optimal direction); X = old-X part + P
+        p.fill(0); ap.fill(0);
+        for (let a = kx; a < k; a++) {
           const c = vectors[a][o];
           if (c === 0) continue;
           const B = basis[a], I = images[a];
-          if (a < kx) for (let i = 0; i < n; i++) { x[i] += c * B[i]; ax[i] += c * I[i]; }
-          else for (let i = 0; i < n; i++) { p[i] += c * B[i]; ap[i] += c * I[i]; }
+          for (let i = 0; i < n; i++) { p[i] += c * B[i]; ap[i] += c * I[i]; }
         }
-        // X = (old-X part) + P: P is the locally optimal direction, the part outside the old X
-        for (let i = 0; i < n; i++) { x[i] += p[i]; ax[i] += ap[i]; }
-        change = Math.max(change, Math.abs(values[o] - lambdas[j]) / Math.max(Math.abs(values[o]), 1e-300));
-        lambdas[j] = values[o];
-      });
+        x.set(p); ax.set(ap);
+        for (let a = 0; a < kx; a++) {
+          const c = vectors[a][o];
+          if (c === 0) continue;
+          const B = basis[a], I = images[a];
+          for (let i = 0; i < n; i++) { x[i] += c * B[i]; ax[i] += c * I[i]; }
+        }
+        const v = values[o];
+        change = Math.max(change, Math.abs(v - lambdas[j]) / Math.max(Math.abs(v), 1e-300));
+        lambdas[j] = v;
+      }
       nx = np = order.length;
       if (change <= this.tolerance) { converged = true; it++; break; }
     }

@@ -62,7 +62,7 @@ export interface SweepOptions {
   method?: 'auto' | SweepMethod;
   /** hinge curvature d²ρ/dθ² per sample (needed for hinge accelerations); default false */
   curvature?: boolean;
-  /** evaluate the condition number every k samples (default: see defaultConditionEvery) */
+  /** evaluate the condition number every k samples, 0 for never (default: see defaultConditionEvery) */
   conditionEvery?: number;
   /** analyse the rays at branch points found (default true) */
   analyzeBranches?: boolean;
@@ -119,11 +119,12 @@ export interface SweepHooks {
 }
 
 /**
- * Samples between condition-number evaluations by default: every sample up to 1000 free creases, then one in
- * ⌈n/250⌉ (each evaluation costs a few solves with the normal-matrix factor; propagation itself is O(n)).
+ * Samples between condition-number evaluations by default: every sample up to 400 free creases, one in ⌈n/100⌉
+ * up to 4000, and none above (0): an evaluation costs a normal-matrix factorization and a few eigen-iterations,
+ * far more than a propagated sample on a large sheet. Ask for them with conditionEvery.
  */
 export function defaultConditionEvery(unknowns: number): number {
-  return unknowns <= 1000 ? 1 : Math.ceil(unknowns / 250);
+  return unknowns <= 400 ? 1 : unknowns <= 4000 ? Math.ceil(unknowns / 100) : 0;
 }
 
 /** The requested drive values from → to every `step` (the end value included, also when the step does not divide). */
@@ -231,7 +232,10 @@ export class SweepRun {
     this.rowsTmp = new Float64Array(3 * this.sys.blockCount);
     this.targets = o.samples ? [...o.samples] : sampleValues(o.from, o.to, o.step ?? 1 / DEG);
     this.total = this.targets.length;
-    this.conditionEvery = Math.max(1, Math.round(o.conditionEvery ?? defaultConditionEvery(this.n)));
+    this.conditionEvery = Math.max(0, Math.round(o.conditionEvery ?? defaultConditionEvery(this.n)));
+    if (this.conditionEvery === 0 && o.conditionEvery === undefined) {
+      this.messages.push({ severity: 'info', code: 'condition-not-evaluated', text: `With ${this.n} free creases the condition number is not evaluated by default (each evaluation costs a factorization); ask for it every k samples with the condition option. Near-singular flags come from the vertices' own pivots.` });
+    }
     const problem = this.validate();
     if (problem) {
       this.fail('invalid-sweep', problem);
@@ -501,18 +505,36 @@ export class SweepRun {
     }
     this.point = { y: Float64Array.from(y), t, drive: y[this.options.drive] };
     this.usedMethods.add('continue');
-    this.checkUnderdetermined();
+    if (this.checkUnderdetermined()) {
+      // recompute the tangent with the damped solves
+      this.problem.evaluate(y, true);
+      const td = this.tangent(prefer);
+      if (td) {
+        if (Math.sign(td[this.d]) !== this.travel) for (let i = 0; i < this.n; i++) td[i] = -td[i];
+        this.point.t = td;
+      }
+    }
   }
 
-  private checkUnderdetermined(): void {
+  /**
+   * More freedom than the drive (zero pivots besides the held column): the path is not unique. From then on
+   * the solves are damped, so the path takes the smallest motion of the other creases (least squares).
+   */
+  private checkUnderdetermined(): boolean {
     const ns = this.nsCurve!;
-    if (ns.zeroPivots > 0 && !this.messages.some((m) => m.code === 'underdetermined-path')) {
-      this.messages.push({
-        severity: 'warning',
-        code: 'underdetermined-path',
-        text: `${ns.zeroPivots} more degree(s) of freedom remain besides the drive: the path is not unique. It keeps those directions still (the creases the factorization found dependent); hold creases to choose the motion.`,
-      });
-    }
+    if (ns.zeroPivots === 0 || ns.damping > 0) return false;
+    this.messages.push({
+      severity: 'warning',
+      code: 'underdetermined-path',
+      text: `${ns.zeroPivots} more degree(s) of freedom remain besides the drive: the path is not unique. It takes the smallest motion of the other creases (least squares) and their rates are those of that motion; hold creases to choose another. The condition number is not evaluated (that Jacobian is singular by construction).`,
+    });
+    const damping = 1e-10;
+    ns.damping = damping;
+    ns.factored = false;
+    const fixed = this.fixedSystem();
+    fixed.damping = damping;
+    fixed.factored = false;
+    return true;
   }
 
   // ---------------------------------------------------------------------------------------------------
@@ -1048,7 +1070,10 @@ export class SweepRun {
   private conditionAt(which: 'prop' | 'fixed', s: number): ReturnType<ConditionTracker['estimate']> | undefined {
     const k = this.samples.length;
     const lastOne = this.nextTarget === this.targets.length - 1;
+    if (this.conditionEvery === 0) return undefined;
     if (k % this.conditionEvery !== 0 && !lastOne) return undefined;
+    // an underdetermined path: the free creases' Jacobian is singular by construction
+    if (this.nsCurve && this.nsCurve.damping > 0) return undefined;
     let tracker: ConditionTracker;
     if (which === 'prop') {
       this.nsProp ??= new NormalSystem(this.sys, this.problem.unknownOf, this.n, this.work!.jacobian);

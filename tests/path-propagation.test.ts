@@ -1,6 +1,6 @@
 // The closed-form degree-4 vertex and the vertex-by-vertex propagation.
 import { describe, expect, it } from 'vitest';
-import { degree4States, planPropagation, propagate, propagationWork } from '../solver/propagate';
+import { degree4States, evaluateDegree4, planPropagation, propagate, propagationWork } from '../solver/propagate';
 import { buildClosureSystem, evaluateBlock, closureScratch } from '../solver/closure';
 import { miura, waterbomb, degree5 } from '../solver/generators';
 import { buildPattern } from '../solver/pattern';
@@ -48,6 +48,23 @@ describe('closed-form degree-4 vertex', () => {
       expect(checked).toBeGreaterThan(20);
     });
   }
+});
+
+describe('the propagation\'s own degree-4 closure block', () => {
+  it('gives the same residual and Jacobian as the general closure block at closed and at open states', () => {
+    const p = vertexPattern(directionsFromSectors([70, 95, 100, 95]));
+    const sys = buildClosureSystem(p);
+    const scratch = closureScratch();
+    for (const angles of [[0.3, -0.2, 0.5, 1.1], [2.9, -3.0, 0.1, -1.4], [0, 0, 0, 0], [Math.PI, 0.2, -Math.PI, 0.7]]) {
+      const x = Float64Array.from(angles);
+      const r1 = new Float64Array(3), j1 = new Float64Array(12), r2 = new Float64Array(3), j2 = new Float64Array(12);
+      const n1 = evaluateBlock(sys, 0, x, r1, j1, scratch);
+      const n2 = evaluateDegree4(sys, 0, x, r2, j2, closureScratch());
+      expect(Math.abs(n1 - n2)).toBeLessThan(1e-14);
+      for (let i = 0; i < 3; i++) expect(Math.abs(r1[i] - r2[i])).toBeLessThan(1e-14);
+      for (let i = 0; i < 12; i++) expect(Math.abs(j1[i] - j2[i])).toBeLessThan(1e-13);
+    }
+  });
 });
 
 describe('propagation', () => {

@@ -45,8 +45,9 @@ export const PATH_OPTIONS_HELP = `  --hold <crease>=<deg>  hold another crease a
   --method auto|propagate|continue
                          auto (default): exact vertex-by-vertex propagation for meshes of degree-4
                          vertices with nothing held, else pseudo-arclength continuation.
-  --condition-every <k>  evaluate the condition number every k samples (default: every sample up to 1000
-                         free creases, then every ⌈n/250⌉); other samples show it as empty (CSV) or null.
+  --condition-every <k>  evaluate the condition number every k samples and at the last (default: every sample
+                         up to 400 free creases, every ⌈n/100⌉ up to 4000, none above; 0: none); other samples
+                         show it as empty (CSV) or null. Branch points are detected where it is evaluated.
   --progress             show a progress line on stderr even when it is not a terminal.
   --out <file>           write to a file (atomically) instead of stdout. Ctrl-C stops the computation and
                          writes what was computed so far, complete and parseable (exit status 130).`;
@@ -130,10 +131,10 @@ export function rangeOptions(values: Record<string, unknown>): { from: number; t
   return { from: from * RAD, to: to * RAD, step: step * RAD, samples: deg.map((d) => d * RAD) };
 }
 
-export function intOrUndefined(v: unknown, name: string): number | undefined {
+export function intOrUndefined(v: unknown, name: string, min = 1): number | undefined {
   if (v === undefined) return undefined;
   const n = Number(v);
-  if (!Number.isInteger(n) || n < 1) throw new UsageError(`--${name} must be a whole number ≥ 1, got "${String(v)}"`);
+  if (!Number.isInteger(n) || n < min) throw new UsageError(`--${name} must be a whole number ≥ ${min}, got "${String(v)}"`);
   return n;
 }
 

@@ -39,7 +39,7 @@ export function sweepSetup(io: Io, command: string, values: OptionValues, positi
     solution: intOrUndefined(values.solution, 'solution'),
     ...(start ? { start } : {}),
     method: methodOption(values.method),
-    conditionEvery: intOrUndefined(values['condition-every'], 'condition-every'),
+    conditionEvery: intOrUndefined(values['condition-every'], 'condition-every', 0),
   };
   return { loaded, file: file!, options, holds };
 }
