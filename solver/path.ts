@@ -1007,6 +1007,9 @@ export class SweepRun {
       if (cross(x)) hi = mid; else { lo = mid; loX = x; }
     }
     const c = this.pattern.creases[hit.crease];
+    // creases that fold flat together with the drive itself (a sheet folding flat at drive ±180°, the last
+    // sample): not an early end; the last sample is solved at exactly ±180° and reports it
+    if (hit.type === 'folded-flat' && Math.PI - Math.abs(lo) < 1e-3 && this.targets.slice(this.nextTarget).every((t) => Math.abs(t) >= Math.PI - 1e-12)) return false;
     // samples up to the event are reachable: the caller has not collected them yet
     this.collectUpTo(lo, solveAt);
     if (this.finished) return true;
@@ -1055,7 +1058,9 @@ export class SweepRun {
 
   private checkFoldedFlatAtSample(s: number, x: Float64Array): void {
     const flat: number[] = [];
-    for (const c of this.pattern.creases) if (c.assignment !== 'B' && c.assignment !== 'F' && Math.abs(x[c.index]) >= Math.PI - FLAT_FOLDED) flat.push(c.index);
+    // a folded-flat state is singular: the residual grows with the square of the distance there, so angles settle
+    // only to about the square root of the tolerance (1e-5 rad); read them with a margin
+    for (const c of this.pattern.creases) if (c.assignment !== 'B' && c.assignment !== 'F' && Math.abs(x[c.index]) >= Math.PI - 1e-4) flat.push(c.index);
     if (!flat.length) return;
     const names = flat.slice(0, 6).map((c) => this.pattern.creases[c].label).join(', ') + (flat.length > 6 ? ` and ${flat.length - 6} more` : '');
     const text = `${flat.length} crease(s) fold flat (±180°) at ${this.label} = ${(s * DEG).toFixed(6)}° (${names}): panels meet${this.nextTarget < this.targets.length ? ' and the path ends there' : ''}.`;
