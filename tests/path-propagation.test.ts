@@ -65,6 +65,23 @@ describe('the propagation\'s own degree-4 closure block', () => {
       for (let i = 0; i < 12; i++) expect(Math.abs(j1[i] - j2[i])).toBeLessThan(1e-13);
     }
   });
+
+  it('its Jacobian is the derivative of its residual (central differences)', () => {
+    const p = vertexPattern(directionsFromSectors([70, 95, 100, 95]));
+    const sys = buildClosureSystem(p);
+    const x = Float64Array.from([0.7, -0.4, 1.2, -2.1]);
+    const r = new Float64Array(3), J = new Float64Array(12);
+    evaluateDegree4(sys, 0, x, r, J, closureScratch());
+    const h = 1e-6;
+    for (let k = 0; k < 4; k++) {
+      const rp = new Float64Array(3), rm = new Float64Array(3), tmp = new Float64Array(12);
+      const xp = Float64Array.from(x), xm = Float64Array.from(x);
+      xp[k] += h; xm[k] -= h;
+      evaluateDegree4(sys, 0, xp, rp, tmp, closureScratch());
+      evaluateDegree4(sys, 0, xm, rm, tmp, closureScratch());
+      for (let i = 0; i < 3; i++) expect(Math.abs((rp[i] - rm[i]) / (2 * h) - J[3 * k + i])).toBeLessThan(1e-8);
+    }
+  });
 });
 
 describe('propagation', () => {
