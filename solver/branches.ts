@@ -68,7 +68,7 @@ export interface BranchOptions {
   held?: Iterable<number>;
   /** a drive: ratios are given relative to it, and names say the sense it moves in */
   drive?: number;
-  /** largest number of free creases for the dense analysis (default 400 at flat, 1500 elsewhere) */
+  /** largest number of free creases for the dense analysis (default 400 at flat, 600 elsewhere) */
   maxVariables?: number;
   /** check each ray a small step along it (default true) */
   verify?: boolean;
@@ -76,7 +76,7 @@ export interface BranchOptions {
 
 const SIGN_EPS = 1e-9;
 const DENSE_LIMIT_FLAT = 400;
-const DENSE_LIMIT_STATE = 1500;
+const DENSE_LIMIT_STATE = 600;
 const VERIFY_STEP = 1e-3;
 
 /** Signs of a direction agree with the mountain/valley assignment (unassigned creases agree with either). */
