@@ -16,7 +16,13 @@ export default tseslint.config(
     // the solver core stays pure: no Node, DOM or Electron
     files: ['solver/**/*.ts'],
     rules: {
-      'no-restricted-imports': ['error', { patterns: ['node:*', 'fs', 'path', 'electron', 'worker_threads', 'child_process', 'os'] }],
+      'no-restricted-imports': [
+        'error',
+        {
+          paths: ['fs', 'path', 'electron', 'worker_threads', 'child_process', 'os'].map((name) => ({ name, message: 'the solver core does no I/O' })),
+          patterns: [{ group: ['node:*'], message: 'the solver core does no I/O' }],
+        },
+      ],
     },
   },
 );

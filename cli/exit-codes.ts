@@ -9,8 +9,10 @@ export const EXIT = {
   usage: 2,
   /** inconsistent or unreachable */
   noSolution: 3,
-  /** underspecified or not isolated */
+  /** underspecified or not isolated; for schedules: solved, but a hinge is over a limit */
   notDetermined: 4,
+  /** stopped by Ctrl-C; what was computed so far was written (128 + SIGINT, the shell's convention) */
+  interrupted: 130,
 } as const;
 
 export function exitForStatus(status: SolveStatus): number {

@@ -3,7 +3,7 @@
 // solve; nodes the paths cannot reach are flagged with the reason.
 
 import type { Drive, Message, Pattern } from './types';
-import { runSteps, sweepSteps, type SweepHooks } from './path.js';
+import { runSteps, sweepSteps, type SweepHooks } from './path';
 
 export interface GridAxis {
   drive: number;

@@ -15,7 +15,7 @@ export { singleVertex, miura, waterbomb, degree5 } from './generators';
 export {
   sweep, sweepSteps, runSteps, createSweep, sampleValues, defaultConditionEvery, secondOrderRows,
   type SweepOptions, type SweepResult, type SweepSample, type SweepEvent, type SweepEventType, type SweepHooks, type SweepStatus, type SweepMethod,
-} from './path.js';
+} from './path';
 export { flatBranches, branchesAt, tangentMatchesAssignment, type Branch, type BranchAnalysis, type BranchGroup } from './branches';
 export {
   deploymentSchedule, scheduleSteps, driveProfile, followSchedule, followSteps, parseScheduleCsv, timeRows,

@@ -5,7 +5,7 @@
 // supplies (time and drive angles per row), with a clear flag on rows that have no consistent state.
 
 import type { Drive, Message, Pattern } from './types';
-import { runSteps, sweepSteps, type SweepEvent, type SweepHooks, type SweepOptions, type SweepResult, type SweepSample } from './path.js';
+import { runSteps, sweepSteps, type SweepEvent, type SweepHooks, type SweepOptions, type SweepResult, type SweepSample } from './path';
 import { solveDrives } from './solve';
 import { ClosureProblem, RESIDUAL_TOLERANCE } from './newton';
 import { wrapAngle } from './math/rotation';

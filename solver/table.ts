@@ -4,7 +4,7 @@
 // caller supplies the date, version and command, so the core does no I/O and reads no clock.
 
 import type { Pattern } from './types';
-import type { SweepEvent, SweepResult } from './path.js';
+import type { SweepEvent, SweepResult } from './path';
 import type { ScheduleResult } from './schedule';
 import type { FollowResult } from './schedule';
 import type { GridResult } from './grid';

@@ -10,11 +10,12 @@ import { numberOption, UsageError, type OptionSpec } from '../args';
 import { printMessages, type Loaded } from '../load';
 import type { Io } from '../io';
 import { VERSION } from '../version';
+import { EXIT } from '../exit-codes';
 
 const RAD = Math.PI / 180;
 
 /** Exit status when Ctrl-C stopped the work (128 + SIGINT, common practice for shells); the partial output is written. */
-export const EXIT_INTERRUPTED = 130;
+export const EXIT_INTERRUPTED = EXIT.interrupted;
 
 export const pathOptions: OptionSpec = {
   drive: { type: 'string' },
