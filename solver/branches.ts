@@ -13,7 +13,7 @@
 //  - Every ray is then checked on the real equations a small step away (a constrained Newton solve).
 
 import type { Drive, Message, Pattern } from './types';
-import { ClosureProblem } from './newton';
+import { ClosureProblem, solveSmall } from './newton';
 import { flatCone, mulberry32, nullSpace } from './cone';
 import { buildClosureSystem } from './closure';
 import { pivotedQR, nullBasisFromQR } from './math/qr';
@@ -325,34 +325,12 @@ function commonZeros(forms: number[][][], k: number): number[][] {
       if (Math.max(...R.map(Math.abs)) < 1e-13) break;
       const G = Array.from({ length: k }, (_, a) => Array.from({ length: k }, (_, b) => (a === b ? 1e-12 : 0) + Jr.reduce((acc, row) => acc + row[a] * row[b], 0)));
       const g = Array.from({ length: k }, (_, a) => Jr.reduce((acc, row, r) => acc + row[a] * R[r], 0));
-      const d = solveDense(G, g);
+      const d = solveSmall(G, g);
       c = c.map((v, i) => v - d[i]);
     }
     add(c);
   }
   return out;
-}
-
-function solveDense(A: number[][], b: number[]): number[] {
-  const n = b.length;
-  const M = A.map((row, i) => [...row, b[i]]);
-  for (let k = 0; k < n; k++) {
-    let p = k;
-    for (let i = k + 1; i < n; i++) if (Math.abs(M[i][k]) > Math.abs(M[p][k])) p = i;
-    [M[k], M[p]] = [M[p], M[k]];
-    const d = M[k][k] || 1e-300;
-    for (let i = k + 1; i < n; i++) {
-      const f = M[i][k] / d;
-      for (let j = k; j <= n; j++) M[i][j] -= f * M[k][j];
-    }
-  }
-  const x = new Array(n).fill(0);
-  for (let i = n - 1; i >= 0; i--) {
-    let s = M[i][n];
-    for (let j = i + 1; j < n; j++) s -= M[i][j] * x[j];
-    x[i] = s / (M[i][i] || 1e-300);
-  }
-  return x;
 }
 
 function normalizeFull(t: Float64Array): void {

@@ -1,20 +1,12 @@
 // Miura-ori against M. Schenk, S. D. Guest, "Geometry of Miura-folded metamaterials", PNAS 110(9):3276, 2013.
 import { describe, expect, it } from 'vitest';
-import { miura } from '../solver/generators';
-import { buildPattern } from '../solver/pattern';
 import { solveDrives } from '../solver/solve';
 import { foldedShape } from '../solver/shape';
+import { miuraSheet as sheet } from './support/references';
 import type { Pattern } from '../solver/types';
 
 const D = Math.PI / 180;
 
-function sheet(rows: number, cols: number, a: number, b: number, alphaDeg: number) {
-  const g = miura({ rows, cols, a, b, alphaDeg });
-  const { pattern } = buildPattern(g.project!.source);
-  const drive = pattern!.labelIndex.get(g.project!.drives[0].crease)!;
-  const sign = Math.sign(g.project!.drives[0].angleDeg);
-  return { pattern: pattern!, drive, sign, vid: (i: number, j: number) => j * (2 * cols + 1) + i };
-}
 
 const dist = (u: number[], v: number[]) => Math.hypot(u[0] - v[0], u[1] - v[1], u[2] - v[2]);
 

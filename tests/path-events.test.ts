@@ -6,25 +6,9 @@ import { miura } from '../solver/generators';
 import { buildPattern } from '../solver/pattern';
 import type { Pattern } from '../solver/types';
 import { directionsFromSectors, vertexPattern } from './support/vertex';
+import { fourBar } from './support/references';
 
 const D = Math.PI / 180;
-
-/**
- * Spherical four-bar input–output equation A cos ρ3 + B sin ρ3 = C of a degree-4 vertex (links = sector arcs;
- * J. M. McCarthy, G. S. Soh, "Geometric Design of Linkages", 2nd ed., Springer 2011, ch. 5; the form is
- * derived by spherical trigonometry, from memory of that chapter, and is the one tests/vertex-modes.test.ts
- * checks). A real ρ3 exists only while A² + B² ≥ C²: the input ρ0 turns back where A² + B² = C².
- */
-function fourBar(a: number[], rho0: number) {
-  const [a1, a2, a3, a4] = a;
-  const w1 = [Math.cos(a1), Math.sin(a1) * Math.cos(rho0), Math.sin(a1) * Math.sin(rho0)];
-  const c2 = [Math.cos(a4 + a3), -Math.sin(a4 + a3), 0];
-  const c3 = [Math.cos(a4), -Math.sin(a4), 0];
-  const A = w1[0] * (c2[0] - Math.cos(a3) * c3[0]) + w1[1] * (c2[1] - Math.cos(a3) * c3[1]);
-  const B = w1[2] * Math.sin(a3);
-  const C = Math.cos(a2) - Math.cos(a3) * (w1[0] * c3[0] + w1[1] * c3[1]);
-  return { A, B, C };
-}
 
 describe('turning point (generic degree-4 vertex whose driven crease has a limited range)', () => {
   const sectors = [100, 95, 70, 95];

@@ -3,21 +3,13 @@
 // tan(ρ_s/2) = cos α · tan(ρ_z/2), and the unit cell measures 2L × 2S with
 // L = a·√(1 − sin²θ sin²α), S = b·cosθ·tanα / √(1 + cos²θ tan²α).
 import { describe, expect, it } from 'vitest';
-import { miura } from '../solver/generators';
-import { buildPattern } from '../solver/pattern';
 import { foldedShape } from '../solver/shape';
+import { miuraSheet as sheet } from './support/references';
 import { sweep, type SweepSample } from '../solver/path';
 import type { Pattern } from '../solver/types';
 
 const D = Math.PI / 180;
 
-function sheet(rows: number, cols: number, a: number, b: number, alphaDeg: number) {
-  const g = miura({ rows, cols, a, b, alphaDeg });
-  const { pattern } = buildPattern(g.project!.source);
-  const drive = pattern!.labelIndex.get(g.project!.drives[0].crease)!;
-  const sign = Math.sign(g.project!.drives[0].angleDeg);
-  return { pattern: pattern!, drive, sign, vid: (i: number, j: number) => j * (2 * cols + 1) + i };
-}
 
 const dist = (u: number[], v: number[]) => Math.hypot(u[0] - v[0], u[1] - v[1], u[2] - v[2]);
 

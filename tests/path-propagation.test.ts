@@ -6,20 +6,10 @@ import { miura, waterbomb, degree5 } from '../solver/generators';
 import { buildPattern } from '../solver/pattern';
 import { sweep } from '../solver/path';
 import { directionsFromSectors, vertexPattern } from './support/vertex';
+import { fourBarResidual } from './support/references';
 
 const D = Math.PI / 180;
 
-/** Spherical four-bar input–output equation (McCarthy & Soh 2011, ch. 5; the form tests/vertex-modes.test.ts uses). */
-function fourBarResidual(a: number[], rho0: number, rho3: number): number {
-  const [a1, a2, a3, a4] = a;
-  const w1 = [Math.cos(a1), Math.sin(a1) * Math.cos(rho0), Math.sin(a1) * Math.sin(rho0)];
-  const c2 = [Math.cos(a4 + a3), -Math.sin(a4 + a3), 0];
-  const c3 = [Math.cos(a4), -Math.sin(a4), 0];
-  const A = w1[0] * (c2[0] - Math.cos(a3) * c3[0]) + w1[1] * (c2[1] - Math.cos(a3) * c3[1]);
-  const B = w1[2] * Math.sin(a3);
-  const C = Math.cos(a2) - Math.cos(a3) * (w1[0] * c3[0] + w1[1] * c3[1]);
-  return A * Math.cos(rho3) + B * Math.sin(rho3) - C;
-}
 
 describe('closed-form degree-4 vertex', () => {
   const sets = [[70, 95, 100, 95], [80, 90, 110, 80], [60, 85, 120, 95], [60, 100, 120, 80]];

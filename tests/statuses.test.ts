@@ -2,6 +2,7 @@
 import { describe, expect, it } from 'vitest';
 import { solveDrives } from '../solver/solve';
 import { directionsFromSectors, vertexPattern } from './support/vertex';
+import { fourBarInputLimit } from './support/references';
 import type { Pattern } from '../solver/types';
 
 const D = Math.PI / 180;
@@ -11,26 +12,6 @@ function withLimits(p: Pattern, minDeg: number, maxDeg: number): Pattern {
   return p;
 }
 
-/** The spherical four-bar's input limit: A cos ψ + B sin ψ = C has a real ψ only while C² ≤ A² + B²
- * (a standard property of the input–output equation; McCarthy & Soh 2011, ch. 5). */
-function fourBarInputLimit(a: number[]): number {
-  const [a1, a2, a3, a4] = a;
-  const g = (rho0: number) => {
-    const w1 = [Math.cos(a1), Math.sin(a1) * Math.cos(rho0), Math.sin(a1) * Math.sin(rho0)];
-    const c2 = [Math.cos(a4 + a3), -Math.sin(a4 + a3)];
-    const c3 = [Math.cos(a4), -Math.sin(a4)];
-    const A = w1[0] * (c2[0] - Math.cos(a3) * c3[0]) + w1[1] * (c2[1] - Math.cos(a3) * c3[1]);
-    const B = w1[2] * Math.sin(a3);
-    const C = Math.cos(a2) - Math.cos(a3) * (w1[0] * c3[0] + w1[1] * c3[1]);
-    return A * A + B * B - C * C;
-  };
-  let lo = 0, hi = Math.PI;
-  for (let i = 0; i < 200; i++) {
-    const mid = (lo + hi) / 2;
-    if (g(mid) >= 0) lo = mid; else hi = mid;
-  }
-  return lo;
-}
 
 describe('specification statuses', () => {
   it('solved: a hinge coupon with ±170° hinge stops and one zigzag drive has one state', () => {

@@ -4,6 +4,7 @@ import { solveDrives, patternDegreesOfFreedom, followRay } from '../solver/solve
 import { ClosureProblem } from '../solver/newton';
 import { flatCone } from '../solver/cone';
 import { directionsFromSectors, vertexPattern } from './support/vertex';
+import { fourBarResidual } from './support/references';
 
 const D = Math.PI / 180;
 
@@ -54,25 +55,6 @@ describe('flat-foldable degree-4 vertex (published fold-angle multipliers)', () 
   }
 });
 
-/**
- * A degree-4 vertex is a spherical four-bar linkage whose links are the sector arcs (J. M. McCarthy,
- * G. S. Soh, "Geometric Design of Linkages", 2nd ed., Springer 2011, ch. 5; the form below is derived by
- * spherical trigonometry, from memory of that chapter's approach). Hold the panel between c3 and c0; crease c1
- * turns about c0 by ρ0, crease c2 turns about c3 by −ρ3, and the coupler arc between them stays a2:
- *   A cos ρ3 + B sin ρ3 = C, with (a1..a4 the sectors c0→c1, c1→c2, c2→c3, c3→c0)
- *   A = cos a1 cos(a3+a4) ... (expanded numerically below from the dot product w1·w2 = cos a2).
- */
-function fourBarResidual(a: number[], rho0: number, rho3: number): number {
-  const [a1, a2, a3, a4] = a;
-  const w1 = [Math.cos(a1), Math.sin(a1) * Math.cos(rho0), Math.sin(a1) * Math.sin(rho0)];
-  // c3 at −a4, c2 at −(a4 + a3); w2 = cos ρ3·c2 + sin a3 sin ρ3·ẑ + cos a3 (1 − cos ρ3)·c3
-  const c2 = [Math.cos(a4 + a3), -Math.sin(a4 + a3), 0];
-  const c3 = [Math.cos(a4), -Math.sin(a4), 0];
-  const A = w1[0] * (c2[0] - Math.cos(a3) * c3[0]) + w1[1] * (c2[1] - Math.cos(a3) * c3[1]);
-  const B = w1[2] * Math.sin(a3);
-  const C = Math.cos(a2) - Math.cos(a3) * (w1[0] * c3[0] + w1[1] * c3[1]);
-  return A * Math.cos(rho3) + B * Math.sin(rho3) - C;
-}
 
 describe('generic degree-4 vertex (spherical four-bar input–output equation)', () => {
   const sets = [[70, 95, 100, 95], [80, 90, 110, 80], [60, 85, 120, 95], [100, 70, 95, 95]];
