@@ -300,17 +300,31 @@ export type SweepOptionsDto = z.input<typeof SweepOptionsSchema>;
 export const ExportKindSchema = z.enum(['fold', 'obj', 'stl', 'shape-json', 'angle-table', 'schedule']);
 export type ExportKind = z.output<typeof ExportKindSchema>;
 
+export const ScheduleProfileSchema = z.enum(['constant', 'trapezoid', 's-curve']);
+export type ScheduleProfile = z.output<typeof ScheduleProfileSchema>;
+
+/** The options of `hingeplan table` and `hingeplan schedule` that the export dialog offers (seconds, degrees). */
 export const ExportOptionsSchema = z.object({
   /** angle table and schedule: file format */
   format: z.enum(['csv', 'json']).default('csv'),
-  /** angle table: only every n-th sample (1 = all) */
-  every: z.number().int().positive().max(1000).default(1),
-  /** angle table: creases to include by label (empty = all) */
+  /** angle table: a rate column per crease (degrees per degree of drive), as --rates */
+  rates: z.boolean().default(false),
+  /** angle table: creases to include by label (empty = every crease that is not a boundary edge) */
   creases: z.array(z.string().max(200)).max(100_000).default([]),
-  /** schedule: degrees of drive per step */
-  stepDeg: finite.positive().max(90).default(5),
-  /** schedule: drive rate in degrees per second, for the time column */
-  rateDegPerSec: finite.positive().max(10_000).default(10),
+  /** schedule: total time of the move, seconds (--time) */
+  timeS: finite.positive().max(1e7).default(10),
+  /** schedule: drive profile (--profile) */
+  profile: ScheduleProfileSchema.default('trapezoid'),
+  /** schedule: acceleration phase, seconds (--accel-time; default a quarter of the time) */
+  accelTimeS: finite.nonnegative().optional(),
+  /** schedule, s-curve: each jerk ramp, seconds (--jerk-time; default a quarter of the acceleration time) */
+  jerkTimeS: finite.nonnegative().optional(),
+  /** schedule: time step between rows, seconds (--dt), or the number of rows (--rows); default 101 rows */
+  dtS: finite.positive().optional(),
+  rows: z.number().int().min(2).max(100_000).optional(),
+  /** schedule: limits for every hinge (--max-rate deg/s, --max-accel deg/s²) */
+  maxRateDegPerS: finite.positive().optional(),
+  maxAccelDegPerS2: finite.positive().optional(),
   /** shape exports: the folded state's angles; FOLD: also written as the file's fold angles */
   anglesDeg: z.array(finite).optional(),
   basePanel: z.number().int().nonnegative().optional(),
@@ -356,6 +370,8 @@ export const channels = {
       pathId: z.string().max(120).optional(),
       options: ExportOptionsSchema,
       suggestedName: z.string().max(200),
+      /** the document's file (one this window opened or saved), whose text the table header names and hashes */
+      filePath: z.string().max(4096).nullable().default(null),
     }),
     response: WriteResultSchema,
   },

@@ -42,8 +42,12 @@ import {
 } from './contract';
 import { JobFailure } from './worker-protocol';
 import { LruMap } from './lru';
-import { angleTable, deploymentSchedule } from './path-tables';
-import type { SweepResult } from '../solver/path';
+import { runSteps, type SweepResult } from '../solver/path';
+import { angleTable, scheduleTable, type TableHeader } from '../solver/table';
+import { scheduleSteps, type HingeLimits, type ScheduleOptions } from '../solver/schedule';
+import { appTableHeader, scheduleCommand, tableCommand } from './table-header';
+import type { SweepOptionsSchema } from './contract';
+import type { JobContext } from './worker-protocol';
 import { z } from 'zod';
 
 const DEG = 180 / Math.PI;
@@ -60,6 +64,8 @@ export interface StoredPath {
   driveCrease: number;
   /** the solver's own result, as its table writers take it */
   raw: unknown;
+  /** what the sweep was asked for: the table header's command line repeats it */
+  request: z.output<typeof SweepOptionsSchema>;
 }
 
 export function createJobState(): JobState {
@@ -232,6 +238,9 @@ const ExportRequest = z.object({
   key: z.string(),
   pathId: z.string().optional(),
   options: ExportOptionsSchema,
+  /** tables: the document's file name and its text on disk (absent when never saved), and the program version */
+  file: z.object({ name: z.string().max(4096), text: z.string().optional() }).optional(),
+  version: z.string().max(100).optional(),
 });
 
 export interface ExportData {
@@ -239,7 +248,7 @@ export interface ExportData {
   extension: string;
 }
 
-export function exportJob(state: JobState, payload: unknown): ExportData {
+export function exportJob(state: JobState, payload: unknown, ctx?: JobContext): ExportData {
   const req = parse(ExportRequest, payload, 'export');
   const pattern = patternFor(state, req.key);
   const base = req.options.basePanel;
@@ -261,14 +270,79 @@ export function exportJob(state: JobState, payload: unknown): ExportData {
       if (!req.pathId) throw new JobFailure('no-path', 'compute a path first: tables are written from the computed path');
       const stored = state.paths.get(req.pathId);
       if (!stored || stored.key !== req.key) throw new JobFailure('path-unknown', 'the computed path is no longer available; compute it again');
-      return writeTable(req.kind, pattern, stored, req.options);
+      const file = req.file ?? { name: 'pattern.hingeplan.json' };
+      const header = (command: string) => appTableHeader(pattern, req.project, file, req.version ?? 'unknown', command);
+      return req.kind === 'angle-table' ? writeAngleTable(pattern, stored, req.options, file.name, header) : writeSchedule(pattern, stored, req.options, file.name, header, ctx);
     }
   }
 }
 
-function writeTable(kind: 'angle-table' | 'schedule', pattern: Pattern, path: StoredPath, options: z.output<typeof ExportOptionsSchema>): ExportData {
-  const raw = path.raw as SweepResult;
-  return kind === 'angle-table' ? angleTable(pattern, raw, options) : deploymentSchedule(pattern, raw, options);
+type Options = z.output<typeof ExportOptionsSchema>;
+
+/** Crease labels (or indices) of the dialog's selection as indices; a name the pattern lacks is refused by name. */
+function chosenCreases(pattern: Pattern, labels: string[]): number[] | undefined {
+  if (!labels.length) return undefined;
+  return labels.map((label) => {
+    const i = pattern.labelIndex.get(label) ?? (/^\d+$/.test(label) && Number(label) < pattern.creases.length ? Number(label) : undefined);
+    if (i === undefined) throw new JobFailure('unknown-crease', `the table asks for crease "${label}", which the pattern does not have`);
+    return i;
+  });
+}
+
+/** The holds of the path as the solver took them (radians), for the header's held line. */
+function heldDrives(pattern: Pattern, path: StoredPath): Drive[] {
+  const r = resolveOrFail(pattern, path.request.held);
+  if (r.failed) throw new JobFailure('bad-holds', r.messages.map((m) => m.text).join(' '));
+  return r.drives;
+}
+
+function writeAngleTable(pattern: Pattern, path: StoredPath, options: Options, fileName: string, header: (command: string) => TableHeader): ExportData {
+  const creases = chosenCreases(pattern, options.creases);
+  const text = angleTable(pattern, path.raw as SweepResult, header(tableCommand(pattern, fileName, path.request, options)), heldDrives(pattern, path), {
+    format: options.format,
+    rates: options.rates,
+    ...(creases ? { creases } : {}),
+  });
+  return { data: text, extension: options.format };
+}
+
+/**
+ * The schedule over the path's drive range, solved anew at its time rows (the profile's drive values, as
+ * `hingeplan schedule` does), never picked or interpolated from the path's samples.
+ */
+function writeSchedule(pattern: Pattern, path: StoredPath, options: Options, fileName: string, header: (command: string) => TableHeader, ctx?: JobContext): ExportData {
+  const sweep = path.request;
+  if (sweep.startAnglesDeg) {
+    throw new JobFailure('schedule-from-state', 'this path starts from a state on a ray of a branch point; a schedule starts at the flat state or at a solution of the first drive value (as `hingeplan schedule` does): export the angle table of this path, or compute the path from the start of the range');
+  }
+  const limits: HingeLimits = {
+    ...(options.maxRateDegPerS !== undefined ? { maxRate: options.maxRateDegPerS * RAD } : {}),
+    ...(options.maxAccelDegPerS2 !== undefined ? { maxAcceleration: options.maxAccelDegPerS2 * RAD } : {}),
+  };
+  const timed = options.profile !== 'constant';
+  const holds = heldDrives(pattern, path);
+  const scheduleOptions: ScheduleOptions = {
+    drive: path.driveCrease,
+    profile: {
+      kind: options.profile,
+      from: sweep.fromDeg * RAD,
+      to: sweep.toDeg * RAD,
+      duration: options.timeS,
+      ...(timed && options.accelTimeS !== undefined ? { accelTime: options.accelTimeS } : {}),
+      ...(options.profile === 's-curve' && options.jerkTimeS !== undefined ? { jerkTime: options.jerkTimeS } : {}),
+    },
+    ...(options.dtS !== undefined ? { dt: options.dtS } : options.rows !== undefined ? { rows: options.rows } : {}),
+    holds,
+    ...(sweep.branchId !== undefined && /^\d+$/.test(sweep.branchId) ? { branch: Number(sweep.branchId) } : {}),
+    limits,
+    hingeLimits: new Map(),
+  };
+  const result = runSteps(scheduleSteps(pattern, scheduleOptions, { onProgress: (done, total) => ctx?.progress(done, total, 'schedule'), shouldStop: () => ctx?.shouldStop() ?? false }));
+  if (result.status === 'failed' && !result.rows.length) {
+    throw new JobFailure(result.messages[0]?.code ?? 'schedule-failed', result.messages.map((m) => m.text).join(' ') || 'the schedule could not be solved');
+  }
+  const text = scheduleTable(pattern, result, header(scheduleCommand(fileName, sweep, options)), path.driveCrease, holds, options.format);
+  return { data: text, extension: options.format };
 }
 
 // ---------- the job table ----------

@@ -70,6 +70,25 @@ export function pathDto(pattern: Pattern, pathId: string, result: SweepResult): 
 
 const SweepRequest = z.object({ key: z.string(), pathId: z.string(), options: SweepOptionsSchema });
 
+/** Longest sample list computed here; above it the solver's own step check answers (it names the limit). */
+const MAX_DEGREE_SAMPLES = 100_000;
+
+/**
+ * Drive values from → to every step, computed in degrees and converted once each, the end included: the
+ * values `hingeplan sweep/table --from --to --step` solves at (cli/commands/path-common.ts sampleDegrees),
+ * so the command in an exported table's header reproduces its drive column to the last digit.
+ */
+export function degreeSamples(fromDeg: number, toDeg: number, stepDeg: number): number[] | undefined {
+  const dir = toDeg >= fromDeg ? 1 : -1;
+  const count = Math.floor(Math.abs(toDeg - fromDeg) / stepDeg + 1e-9);
+  if (!(count <= MAX_DEGREE_SAMPLES)) return undefined;
+  const out: number[] = [];
+  for (let k = 0; k <= count; k++) out.push(+(fromDeg + dir * k * stepDeg).toPrecision(15));
+  if (Math.abs(out[out.length - 1] - toDeg) > 1e-9) out.push(toDeg);
+  else out[out.length - 1] = toDeg;
+  return out;
+}
+
 export function sweepJob(state: JobState, payload: unknown, ctx: JobContext): PathResultDto {
   const r = SweepRequest.safeParse(payload);
   if (!r.success) throw new JobFailure('bad-request', 'sweep: malformed request');
@@ -80,16 +99,17 @@ export function sweepJob(state: JobState, payload: unknown, ctx: JobContext): Pa
   if (drive.failed || held.failed) {
     return { pathId, driveCrease: -1, driveLabel: o.drive, samples: [], events: [], messages: [...drive.messages, ...held.messages], complete: false };
   }
+  const samples = degreeSamples(o.fromDeg, o.toDeg, o.stepDeg);
   const options: SweepOptions = {
     drive: drive.drives[0].crease,
     from: o.fromDeg * RAD,
     to: o.toDeg * RAD,
-    step: o.stepDeg * RAD,
+    ...(samples ? { samples: samples.map((d) => d * RAD) } : { step: o.stepDeg * RAD }),
     holds: held.drives,
     ...(o.branchId !== undefined && /^\d+$/.test(o.branchId) ? { branch: Number(o.branchId) } : {}),
     ...(o.startAnglesDeg ? { start: Float64Array.from(o.startAnglesDeg, (a) => a * RAD) } : {}),
   };
   const result = sweep(pattern, options, { onProgress: (done, total) => ctx.progress(done, total), shouldStop: () => ctx.shouldStop() });
-  if (result.status !== 'failed' && result.samples.length) state.paths.set(pathId, { key, driveCrease: result.drive, raw: result });
+  if (result.status !== 'failed' && result.samples.length) state.paths.set(pathId, { key, driveCrease: result.drive, raw: result, request: o });
   return pathDto(pattern, pathId, result);
 }

@@ -215,7 +215,7 @@ export function createService(deps: ServiceDeps) {
       return result;
     },
 
-    async 'doc:export'({ kind, project, key, pathId, options, suggestedName }) {
+    async 'doc:export'({ kind, project, key, pathId, options, suggestedName, filePath }) {
       const spec = EXPORT_FILES[kind];
       const target = await host.chooseSaveFile({
         title: spec.title,
@@ -223,7 +223,16 @@ export function createService(deps: ServiceDeps) {
         filters: [spec.filter],
       });
       if (!target) return { status: 'canceled' };
-      const outcome = await solver.run<{ data: string }>('long', 'export', { kind, project, key, pathId, options });
+      // a table's header names the document's file and hashes its text: read only a file this window opened or saved
+      let file: { name: string; text?: string } | undefined;
+      if (kind === 'angle-table' || kind === 'schedule') {
+        file = { name: filePath ? path.basename(filePath) : suggestedName };
+        if (filePath && approved.has(filePath)) {
+          const read = await readTextFile(filePath);
+          if (read.ok) file.text = read.text;
+        }
+      }
+      const outcome = await solver.run<{ data: string }>('long', 'export', { kind, project, key, pathId, options, file, version: startup.version });
       if (outcome.status === 'failed') return { status: 'failed', message: outcome.error.message };
       if (outcome.status !== 'done') return { status: 'canceled' };
       return writeTo(target, outcome.value.data);

@@ -180,6 +180,7 @@ export class Controller {
       pathId: this.state.path.result?.pathId,
       options: { ...options, anglesDeg: options.anglesDeg ?? shown ?? undefined, basePanel: project.source.basePanel },
       suggestedName: doc.fileName,
+      filePath: doc.filePath,
     });
     if (!r.ok) {
       this.fail('The export failed', r.error.message);

@@ -11,6 +11,9 @@ import { RecentFiles, RecoveryStore } from '../../electron/files';
 import { loadPatternText, solveDrives, CAUTIONS } from '../../solver';
 import { buildWorker, SAMPLES } from './support';
 import Papa from 'papaparse';
+import { createHash } from 'node:crypto';
+import { main } from '../../cli/main';
+import { nodeIo, type Io } from '../../cli/io';
 import { miura } from '../../solver';
 
 class FakeHost implements DialogHost {
@@ -64,6 +67,29 @@ afterAll(async () => {
   solver.dispose();
   await fs.rm(tmp, { recursive: true, force: true });
 });
+
+/** The `# key: value` lines of a table's header. */
+function metadata(text: string): Map<string, string> {
+  const out = new Map<string, string>();
+  for (const l of text.split('\n')) {
+    const m = /^# ([A-Za-z0-9]+): (.*)$/.exec(l);
+    if (m && !out.has(m[1])) out.set(m[1], m[2]);
+  }
+  return out;
+}
+
+/** A table without the lines that name where and when it was written (the command line ran on the full path). */
+const withoutDate = (text: string) => text.replace(/^# (date|file|program|command): .*$/gm, '');
+
+/** A recorded command (POSIX words, single quotes) run by the command line in a folder. */
+function runRecorded(command: string, dir: string): Promise<{ code: number; out: string }> {
+  const words = [...command.matchAll(/'((?:[^']|'\\'')*)'|(\S+)/g)].map((m) => (m[1] !== undefined ? m[1].replace(/'\\''/g, "'") : m[2]));
+  expect(words.slice(0, 1)).toEqual(['hingeplan']);
+  const argv = words.slice(1).map((w, i) => (i === 1 ? path.join(dir, w) : w));
+  let out = '';
+  const io: Io = { ...nodeIo(), stdout: (t) => { out += t; }, stderr: () => {}, stderrIsTTY: false };
+  return main(argv, io).then((code) => ({ code, out }));
+}
 
 async function call(channel: string, payload: unknown) {
   const r = await service.dispatch(channel, payload);
@@ -238,34 +264,87 @@ describe('main-process handlers', () => {
     expect(short.value.samples.length).toBe(7);
   });
 
-  it('writes the angle table and the schedule of a computed path, each with the cautions line', async () => {
-    const loaded = loadPatternText(readFileSync(coupon, 'utf8'), 'c.hingeplan.json');
-    await call('pattern:set', { key: 'tab', source: loaded.project!.source });
-    const path1 = (await call('sweep', { requestId: 'tab-1', key: 'tab', options: { drive: 'c0', fromDeg: 0, toDeg: 120, stepDeg: 2, held: [] } })) as { value: { pathId: string; samples: { driveDeg: number; anglesDeg: number[] }[] } };
+  it('writes the angle table with the command-line header, and the recorded command writes the same table', async () => {
+    const file = path.join(tmp, 'coupon-table.hingeplan.json');
+    await fs.copyFile(coupon, file);
+    host.open.push(file);
+    const opened = (await call('doc:open', {})) as { document: { project: { source: unknown } } };
+    const project = opened.document.project;
+    await call('pattern:set', { key: 'tab', source: project.source });
+    const swept = (await call('sweep', { requestId: 'tab-1', key: 'tab', options: { drive: 'c0', fromDeg: 0, toDeg: 120, stepDeg: 2.5, held: [] } })) as { value: { pathId: string; samples: { driveDeg: number; anglesDeg: number[] }[] } };
     const target = path.join(tmp, 'table.csv');
     host.save.push(target);
-    await call('doc:export', { kind: 'angle-table', project: loaded.project, key: 'tab', pathId: path1.value.pathId, options: { format: 'csv', every: 3 }, suggestedName: 'c' });
+    await call('doc:export', { kind: 'angle-table', project, key: 'tab', pathId: swept.value.pathId, options: { format: 'csv', rates: true }, suggestedName: 'x', filePath: file });
     const text = readFileSync(target, 'utf8');
-    expect(text.split('\n')[0]).toBe(`# ${CAUTIONS}`);
+    const meta = metadata(text);
+    expect(meta.get('format')).toBe('hingeplan-angle-table');
+    expect(meta.get('cautions')).toBe(CAUTIONS);
+    expect(meta.get('file')).toBe('coupon-table.hingeplan.json');
+    // the hash against Node's own SHA-256 of the file's bytes (FIPS 180-4 through OpenSSL)
+    expect(meta.get('fileSha256')).toBe(createHash('sha256').update(readFileSync(file)).digest('hex'));
+    expect(meta.get('program')).toBe('hingeplan t');
+    expect(meta.get('command')).toBe('hingeplan table coupon-table.hingeplan.json --drive c0 --from 0 --to 120 --step 2.5 --format csv --rates');
     const rows = Papa.parse<Record<string, string>>(text.split('\n').filter((l) => !l.startsWith('#')).join('\n'), { header: true, skipEmptyLines: true });
     expect(rows.errors).toEqual([]);
-    expect(rows.data.length).toBe(Math.ceil(path1.value.samples.length / 3));
-    const c1 = loaded.pattern!.labelIndex.get('c1')!;
+    expect(rows.data.length).toBe(49);
+    expect(rows.meta.fields).toContain('rate:c1');
+    const c1 = loadPatternText(readFileSync(coupon, 'utf8'), 'c.json').pattern!.labelIndex.get('c1')!;
     rows.data.forEach((r, k) => {
-      const s = path1.value.samples[Math.min(3 * k, path1.value.samples.length - 1)];
-      expect(Number(r.drive_deg)).toBeCloseTo(s.driveDeg, 5);
-      expect(Number(r.c1_deg)).toBeCloseTo(s.anglesDeg[c1], 5);
+      expect(Number(r.drive)).toBe(2.5 * k);
+      expect(Number(r.c1)).toBeCloseTo(swept.value.samples[k].anglesDeg[c1], 10);
     });
-    // a schedule needs samples at its step: 2° samples give a 10° schedule, not a 3° one
-    const sched = path.join(tmp, 'schedule.csv');
-    host.save.push(sched);
-    expect(await call('doc:export', { kind: 'schedule', project: loaded.project, key: 'tab', pathId: path1.value.pathId, options: { stepDeg: 10, rateDegPerSec: 5 }, suggestedName: 'c' })).toMatchObject({ status: 'saved' });
-    const lines = readFileSync(sched, 'utf8').split('\n').filter((l) => l && !l.startsWith('#'));
-    expect(lines[0].split(',').slice(0, 3)).toEqual(['step', 'time_s', 'drive_deg']);
-    expect(lines[2].split(',').slice(0, 3)).toEqual(['1', '2.000', '10.000000']);
+    // the recorded command, run by the command line in the file's folder, writes the same rows and header
+    const cli = await runRecorded(meta.get('command')!, tmp);
+    expect(cli.code).toBe(0);
+    expect(withoutDate(cli.out)).toBe(withoutDate(text));
+  });
+
+  it('solves the schedule anew at its time rows: the drive velocity follows the trapezoid, the command line agrees', async () => {
+    const file = path.join(tmp, 'coupon-schedule.hingeplan.json');
+    await fs.copyFile(coupon, file);
+    host.open.push(file);
+    const project = ((await call('doc:open', {})) as { document: { project: { source: unknown } } }).document.project;
+    await call('pattern:set', { key: 'sch', source: project.source });
+    const swept = (await call('sweep', { requestId: 'sch-1', key: 'sch', options: { drive: 'c0', fromDeg: 0, toDeg: 90, stepDeg: 10, held: [] } })) as { value: { pathId: string } };
+    const target = path.join(tmp, 'schedule.csv');
+    host.save.push(target);
+    const options = { format: 'csv', timeS: 6, profile: 'trapezoid', accelTimeS: 1.5, rows: 25, maxRateDegPerS: 25 };
+    expect(await call('doc:export', { kind: 'schedule', project, key: 'sch', pathId: swept.value.pathId, options, suggestedName: 'x', filePath: file })).toMatchObject({ status: 'saved' });
+    const text = readFileSync(target, 'utf8');
+    const meta = metadata(text);
+    expect(meta.get('format')).toBe('hingeplan-deployment-schedule');
+    expect(meta.get('cautions')).toBe(CAUTIONS);
+    expect(meta.get('command')).toBe('hingeplan schedule coupon-schedule.hingeplan.json --drive c0 --from 0 --to 90 --time 6 --profile trapezoid --accel-time 1.5 --rows 25 --max-rate 25 --format csv');
+    const rows = Papa.parse<Record<string, string>>(text.split('\n').filter((l) => !l.startsWith('#')).join('\n'), { header: true, skipEmptyLines: true });
+    expect(rows.errors).toEqual([]);
+    expect(rows.data.length).toBe(25);
+    // trapezoidal velocity profile (common practice for point-to-point moves): v rises at a = v_max/t_a for
+    // t_a, cruises at v_max = Δ/(T − t_a), and falls symmetrically; Δ = 90°, T = 6 s, t_a = 1.5 s → v_max = 20°/s
+    const T = 6, ta = 1.5, vmax = 90 / (T - ta);
+    const expected = (t: number) => (t < ta ? (vmax * t) / ta : t > T - ta ? (vmax * (T - t)) / ta : vmax);
+    const pattern = loadPatternText(readFileSync(coupon, 'utf8'), 'c.json').pattern!;
+    const c1 = pattern.labelIndex.get('c1')!;
+    rows.data.forEach((r, k) => {
+      expect(Number(r.t)).toBeCloseTo(k * 0.25, 12);
+      expect(Number(r.drive_velocity)).toBeCloseTo(expected(Number(r.t)), 9);
+      // each row is a closed state at its own drive value (no row is taken from the 10° samples)
+      const ref = solveDrives(pattern, [{ crease: pattern.labelIndex.get('c0')!, value: (Number(r.drive) * Math.PI) / 180 }]);
+      expect(ref.solutions.some((s) => Math.abs((s.angles[c1] * 180) / Math.PI - Number(r.c1)) < 1e-7)).toBe(true);
+    });
+    expect(rows.data.some((r) => r.flags.includes('rate:'))).toBe(true);
+    const cli = await runRecorded(meta.get('command')!, tmp);
+    expect(cli.code).toBe(4);
+    expect(withoutDate(cli.out)).toBe(withoutDate(text));
+  });
+
+  it('refuses a schedule it cannot solve, naming the problem', async () => {
+    const loaded = loadPatternText(readFileSync(coupon, 'utf8'), 'c.hingeplan.json');
+    await call('pattern:set', { key: 'bad', source: loaded.project!.source });
+    const swept = (await call('sweep', { requestId: 'bad-1', key: 'bad', options: { drive: 'c0', fromDeg: 0, toDeg: 60, stepDeg: 10, held: [] } })) as { value: { pathId: string } };
     host.save.push(path.join(tmp, 'bad.csv'));
-    const bad = (await call('doc:export', { kind: 'schedule', project: loaded.project, key: 'tab', pathId: path1.value.pathId, options: { stepDeg: 3 }, suggestedName: 'c' })) as { status: string; message: string };
+    const bad = (await call('doc:export', { kind: 'schedule', project: loaded.project, key: 'bad', pathId: swept.value.pathId, options: { timeS: 4, profile: 's-curve', accelTimeS: 1, jerkTimeS: 0.8 }, suggestedName: 'c' })) as { status: string; message: string };
     expect(bad.status).toBe('failed');
-    expect(bad.message).toContain('no sample at 3.000°');
+    expect(bad.message).toContain('jerk time');
+    expect(readdirSync(tmp)).not.toContain('bad.csv');
   });
 });
