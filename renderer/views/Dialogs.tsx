@@ -1,7 +1,7 @@
 // The two dialogs: a new pattern from a generator, and the export of tables and shapes with their options.
 
 import { useState, type ReactNode } from 'react';
-import type { ExportKind, ExportOptionsDto, GeneratorSpec, MessageDto } from '../../electron/contract';
+import type { ExportKind, ExportOptionsDto, GeneratorSpec, MessageDto, ScheduleProfile } from '../../electron/contract';
 import { CAUTIONS } from '../../solver/formats/cautions';
 
 function Modal({ title, children, onClose }: { title: string; children: ReactNode; onClose(): void }) {
@@ -146,29 +146,68 @@ const EXPORT_WORDS: Record<ExportKind, string> = {
   'shape-json': 'Folded shape as JSON',
 };
 
+const PROFILE_WORDS: Record<ScheduleProfile, string> = {
+  constant: 'constant velocity',
+  trapezoid: 'trapezoid (accelerate, cruise, stop)',
+  's-curve': 'S-curve (jerk-limited)',
+};
+
+/** An optional number field as typed: undefined when empty, NaN when it is not a number. */
+function optionalNumber(text: string): number | undefined {
+  return text.trim() === '' ? undefined : Number(text);
+}
+
+/** The schedule fields as typed, turned into export options, or the first problem in words. */
+export function scheduleOptions(f: Record<string, string>, profile: ScheduleProfile, rowsBy: 'rows' | 'dt'): ExportOptionsDto | string {
+  const timeS = Number(f.timeS);
+  if (!(timeS > 0)) return 'The total time must be a number of seconds above 0.';
+  const out: ExportOptionsDto = { timeS, profile };
+  if (profile !== 'constant') {
+    const ta = optionalNumber(f.accelTimeS);
+    if (ta !== undefined && !(ta >= 0 && ta <= timeS / 2)) return `The acceleration time must be between 0 and half the total time (${timeS / 2} s).`;
+    if (ta !== undefined) out.accelTimeS = ta;
+  }
+  if (profile === 's-curve') {
+    const tj = optionalNumber(f.jerkTimeS);
+    if (tj !== undefined && !(tj >= 0)) return 'The jerk time must be a number of seconds, 0 or more.';
+    if (tj !== undefined) out.jerkTimeS = tj;
+  }
+  if (rowsBy === 'rows') {
+    const n = Number(f.rows);
+    if (!Number.isInteger(n) || n < 2 || n > 100_000) return 'The number of rows must be a whole number from 2 to 100000.';
+    out.rows = n;
+  } else {
+    const dt = Number(f.dtS);
+    if (!(dt > 0)) return 'The time step must be a number of seconds above 0.';
+    out.dtS = dt;
+  }
+  const rate = optionalNumber(f.maxRate), accel = optionalNumber(f.maxAccel);
+  if (rate !== undefined && !(rate > 0)) return 'The hinge rate limit must be above 0 (or empty for none).';
+  if (accel !== undefined && !(accel > 0)) return 'The hinge acceleration limit must be above 0 (or empty for none).';
+  if (rate !== undefined) out.maxRateDegPerS = rate;
+  if (accel !== undefined) out.maxAccelDegPerS2 = accel;
+  return out;
+}
+
 export function ExportDialog({ hasPath, onExport, onClose }: { hasPath: boolean; onExport(kind: ExportKind, options: ExportOptionsDto): Promise<string | null>; onClose(): void }) {
   const [kind, setKind] = useState<ExportKind>(hasPath ? 'angle-table' : 'obj');
   const [format, setFormat] = useState<'csv' | 'json'>('csv');
-  const [every, setEvery] = useState('1');
+  const [rates, setRates] = useState(false);
   const [creases, setCreases] = useState('');
-  const [stepDeg, setStepDeg] = useState('5');
-  const [rate, setRate] = useState('10');
+  const [profile, setProfile] = useState<ScheduleProfile>('trapezoid');
+  const [rowsBy, setRowsBy] = useState<'rows' | 'dt'>('rows');
+  const [f, setF] = useState<Record<string, string>>({ timeS: '10', accelTimeS: '', jerkTimeS: '', rows: '101', dtS: '0.1', maxRate: '', maxAccel: '' });
+  const set = (k: string) => (v: string) => setF({ ...f, [k]: v });
   const [busy, setBusy] = useState(false);
   const [problem, setProblem] = useState<string | null>(null);
   const needsPath = kind === 'angle-table' || kind === 'schedule';
   const go = async () => {
-    const options: ExportOptionsDto = { format };
-    if (kind === 'angle-table') {
-      const n = Number(every);
-      if (!Number.isInteger(n) || n < 1) return setProblem('“Every n-th sample” must be a whole number of at least 1.');
-      options.every = n;
-      options.creases = creases.split(/[,\s]+/).filter(Boolean);
-    }
+    let options: ExportOptionsDto = {};
+    if (kind === 'angle-table') options = { format, rates, creases: creases.split(/[,\s]+/).filter(Boolean) };
     if (kind === 'schedule') {
-      const s = Number(stepDeg), r = Number(rate);
-      if (!(s > 0) || !(r > 0)) return setProblem('The schedule step and the drive rate must be above 0.');
-      options.stepDeg = s;
-      options.rateDegPerSec = r;
+      const o = scheduleOptions(f, profile, rowsBy);
+      if (typeof o === 'string') return setProblem(o);
+      options = { ...o, format };
     }
     setProblem(null);
     setBusy(true);
@@ -197,7 +236,10 @@ export function ExportDialog({ hasPath, onExport, onClose }: { hasPath: boolean;
           </label>
           {kind === 'angle-table' && (
             <>
-              <NumberField label="every n-th sample" value={every} onChange={setEvery} step="1" />
+              <label className="field check">
+                <input type="checkbox" checked={rates} onChange={(e) => setRates(e.target.checked)} />
+                <span>rate columns (° per ° of drive)</span>
+              </label>
               <label className="field wide">
                 <span>creases (labels, empty: all)</span>
                 <input value={creases} onChange={(e) => setCreases(e.target.value)} placeholder="e.g. z6_4, s3_2" />
@@ -206,12 +248,32 @@ export function ExportDialog({ hasPath, onExport, onClose }: { hasPath: boolean;
           )}
           {kind === 'schedule' && (
             <>
-              <NumberField label="drive step (°)" value={stepDeg} onChange={setStepDeg} />
-              <NumberField label="drive rate (°/s)" value={rate} onChange={setRate} />
+              <NumberField label="total time (s)" value={f.timeS} onChange={set('timeS')} />
+              <label className="field wide">
+                <span>drive profile</span>
+                <select value={profile} onChange={(e) => setProfile(e.target.value as ScheduleProfile)} aria-label="drive profile">
+                  {(Object.keys(PROFILE_WORDS) as ScheduleProfile[]).map((p) => (
+                    <option key={p} value={p}>{PROFILE_WORDS[p]}</option>
+                  ))}
+                </select>
+              </label>
+              {profile !== 'constant' && <NumberField label="acceleration time (s)" value={f.accelTimeS} onChange={set('accelTimeS')} hint="empty: a quarter of the total time" />}
+              {profile === 's-curve' && <NumberField label="jerk time (s)" value={f.jerkTimeS} onChange={set('jerkTimeS')} hint="empty: a quarter of the acceleration time" />}
+              <label className="field">
+                <span>rows by</span>
+                <select value={rowsBy} onChange={(e) => setRowsBy(e.target.value as 'rows' | 'dt')} aria-label="rows by">
+                  <option value="rows">number of rows</option>
+                  <option value="dt">time step</option>
+                </select>
+              </label>
+              {rowsBy === 'rows' ? <NumberField label="rows" value={f.rows} onChange={set('rows')} step="1" hint="the last row is at the total time" /> : <NumberField label="time step (s)" value={f.dtS} onChange={set('dtS')} hint="the last row is at the total time" />}
+              <NumberField label="hinge rate limit (°/s)" value={f.maxRate} onChange={set('maxRate')} hint="every hinge; empty: none" />
+              <NumberField label="hinge acceleration limit (°/s²)" value={f.maxAccel} onChange={set('maxAccel')} hint="every hinge; empty: none" />
             </>
           )}
         </div>
       )}
+      {needsPath && <p className="hint">Each row is solved exactly; the file’s header records the {kind === 'schedule' ? 'hingeplan schedule' : 'hingeplan table'} command that writes the same numbers.</p>}
       <p className="cautions">{CAUTIONS}</p>
       {problem && <p className="dialog-problems" role="alert">{problem}</p>}
       <div className="dialog-buttons">
