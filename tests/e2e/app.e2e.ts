@@ -4,6 +4,7 @@ import assert from 'node:assert/strict';
 import { promises as fs, readFileSync } from 'node:fs';
 import path from 'node:path';
 import Papa from 'papaparse';
+import { createHash } from 'node:crypto';
 import type { Page } from 'playwright-core';
 import { CAUTIONS, loadPatternText, solveDrives, resolveDrives, type Pattern } from '../../solver';
 import { screenshot, SAMPLES, type AppSession, type Harness, type SessionOptions } from './harness';
@@ -50,6 +51,16 @@ async function tableAngles(page: Page): Promise<Map<string, number>> {
     els.map((e) => [e.getAttribute('data-label')!, e.querySelector('[data-testid=angle-cell]')!.textContent!] as [string, string]),
   );
   return new Map(rows.map(([l, t]) => [l, Number(t.replace('°', ''))]));
+}
+
+/** The `# key: value` lines of an exported table's header (the first of each key). */
+function metadata(text: string): Map<string, string> {
+  const out = new Map<string, string>();
+  for (const l of text.split('\n')) {
+    const m = /^# ([A-Za-z0-9]+): (.*)$/.exec(l);
+    if (m && !out.has(m[1])) out.set(m[1], m[2]);
+  }
+  return out;
 }
 
 function loadSample(file: string) {
@@ -218,6 +229,7 @@ export const e2eTests: E2ETest[] = [
         const dialog = page.getByRole('dialog');
         await dialog.getByLabel('Angle table of the computed path').check();
         await dialog.getByLabel('table format').selectOption('csv');
+        await dialog.getByLabel('rate columns (° per ° of drive)').check();
         const target = path.join(tmp, 'coupon.angles.csv');
         host.saveAnswers.push(target);
         await screenshot(page, 'export-dialog');
@@ -226,20 +238,81 @@ export const e2eTests: E2ETest[] = [
         assert.match(host.saveRequests.at(-1)!.defaultName, /hinge-coupon\.angles\.csv$/);
         const text = await fs.readFile(target, 'utf8');
         assert.ok(text.includes(CAUTIONS), 'the table carries the cautions line');
+        // the header of `hingeplan table`: "# key: value" lines before the column row
+        const meta = metadata(text);
+        assert.equal(meta.get('format'), 'hingeplan-angle-table');
+        assert.equal(meta.get('cautions'), CAUTIONS);
+        assert.equal(meta.get('file'), COUPON_FILE);
+        // Node's SHA-256 (OpenSSL) of the file the app opened
+        assert.equal(meta.get('fileSha256'), createHash('sha256').update(readFileSync(path.join(tmp, COUPON_FILE))).digest('hex'));
+        assert.equal(meta.get('command'), `hingeplan table ${COUPON_FILE} --drive c0 --from 0 --to 160 --step 10 --format csv --rates`);
         const body = text.split('\n').filter((l) => l && !l.startsWith('#')).join('\n');
         const parsed = Papa.parse<Record<string, string>>(body, { header: true, skipEmptyLines: true });
         assert.deepEqual(parsed.errors, []);
-        assert.ok(parsed.data.length >= 10, `${parsed.data.length} rows`);
-        // each row's angles are a closed state of the coupon at that drive value: check against the solver
+        assert.equal(parsed.data.length, 17);
         const cols = parsed.meta.fields!;
-        const driveCol = cols.find((c) => /drive|c0/i.test(c))!;
-        const row = parsed.data[Math.floor(parsed.data.length / 2)];
-        const drive = Number(row[driveCol]);
-        const reference = referenceSolve(pattern, [{ crease: 'c0', angleDeg: drive }]);
-        const labels = ['c1', 'c2', 'c3'].filter((l) => cols.some((c) => c.startsWith(l)));
-        assert.ok(labels.length > 0, `the table has crease columns (${cols.join(', ')})`);
-        const matches = reference.solutions.some((s) => labels.every((l) => Math.abs(Number(row[cols.find((c) => c.startsWith(l))!]) - s.angles[pattern.labelIndex.get(l)!] * DEG) < 1e-3));
-        assert.ok(matches, `the row at ${drive}° is one of the solver's states`);
+        assert.ok(cols.includes('rate:c1'), `rate columns (${cols.join(', ')})`);
+        // each row's angles are a closed state of the coupon at that drive value: check against the solver
+        for (const row of [parsed.data[3], parsed.data[Math.floor(parsed.data.length / 2)], parsed.data.at(-1)!]) {
+          const drive = Number(row.drive);
+          const reference = referenceSolve(pattern, [{ crease: 'c0', angleDeg: drive }]);
+          const matches = reference.solutions.some((s) => ['c1', 'c2', 'c3'].every((l) => Math.abs(Number(row[l]) - s.angles[pattern.labelIndex.get(l)!] * DEG) < 1e-7));
+          assert.ok(matches, `the row at ${drive}° is one of the solver's states`);
+        }
+      });
+    },
+  },
+  {
+    name: 'a schedule exports from the dialog and its drive velocity follows the chosen S-curve',
+    timeoutMs: 150_000,
+    async run(h) {
+      const { pattern } = loadSample(COUPON);
+      await withSession(h, 'export-schedule', { openSample: COUPON_FILE }, async ({ page, host, tmp }) => {
+        await waitSolved(page);
+        await page.getByLabel('path from, degrees').fill('0');
+        await page.getByLabel('path to, degrees').fill('160');
+        await page.getByLabel('path step, degrees').fill('20');
+        await page.click('[data-testid=compute-path]');
+        await page.waitForSelector('[data-testid=path-summary]', { timeout: 60_000 });
+        await page.click('button:has-text("Export…")');
+        const dialog = page.getByRole('dialog');
+        await dialog.getByLabel('Deployment schedule of the computed path').check();
+        await dialog.getByLabel('total time (s)').fill('8');
+        await dialog.getByLabel('drive profile').selectOption('s-curve');
+        await dialog.getByLabel('acceleration time (s)').fill('2');
+        await dialog.getByLabel('jerk time (s)').fill('0.5');
+        await dialog.getByRole('spinbutton', { name: /^rows/ }).fill('41');
+        await dialog.getByLabel('hinge rate limit (°/s)').fill('40');
+        const target = path.join(tmp, 'coupon.schedule.csv');
+        host.saveAnswers.push(target);
+        await screenshot(page, 'export-dialog-schedule');
+        await dialog.getByTestId('export-go').click();
+        await page.waitForSelector('[data-testid=notice-info]:has-text("Exported")', { timeout: 60_000 });
+        assert.match(host.saveRequests.at(-1)!.defaultName, /hinge-coupon\.schedule\.csv$/);
+        const text = await fs.readFile(target, 'utf8');
+        const meta = metadata(text);
+        assert.equal(meta.get('format'), 'hingeplan-deployment-schedule');
+        assert.equal(meta.get('cautions'), CAUTIONS);
+        assert.equal(meta.get('command'), `hingeplan schedule ${COUPON_FILE} --drive c0 --from 0 --to 160 --time 8 --profile s-curve --accel-time 2 --jerk-time 0.5 --rows 41 --max-rate 40 --format csv`);
+        const body = text.split('\n').filter((l) => l && !l.startsWith('#')).join('\n');
+        const parsed = Papa.parse<Record<string, string>>(body, { header: true, skipEmptyLines: true });
+        assert.deepEqual(parsed.errors, []);
+        assert.equal(parsed.data.length, 41);
+        // jerk-limited S-curve (common practice for point-to-point motion): within the acceleration phase t_a
+        // the acceleration ramps at jerk j for t_j, holds a_max, ramps down for t_j; the velocity gained is
+        // a_max (t_a − t_j) = v_max, and v_max = Δ / (T − t_a). Δ = 160°, T = 8 s, t_a = 2 s, t_j = 0.5 s.
+        const T = 8, ta = 2, tj = 0.5, vmax = 160 / (T - ta), amax = vmax / (ta - tj), j = amax / tj;
+        const rise = (t: number) => (t <= tj ? (j * t * t) / 2 : t <= ta - tj ? (j * tj * tj) / 2 + amax * (t - tj) : vmax - (j * (ta - t) ** 2) / 2);
+        const velocity = (t: number) => (t <= ta ? rise(t) : t >= T - ta ? rise(T - t) : vmax);
+        for (const row of parsed.data) {
+          const t = Number(row.t);
+          assert.ok(Math.abs(Number(row.drive_velocity) - velocity(t)) < 1e-9, `drive velocity at ${t} s: ${row.drive_velocity}, the S-curve gives ${velocity(t)}`);
+        }
+        // the rows are solved at the profile's drive values, not taken from the 20° samples of the path
+        const row = parsed.data[7];
+        assert.ok(Number(row.drive) % 20 !== 0, `row at ${row.t} s is between samples (${row.drive}°)`);
+        const reference = referenceSolve(pattern, [{ crease: 'c0', angleDeg: Number(row.drive) }]);
+        assert.ok(reference.solutions.some((s) => ['c1', 'c2', 'c3'].every((l) => Math.abs(Number(row[l]) - s.angles[pattern.labelIndex.get(l)!] * DEG) < 1e-7)), `the row at ${row.drive}° is one of the solver's states`);
       });
     },
   },
