@@ -75,6 +75,21 @@ function listed(pattern: Pattern, opts: { creases?: number[] }): number[] {
   return opts.creases ?? pattern.creases.filter((c) => c.assignment !== 'B').map((c) => c.index);
 }
 
+/** The header's first lines: what the table is and which file it comes from. */
+function sourceMeta(format: string, header: TableHeader) {
+  return { format, version: TABLE_VERSION, pattern: header.patternName, file: header.file, fileSha256: header.fileSha256 };
+}
+
+/** Sign convention, tolerance and the largest residual over the table. */
+function accuracyMeta(largest: number) {
+  return { signConvention: SIGN_CONVENTION, tolerance: `${RESIDUAL_TOLERANCE} rad largest vertex residual`, largestResidual: largest };
+}
+
+/** The header's last lines: program, date, the command that reproduces every number, and the cautions. */
+function provenanceMeta(header: TableHeader) {
+  return { program: `hingeplan ${header.version}`, date: header.date, command: header.command, cautions: CAUTIONS };
+}
+
 function metadataLines(meta: Record<string, string | number | boolean | null>): string {
   // one "# key: value" line each; values never carry line breaks
   return Object.entries(meta).map(([k, v]) => `# ${k}: ${String(v ?? '').replace(/[\r\n]+/g, ' ')}`).join('\n') + '\n';
@@ -105,25 +120,16 @@ export function angleTable(
   const label = (c: number) => pattern.creases[c].label;
   const largest = result.samples.reduce((m, s) => Math.max(m, s.maxResidual), 0);
   const meta = {
-    format: TABLE_FORMAT,
-    version: TABLE_VERSION,
-    pattern: header.patternName,
-    file: header.file,
-    fileSha256: header.fileSha256,
+    ...sourceMeta(TABLE_FORMAT, header),
     branch: result.branch ? `${result.branch.id ?? ''}${result.branch.id !== undefined ? ' ' : ''}${result.branch.name}${result.branch.matchesAssignment ? ' (matches the mountain/valley assignment)' : ''}` : 'none',
     drive: label(result.drive),
     held: holdsText(pattern, holds),
     units: 'degrees (angles), degrees per degree of drive (rates), radians (residuals)',
-    signConvention: SIGN_CONVENTION,
-    tolerance: `${RESIDUAL_TOLERANCE} rad largest vertex residual`,
-    largestResidual: largest,
+    ...accuracyMeta(largest),
     status: result.status,
     samples: `${result.samples.length} of ${result.requested}`,
     method: result.method,
-    program: `hingeplan ${header.version}`,
-    date: header.date,
-    command: header.command,
-    cautions: CAUTIONS,
+    ...provenanceMeta(header),
   };
   if (opts.format === 'json') {
     return JSON.stringify({
@@ -166,25 +172,16 @@ export function scheduleTable(
   const largest = result.rows.reduce((m, r) => Math.max(m, r.maxResidual ?? 0), 0);
   const prof = result.profile;
   const meta = {
-    format: SCHEDULE_FORMAT,
-    version: TABLE_VERSION,
-    pattern: header.patternName,
-    file: header.file,
-    fileSha256: header.fileSha256,
+    ...sourceMeta(SCHEDULE_FORMAT, header),
     branch: result.sweep?.branch ? `${result.sweep.branch.id ?? ''} ${result.sweep.branch.name}`.trim() : 'none',
     drive: label(drive),
     held: holdsText(pattern, holds),
     profile: prof ? `${prof.spec.kind} from ${num(prof.spec.from * DEG)} to ${num(prof.spec.to * DEG)} deg in ${num(prof.spec.duration)} s, acceleration time ${num(prof.accelTime)} s, jerk time ${num(prof.jerkTime)} s, peak drive velocity ${num(prof.peakVelocity * DEG)} deg/s, peak drive acceleration ${num(prof.peakAcceleration * DEG)} deg/s^2` : '',
     units: 'seconds, degrees, degrees/s, degrees/s^2; residuals in radians',
-    signConvention: SIGN_CONVENTION,
-    tolerance: `${RESIDUAL_TOLERANCE} rad largest vertex residual`,
-    largestResidual: largest,
+    ...accuracyMeta(largest),
     status: result.status,
     unreachableRows: result.rows.filter((r) => r.unreachable).length,
-    program: `hingeplan ${header.version}`,
-    date: header.date,
-    command: header.command,
-    cautions: CAUTIONS,
+    ...provenanceMeta(header),
   };
   const flags = (r: ScheduleResult['rows'][number]) =>
     r.unreachable ? 'unreachable' : [...r.overRate.map((c) => `rate:${label(c)}`), ...r.overAcceleration.map((c) => `accel:${label(c)}`)].join(' ');
@@ -253,23 +250,14 @@ export function followTable(
   const label = (c: number) => pattern.creases[c].label;
   const largest = result.rows.reduce((m, r) => Math.max(m, r.maxResidual ?? 0), 0);
   const meta = {
-    format: FOLLOW_FORMAT,
-    version: TABLE_VERSION,
-    pattern: header.patternName,
-    file: header.file,
-    fileSha256: header.fileSha256,
+    ...sourceMeta(FOLLOW_FORMAT, header),
     drives: result.drives.map(label).join(' '),
     held: holdsText(pattern, holds),
     units: 'seconds, degrees; residuals in radians' + (opts.rates ? '; rates in degrees per degree of the drive' : ''),
-    signConvention: SIGN_CONVENTION,
-    tolerance: `${RESIDUAL_TOLERANCE} rad largest vertex residual`,
-    largestResidual: largest,
+    ...accuracyMeta(largest),
     status: result.status,
     unreachableRows: result.rows.filter((r) => r.unreachable).length,
-    program: `hingeplan ${header.version}`,
-    date: header.date,
-    command: header.command,
-    cautions: CAUTIONS,
+    ...provenanceMeta(header),
   };
   if (format === 'json') {
     return JSON.stringify({
@@ -316,24 +304,15 @@ export function gridTable(
   const all = result.nodes.flat();
   const largest = all.reduce((m, n) => Math.max(m, n.maxResidual ?? 0), 0);
   const meta = {
-    format: GRID_FORMAT,
-    version: TABLE_VERSION,
-    pattern: header.patternName,
-    file: header.file,
-    fileSha256: header.fileSha256,
+    ...sourceMeta(GRID_FORMAT, header),
     x: label(axes.x),
     y: label(axes.y),
     held: holdsText(pattern, holds),
     units: 'degrees; residuals in radians',
-    signConvention: SIGN_CONVENTION,
-    tolerance: `${RESIDUAL_TOLERANCE} rad largest vertex residual`,
-    largestResidual: largest,
+    ...accuracyMeta(largest),
     status: result.status,
     unreachableNodes: all.filter((n) => n.unreachable).length,
-    program: `hingeplan ${header.version}`,
-    date: header.date,
-    command: header.command,
-    cautions: CAUTIONS,
+    ...provenanceMeta(header),
   };
   if (format === 'json') {
     return JSON.stringify({
