@@ -153,7 +153,6 @@ export function patternDegreesOfFreedom(pattern: Pattern): number {
   const cone = flatCone(pattern, { starts: 48 });
   const rays = [...cone.rays].sort((a, b) => Number(!!a.straightLine) - Number(!!b.straightLine));
   let best = Infinity;
-  const zero = new Float64Array(pattern.creases.length);
   for (const ray of rays.slice(0, 6)) {
     let big = 0;
     for (const v of ray.tangent) big = Math.max(big, Math.abs(v));
@@ -167,7 +166,6 @@ export function patternDegreesOfFreedom(pattern: Pattern): number {
     best = Math.min(best, a.localDof);
   }
   if (!Number.isFinite(best)) {
-    problem.evaluate(zero);
     // fall back on the generic count (creases minus three equations per vertex)
     best = Math.max(0, movable.length - 3 * pattern.interiorVertices.length);
   }
@@ -201,7 +199,10 @@ export function solveDrives(pattern: Pattern, drives: Drive[], options: SolveOpt
     const twin = found.find((f) => sameState(f.angles, angles));
     if (twin) {
       // the same rotation state folded flat from the other side: prefer the sides the assignment asks for
-      if (!matchesAssignment(pattern, twin.angles) && matchesAssignment(pattern, angles)) twin.angles = angles;
+      if (!matchesAssignment(pattern, twin.angles) && matchesAssignment(pattern, angles)) {
+        twin.angles = angles;
+        twin.maxResidual = polished.maxResidual;
+      }
       return;
     }
     found.push({ angles, maxResidual: polished.maxResidual });
