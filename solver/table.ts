@@ -90,6 +90,11 @@ function provenanceMeta(header: TableHeader) {
   return { program: `hingeplan ${header.version}`, date: header.date, command: header.command, cautions: CAUTIONS };
 }
 
+/** { label: value } for the listed creases, each value passed through `f` (e.g. radians → degrees). */
+function byLabel(pattern: Pattern, cols: number[], values: ArrayLike<number>, f: (x: number) => number | null = (x) => x) {
+  return Object.fromEntries(cols.map((c) => [pattern.creases[c].label, f(values[c])]));
+}
+
 function metadataLines(meta: Record<string, string | number | boolean | null>): string {
   // one "# key: value" line each; values never carry line breaks
   return Object.entries(meta).map(([k, v]) => `# ${k}: ${String(v ?? '').replace(/[\r\n]+/g, ' ')}`).join('\n') + '\n';
@@ -138,8 +143,8 @@ export function angleTable(
       columns: cols.map(label),
       samples: result.samples.map((s) => ({
         drive: deg(s.drive),
-        angles: Object.fromEntries(cols.map((c) => [label(c), deg(s.angles[c])])),
-        ...(opts.rates ? { rates: Object.fromEntries(cols.map((c) => [label(c), s.rates[c]])) } : {}),
+        angles: byLabel(pattern, cols, s.angles, deg),
+        ...(opts.rates ? { rates: byLabel(pattern, cols, s.rates) } : {}),
         maxResidual: s.maxResidual,
         condition: jsonNum(s.condition),
         nearSingular: s.nearSingular,
@@ -197,9 +202,9 @@ export function scheduleTable(
         driveAcceleration: deg(r.driveAcceleration),
         ...(r.angles
           ? {
-              angles: Object.fromEntries(cols.map((c) => [label(c), deg(r.angles![c])])),
-              velocities: Object.fromEntries(cols.map((c) => [label(c), deg(r.velocities![c])])),
-              accelerations: Object.fromEntries(cols.map((c) => [label(c), deg(r.accelerations![c])])),
+              angles: byLabel(pattern, cols, r.angles!, deg),
+              velocities: byLabel(pattern, cols, r.velocities!, deg),
+              accelerations: byLabel(pattern, cols, r.accelerations!, deg),
               maxResidual: r.maxResidual,
             }
           : { unreachable: r.unreachable }),
@@ -268,8 +273,8 @@ export function followTable(
         time: r.time,
         line: r.line,
         drives: Object.fromEntries([...r.values].map(([c, v]) => [label(c), deg(v)])),
-        ...(r.angles ? { angles: Object.fromEntries(cols.map((c) => [label(c), deg(r.angles![c])])), maxResidual: r.maxResidual } : { unreachable: r.unreachable }),
-        ...(r.rates ? { rates: Object.fromEntries(cols.map((c) => [label(c), r.rates![c]])) } : {}),
+        ...(r.angles ? { angles: byLabel(pattern, cols, r.angles!, deg), maxResidual: r.maxResidual } : { unreachable: r.unreachable }),
+        ...(r.rates ? { rates: byLabel(pattern, cols, r.rates!) } : {}),
       })),
       events: eventsJson(pattern, result.events),
       messages: result.messages.map((m) => ({ severity: m.severity, code: m.code, text: m.text })),
@@ -322,7 +327,7 @@ export function gridTable(
       nodes: all.map((n) => ({
         x: deg(n.x),
         y: deg(n.y),
-        ...(n.angles ? { angles: Object.fromEntries(cols.map((c) => [label(c), deg(n.angles![c])])), maxResidual: n.maxResidual } : { unreachable: n.unreachable }),
+        ...(n.angles ? { angles: byLabel(pattern, cols, n.angles!, deg), maxResidual: n.maxResidual } : { unreachable: n.unreachable }),
       })),
       messages: result.messages.map((m) => ({ severity: m.severity, code: m.code, text: m.text })),
     }, null, 2) + '\n';

@@ -8,6 +8,7 @@ import { createHash } from 'node:crypto';
 import type { Page } from 'playwright-core';
 import { CAUTIONS, loadPatternText, solveDrives, resolveDrives, type Pattern } from '../../solver';
 import { screenshot, SAMPLES, type AppSession, type Harness, type SessionOptions } from './harness';
+import { metadata } from '../support/table-header';
 
 export interface E2ETest {
   name: string;
@@ -53,15 +54,6 @@ async function tableAngles(page: Page): Promise<Map<string, number>> {
   return new Map(rows.map(([l, t]) => [l, Number(t.replace('°', ''))]));
 }
 
-/** The `# key: value` lines of an exported table's header (the first of each key). */
-function metadata(text: string): Map<string, string> {
-  const out = new Map<string, string>();
-  for (const l of text.split('\n')) {
-    const m = /^# ([A-Za-z0-9]+): (.*)$/.exec(l);
-    if (m && !out.has(m[1])) out.set(m[1], m[2]);
-  }
-  return out;
-}
 
 function loadSample(file: string) {
   const loaded = loadPatternText(readFileSync(file, 'utf8'), path.basename(file));

@@ -15,6 +15,7 @@ import { createHash } from 'node:crypto';
 import { main } from '../../cli/main';
 import { nodeIo, type Io } from '../../cli/io';
 import { miura } from '../../solver';
+import { metadata } from '../support/table-header';
 
 class FakeHost implements DialogHost {
   open: (string | null)[] = [];
@@ -68,15 +69,6 @@ afterAll(async () => {
   await fs.rm(tmp, { recursive: true, force: true });
 });
 
-/** The `# key: value` lines of a table's header. */
-function metadata(text: string): Map<string, string> {
-  const out = new Map<string, string>();
-  for (const l of text.split('\n')) {
-    const m = /^# ([A-Za-z0-9]+): (.*)$/.exec(l);
-    if (m && !out.has(m[1])) out.set(m[1], m[2]);
-  }
-  return out;
-}
 
 /** A table without the lines that name where and when it was written (the command line ran on the full path). */
 const withoutDate = (text: string) => text.replace(/^# (date|file|program|command): .*$/gm, '');
