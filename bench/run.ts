@@ -9,13 +9,13 @@
 //   npm run bench -- --all-conditions   also a path with the condition number at every sample
 import { execFileSync } from 'node:child_process';
 import { fileURLToPath } from 'node:url';
-import { miura } from '../solver/generators';
-import { buildPattern } from '../solver/pattern';
-import { sweep } from '../solver/path';
-import { buildClosureSystem } from '../solver/closure';
-import { planPropagation, propagate, propagationWork } from '../solver/propagate';
-import { ClosureProblem } from '../solver/newton';
-import { solveDrives } from '../solver/solve';
+import { miura } from '../solver/model/generators';
+import { buildPattern } from '../solver/model/pattern';
+import { sweep } from '../solver/paths/sweep';
+import { buildClosureSystem } from '../solver/closure/blocks';
+import { planPropagation, propagate, propagationWork } from '../solver/paths/propagate';
+import { ClosureProblem } from '../solver/closure/newton';
+import { solveDrives } from '../solver/search/solve';
 import type { Assignment, Pattern, PatternSource } from '../solver/types';
 
 const D = Math.PI / 180;

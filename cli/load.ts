@@ -1,7 +1,7 @@
 // Reading a pattern file for a command: every problem is printed as a message naming where it is.
 import type { Drive, Message, Pattern } from '../solver/types';
 import { loadPatternText, type Project } from '../solver/formats/project';
-import { parseSetOption, resolveDrives, type DriveSpec } from '../solver/drives';
+import { parseSetOption, resolveDrives, type DriveSpec } from '../solver/model/drives';
 import type { Io } from './io';
 
 export interface Loaded {

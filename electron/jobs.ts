@@ -24,7 +24,7 @@ import {
   type Solution,
   type SolveReport,
 } from '../solver';
-import type { GeneratorResult } from '../solver/generators';
+import type { GeneratorResult } from '../solver/model/generators';
 import {
   DriveSpecSchema,
   ExportKindSchema,
@@ -42,9 +42,9 @@ import {
 } from './contract';
 import { JobFailure } from './worker-protocol';
 import { LruMap } from './lru';
-import { runSteps, type SweepResult } from '../solver/path';
-import { angleTable, scheduleTable, type TableHeader } from '../solver/table';
-import { scheduleSteps, type HingeLimits, type ScheduleOptions } from '../solver/schedule';
+import { runSteps, type SweepResult } from '../solver/paths/sweep';
+import { angleTable, scheduleTable, type TableHeader } from '../solver/outputs/table';
+import { scheduleSteps, type HingeLimits, type ScheduleOptions } from '../solver/outputs/schedule';
 import { appTableHeader, scheduleCommand, tableCommand } from './table-header';
 import type { SweepOptionsSchema } from './contract';
 import type { JobContext } from './worker-protocol';

@@ -4,8 +4,8 @@
 
 import { z } from 'zod';
 import type { Pattern } from '../solver/types';
-import { sweep, type SweepEvent, type SweepOptions, type SweepResult } from '../solver/path';
-import { flatBranches, type Branch, type BranchAnalysis } from '../solver/branches';
+import { sweep, type SweepEvent, type SweepOptions, type SweepResult } from '../solver/paths/sweep';
+import { flatBranches, type Branch, type BranchAnalysis } from '../solver/paths/branches';
 import { DriveSpecSchema, SweepOptionsSchema, finiteOrNull, type BranchDto, type BranchesResultDto, type PathResultDto } from './contract';
 import { JobFailure, type JobContext } from './worker-protocol';
 import { patternFor, resolveOrFail, type JobState } from './jobs';

@@ -4,8 +4,8 @@
 // the values the app solved at.
 
 import type { Pattern } from '../solver/types';
-import type { TableHeader } from '../solver/table';
-import { sha256 } from '../solver/sha256';
+import type { TableHeader } from '../solver/outputs/table';
+import { sha256 } from '../solver/outputs/sha256';
 import { loadPatternText, writeProject, type Project } from '../solver';
 import { PatternSourceSchema, type DriveSpec, type ExportOptionsSchema, type ProjectDto, type SweepOptionsSchema } from './contract';
 import type { z } from 'zod';

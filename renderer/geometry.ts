@@ -2,8 +2,8 @@
 // pure function), the folded shape for the angles on screen, crease picking on the flat sheet, and the
 // panels that touch a crease beyond its hinge limit.
 
-import { buildPattern } from '../solver/pattern';
-import { foldedShape } from '../solver/shape';
+import { buildPattern } from '../solver/model/pattern';
+import { foldedShape } from '../solver/outputs/shape';
 import type { Pattern, PatternSource, Shape } from '../solver/types';
 import type { MessageDto, PatternSourceDto, ProjectDto } from '../electron/contract';
 import { limitState } from './state/document';

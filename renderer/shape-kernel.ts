@@ -1,5 +1,5 @@
 // Placing the panels for display at frame rate. The breadth-first walk of the panels from the base panel
-// (the same walk as solver/shape.ts's foldedShape, which tests hold this to) depends only on the pattern,
+// (the same walk as solver/outputs/shape.ts's foldedShape, which tests hold this to) depends only on the pattern,
 // so it is planned once; each frame then composes one hinge rotation per panel into a preallocated buffer,
 // allocating nothing.
 

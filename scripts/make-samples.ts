@@ -3,7 +3,7 @@
 import { mkdirSync, writeFileSync } from 'node:fs';
 import { dirname, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
-import { degree5, miura, singleVertex, waterbomb, type GeneratorResult } from '../solver/generators';
+import { degree5, miura, singleVertex, waterbomb, type GeneratorResult } from '../solver/model/generators';
 import { writeProject, type Project } from '../solver/formats/project';
 import { writeFold } from '../solver/formats/fold';
 import { CAUTIONS } from '../solver/formats/cautions';

@@ -1,11 +1,11 @@
 // Branch analysis at the flat state and at folded states, against published first-order relations.
 import { describe, expect, it } from 'vitest';
-import { branchesAt, flatBranches, flatModeOfMesh, tangentMatchesAssignment } from '../solver/branches';
-import { miura, degree4Assignment } from '../solver/generators';
-import { buildPattern } from '../solver/pattern';
-import { sweep, secondOrderRows } from '../solver/path';
-import { ClosureProblem } from '../solver/newton';
-import { buildClosureSystem, evaluateClosure } from '../solver/closure';
+import { branchesAt, flatBranches, flatModeOfMesh, tangentMatchesAssignment } from '../solver/paths/branches';
+import { miura, degree4Assignment } from '../solver/model/generators';
+import { buildPattern } from '../solver/model/pattern';
+import { sweep, secondOrderRows } from '../solver/paths/sweep';
+import { ClosureProblem } from '../solver/closure/newton';
+import { buildClosureSystem, evaluateClosure } from '../solver/closure/blocks';
 import { directionsFromSectors, vertexPattern } from './support/vertex';
 
 const D = Math.PI / 180;

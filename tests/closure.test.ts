@@ -1,9 +1,9 @@
 import { describe, expect, it } from 'vitest';
 import { Quaternion, Vector3 } from 'three';
-import { buildClosureSystem, closureScratch, evaluateBlock } from '../solver/closure';
+import { buildClosureSystem, closureScratch, evaluateBlock } from '../solver/closure/blocks';
 import { axisAngleRotation, mat3, multiplyMat3, rotationVector, vec3 } from '../solver/math/rotation';
 import { directionsFromSectors, vertexPattern } from './support/vertex';
-import { mulberry32 } from '../solver/cone';
+import { mulberry32 } from '../solver/paths/cone';
 
 const rng = mulberry32;
 

@@ -18,9 +18,9 @@ import { parseFold, writeFold } from '../solver/formats/fold';
 import { firstJsonError, lineColumn, utf8Length } from '../solver/formats/limits';
 import { shapeToJSON, shapeToOBJ, shapeToSTL, triangulatePanel } from '../solver/formats/shape-export';
 import { CAUTIONS } from '../solver/formats/cautions';
-import { parseSetOption, resolveDrives } from '../solver/drives';
-import { buildPattern } from '../solver/pattern';
-import { miura, singleVertex, waterbomb } from '../solver/generators';
+import { parseSetOption, resolveDrives } from '../solver/model/drives';
+import { buildPattern } from '../solver/model/pattern';
+import { miura, singleVertex, waterbomb } from '../solver/model/generators';
 import type { Message, Pattern, Shape } from '../solver/types';
 
 const Ajv = ((Ajv2020Module as unknown as { default?: unknown }).default ?? Ajv2020Module) as new (o: object) => {

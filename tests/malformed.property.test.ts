@@ -7,8 +7,8 @@ import { join } from 'node:path';
 import { loadPatternText, parseProject, writeProject, type LoadResult, type Project } from '../solver/formats/project';
 import { parseFold, writeFold } from '../solver/formats/fold';
 import { firstJsonError } from '../solver/formats/limits';
-import { buildPattern } from '../solver/pattern';
-import { singleVertex } from '../solver/generators';
+import { buildPattern } from '../solver/model/pattern';
+import { singleVertex } from '../solver/model/generators';
 import { SAMPLES_DIR } from '../scripts/make-samples';
 import type { Assignment, Message, Pattern, PatternSource } from '../solver/types';
 

@@ -1,7 +1,7 @@
 // Miura-ori against M. Schenk, S. D. Guest, "Geometry of Miura-folded metamaterials", PNAS 110(9):3276, 2013.
 import { describe, expect, it } from 'vitest';
-import { solveDrives } from '../solver/solve';
-import { foldedShape } from '../solver/shape';
+import { solveDrives } from '../solver/search/solve';
+import { foldedShape } from '../solver/outputs/shape';
 import { miuraSheet as sheet } from './support/references';
 import type { Pattern } from '../solver/types';
 

@@ -1,9 +1,9 @@
 // Events along a path, each on a pattern built for it, checked against relations from outside the solver.
 import { describe, expect, it } from 'vitest';
-import { sweep } from '../solver/path';
-import { ClosureProblem } from '../solver/newton';
-import { miura } from '../solver/generators';
-import { buildPattern } from '../solver/pattern';
+import { sweep } from '../solver/paths/sweep';
+import { ClosureProblem } from '../solver/closure/newton';
+import { miura } from '../solver/model/generators';
+import { buildPattern } from '../solver/model/pattern';
 import type { Pattern } from '../solver/types';
 import { directionsFromSectors, vertexPattern } from './support/vertex';
 import { fourBar } from './support/references';

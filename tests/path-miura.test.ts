@@ -3,9 +3,9 @@
 // tan(ρ_s/2) = cos α · tan(ρ_z/2), and the unit cell measures 2L × 2S with
 // L = a·√(1 − sin²θ sin²α), S = b·cosθ·tanα / √(1 + cos²θ tan²α).
 import { describe, expect, it } from 'vitest';
-import { foldedShape } from '../solver/shape';
+import { foldedShape } from '../solver/outputs/shape';
 import { miuraSheet as sheet } from './support/references';
-import { sweep, type SweepSample } from '../solver/path';
+import { sweep, type SweepSample } from '../solver/paths/sweep';
 import type { Pattern } from '../solver/types';
 
 const D = Math.PI / 180;

@@ -1,10 +1,10 @@
 // The closed-form degree-4 vertex and the vertex-by-vertex propagation.
 import { describe, expect, it } from 'vitest';
-import { degree4States, evaluateDegree4, planPropagation, propagate, propagationWork } from '../solver/propagate';
-import { buildClosureSystem, evaluateBlock, closureScratch } from '../solver/closure';
-import { miura, waterbomb, degree5 } from '../solver/generators';
-import { buildPattern } from '../solver/pattern';
-import { sweep } from '../solver/path';
+import { degree4States, evaluateDegree4, planPropagation, propagate, propagationWork } from '../solver/paths/propagate';
+import { buildClosureSystem, evaluateBlock, closureScratch } from '../solver/closure/blocks';
+import { miura, waterbomb, degree5 } from '../solver/model/generators';
+import { buildPattern } from '../solver/model/pattern';
+import { sweep } from '../solver/paths/sweep';
 import { directionsFromSectors, vertexPattern } from './support/vertex';
 import { fourBarResidual } from './support/references';
 

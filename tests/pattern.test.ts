@@ -1,7 +1,7 @@
 // buildPattern: the derived panels, sides and interior vertices of valid patterns, and every class of
 // malformed input refused with its code and the vertex/crease at fault, never a throw.
 import { describe, expect, it } from 'vitest';
-import { buildPattern, findCrease, MESSAGES_PER_CODE } from '../solver/pattern';
+import { buildPattern, findCrease, MESSAGES_PER_CODE } from '../solver/model/pattern';
 import type { Assignment, HingeLimit, Message, PatternSource } from '../solver/types';
 
 type E = [number, number, Assignment?, string?];

@@ -2,7 +2,7 @@
 import { describe, expect, it } from 'vitest';
 import { levenbergMarquardt } from 'ml-levenberg-marquardt';
 import { Matrix, SingularValueDecomposition } from 'ml-matrix';
-import { solveDrives } from '../solver/solve';
+import { solveDrives } from '../solver/search/solve';
 import { axisAngleRotation, mat3, multiplyMat3 } from '../solver/math/rotation';
 import { nullBasisFromQR, pivotedQR, singularValueBounds } from '../solver/math/qr';
 import { directionsFromSectors, vertexPattern } from './support/vertex';

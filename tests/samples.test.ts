@@ -2,8 +2,8 @@
 import { describe, expect, it } from 'vitest';
 import { readFileSync } from 'node:fs';
 import { loadPatternText } from '../solver/formats/project';
-import { solveDrives } from '../solver/solve';
-import { foldedShape } from '../solver/shape';
+import { solveDrives } from '../solver/search/solve';
+import { foldedShape } from '../solver/outputs/shape';
 
 const samples: [string, number, number][] = [
   // name, pattern DOF (common practice: a degree-n vertex has n − 3; Miura-ori one; waterbomb base three), drives

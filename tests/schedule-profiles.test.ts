@@ -1,9 +1,9 @@
 // Drive profiles and deployment schedules.
 import { describe, expect, it } from 'vitest';
-import { deploymentSchedule, driveProfile, followSchedule, parseScheduleCsv, timeRows } from '../solver/schedule';
-import { sweep } from '../solver/path';
-import { miura } from '../solver/generators';
-import { buildPattern } from '../solver/pattern';
+import { deploymentSchedule, driveProfile, followSchedule, parseScheduleCsv, timeRows } from '../solver/outputs/schedule';
+import { sweep } from '../solver/paths/sweep';
+import { miura } from '../solver/model/generators';
+import { buildPattern } from '../solver/model/pattern';
 import { directionsFromSectors, vertexPattern } from './support/vertex';
 
 const D = Math.PI / 180;

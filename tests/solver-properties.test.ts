@@ -2,10 +2,10 @@
 // solution closes every vertex to the tolerance.
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
-import { buildPattern } from '../solver/pattern';
-import { solveDrives } from '../solver/solve';
-import { RESIDUAL_TOLERANCE } from '../solver/newton';
-import { blockResiduals, buildClosureSystem } from '../solver/closure';
+import { buildPattern } from '../solver/model/pattern';
+import { solveDrives } from '../solver/search/solve';
+import { RESIDUAL_TOLERANCE } from '../solver/closure/newton';
+import { blockResiduals, buildClosureSystem } from '../solver/closure/blocks';
 import type { Assignment, PatternSource } from '../solver/types';
 
 /** A square sheet cut into an n × n grid whose interior vertices are moved at random (no crossings). */

@@ -1,8 +1,8 @@
 // Statuses that need more than one vertex: a sheet with a degree-4 vertex and, beside it, a straight crease
 // line across the sheet (two DOF: the vertex's mode and the line).
 import { describe, expect, it } from 'vitest';
-import { buildPattern } from '../solver/pattern';
-import { solveDrives } from '../solver/solve';
+import { buildPattern } from '../solver/model/pattern';
+import { solveDrives } from '../solver/search/solve';
 import type { Assignment, PatternSource } from '../solver/types';
 
 const D = Math.PI / 180;

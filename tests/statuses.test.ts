@@ -1,6 +1,6 @@
 // Each status of a partial specification, produced by a case built for it.
 import { describe, expect, it } from 'vitest';
-import { solveDrives } from '../solver/solve';
+import { solveDrives } from '../solver/search/solve';
 import { directionsFromSectors, vertexPattern } from './support/vertex';
 import { fourBarInputLimit } from './support/references';
 import type { Pattern } from '../solver/types';

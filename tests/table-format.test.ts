@@ -1,9 +1,9 @@
 // The angle table writer and its file hash.
 import { describe, expect, it } from 'vitest';
 import { createHash, randomBytes } from 'node:crypto';
-import { sha256, sha256Bytes } from '../solver/sha256';
-import { angleTable, csvCell, num } from '../solver/table';
-import { sweep } from '../solver/path';
+import { sha256, sha256Bytes } from '../solver/outputs/sha256';
+import { angleTable, csvCell, num } from '../solver/outputs/table';
+import { sweep } from '../solver/paths/sweep';
 import { CAUTIONS } from '../solver/formats/cautions';
 import { directionsFromSectors, vertexPattern } from './support/vertex';
 

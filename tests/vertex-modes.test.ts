@@ -1,8 +1,8 @@
 // Single-vertex checks of the solver against published relations.
 import { describe, expect, it } from 'vitest';
-import { solveDrives, patternDegreesOfFreedom, followRay } from '../solver/solve';
-import { ClosureProblem } from '../solver/newton';
-import { flatCone } from '../solver/cone';
+import { solveDrives, patternDegreesOfFreedom, followRay } from '../solver/search/solve';
+import { ClosureProblem } from '../solver/closure/newton';
+import { flatCone } from '../solver/paths/cone';
 import { directionsFromSectors, vertexPattern } from './support/vertex';
 import { fourBarResidual } from './support/references';
 

@@ -3,9 +3,9 @@ import { parseCommandArgs, UsageError } from '../args';
 import type { OptionSpec } from '../args';
 import { loadFile, printMessages } from '../load';
 import { EXIT } from '../exit-codes';
-import { followSteps, parseScheduleCsv } from '../../solver/schedule';
-import { followTable } from '../../solver/table';
-import { sha256 } from '../../solver/sha256';
+import { followSteps, parseScheduleCsv } from '../../solver/outputs/schedule';
+import { followTable } from '../../solver/outputs/table';
+import { sha256 } from '../../solver/outputs/sha256';
 import { EXIT_INTERRUPTED, holdsOption, intOrUndefined, printSolverMessages, runResponsive, tableHeader, writeOutput, joinNegativeNumbers } from './path-common';
 
 export const followCommand: Command = {

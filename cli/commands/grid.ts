@@ -3,8 +3,8 @@ import { parseCommandArgs, UsageError } from '../args';
 import type { OptionSpec } from '../args';
 import { loadFile } from '../load';
 import { EXIT } from '../exit-codes';
-import { gridSteps } from '../../solver/grid';
-import { gridTable } from '../../solver/table';
+import { gridSteps } from '../../solver/outputs/grid';
+import { gridTable } from '../../solver/outputs/table';
 import type { Pattern } from '../../solver/types';
 import {
   creaseOption, EXIT_INTERRUPTED, holdsOption, intOrUndefined, printSolverMessages, runResponsive, sampleDegrees, tableHeader, writeOutput, joinNegativeNumbers,

@@ -2,10 +2,10 @@ import type { Command } from '../command';
 import { intOption, numberOption, parseCommandArgs, UsageError } from '../args';
 import { EXIT } from '../exit-codes';
 import { printMessages } from '../load';
-import { degree5, miura, singleVertex, waterbomb, type GeneratorResult } from '../../solver/generators';
+import { degree5, miura, singleVertex, waterbomb, type GeneratorResult } from '../../solver/model/generators';
 import { writeProject } from '../../solver/formats/project';
 import { writeFold } from '../../solver/formats/fold';
-import { buildPattern } from '../../solver/pattern';
+import { buildPattern } from '../../solver/model/pattern';
 import type { Assignment } from '../../solver/types';
 
 function list(value: string | undefined, name: string): number[] | undefined {

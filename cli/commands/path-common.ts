@@ -2,10 +2,10 @@
 // start states, the sample list in degrees, running resumable solver steps while staying responsive to
 // Ctrl-C (with a progress line), the table header, and writing the output atomically.
 import type { Drive, Message, Pattern } from '../../solver/types';
-import { findCrease } from '../../solver/pattern';
-import { parseSetOption, resolveDrives } from '../../solver/drives';
-import { sha256 } from '../../solver/sha256';
-import type { TableHeader } from '../../solver/table';
+import { findCrease } from '../../solver/model/pattern';
+import { parseSetOption, resolveDrives } from '../../solver/model/drives';
+import { sha256 } from '../../solver/outputs/sha256';
+import type { TableHeader } from '../../solver/outputs/table';
 import { numberOption, UsageError, type OptionSpec } from '../args';
 import { printMessages, type Loaded } from '../load';
 import type { Io } from '../io';

@@ -3,9 +3,9 @@ import { numberOption, parseCommandArgs, UsageError } from '../args';
 import type { OptionSpec } from '../args';
 import { loadFile } from '../load';
 import { EXIT } from '../exit-codes';
-import { scheduleSteps, type HingeLimits, type ProfileKind, type ScheduleOptions } from '../../solver/schedule';
-import { scheduleTable } from '../../solver/table';
-import { findCrease } from '../../solver/pattern';
+import { scheduleSteps, type HingeLimits, type ProfileKind, type ScheduleOptions } from '../../solver/outputs/schedule';
+import { scheduleTable } from '../../solver/outputs/table';
+import { findCrease } from '../../solver/model/pattern';
 import {
   creaseOption, EXIT_INTERRUPTED, holdsOption, intOrUndefined, printSolverMessages, runResponsive, tableHeader, writeOutput, joinNegativeNumbers,
 } from './path-common';

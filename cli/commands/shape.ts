@@ -2,8 +2,8 @@ import type { Command } from '../command';
 import { intOption, parseCommandArgs, UsageError } from '../args';
 import { drivesFor, loadFile, printMessages } from '../load';
 import { EXIT, exitForStatus } from '../exit-codes';
-import { solveDrives } from '../../solver/solve';
-import { foldedShape } from '../../solver/shape';
+import { solveDrives } from '../../solver/search/solve';
+import { foldedShape } from '../../solver/outputs/shape';
 import { shapeToJSON, shapeToOBJ, shapeToSTL } from '../../solver/formats/shape-export';
 
 export const shape: Command = {

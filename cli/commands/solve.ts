@@ -4,7 +4,7 @@ import { drivesFor, loadFile } from '../load';
 import { exitForStatus, EXIT } from '../exit-codes';
 import { reportJson } from '../report-json';
 import { deg, textTable } from '../table-text';
-import { solveDrives } from '../../solver/solve';
+import { solveDrives } from '../../solver/search/solve';
 import { CAUTIONS } from '../../solver/formats/cautions';
 
 export const solve: Command = {

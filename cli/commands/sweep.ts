@@ -5,8 +5,8 @@ import type { OptionSpec } from '../args';
 import { loadFile, type Loaded } from '../load';
 import { EXIT } from '../exit-codes';
 import { textTable } from '../table-text';
-import { sweepSteps, type SweepOptions, type SweepResult } from '../../solver/path';
-import { angleTable } from '../../solver/table';
+import { sweepSteps, type SweepOptions, type SweepResult } from '../../solver/paths/sweep';
+import { angleTable } from '../../solver/outputs/table';
 import { CAUTIONS } from '../../solver/formats/cautions';
 import type { Drive } from '../../solver/types';
 import {

@@ -2,8 +2,8 @@ import type { Command } from '../command';
 import { parseCommandArgs, UsageError } from '../args';
 import type { OptionSpec } from '../args';
 import { EXIT } from '../exit-codes';
-import { sweepSteps } from '../../solver/path';
-import { angleTable } from '../../solver/table';
+import { sweepSteps } from '../../solver/paths/sweep';
+import { angleTable } from '../../solver/outputs/table';
 import { PATH_OPTIONS_HELP, pathOptions, printSolverMessages, runResponsive, tableHeader, writeOutput, joinNegativeNumbers } from './path-common';
 import { exitForSweep, sweepSetup } from './sweep';
 

@@ -11,7 +11,7 @@
 //   hingeplan:units         free-text units when frame_unit cannot say them
 //   hingeplan:cautions      the cautions line, written with solved fold angles (ignored on reading)
 import type { Assignment, HingeLimit, Message, PatternSource } from '../types';
-import type { DriveSpec } from '../drives';
+import type { DriveSpec } from '../model/drives';
 import type { Project } from './project';
 import { readJsonText } from './limits';
 import { CAUTIONS } from './cautions';

@@ -7,8 +7,8 @@ import Ajv2020Module from 'ajv/dist/2020.js';
 import type { ErrorObject, ValidateFunction } from 'ajv';
 import schema from '../../schema/project.schema.json' with { type: 'json' };
 import type { Assignment, Drive, HingeLimit, Message, Pattern, PatternSource, Where } from '../types';
-import { buildPattern } from '../pattern';
-import { resolveDrives, type DriveSpec } from '../drives';
+import { buildPattern } from '../model/pattern';
+import { resolveDrives, type DriveSpec } from '../model/drives';
 import { MAX_CREASES, MAX_TEXT_BYTES, MAX_VERTICES, readJsonText } from './limits';
 import { parseFoldValue } from './fold';
 

@@ -10,7 +10,7 @@ const sheets = [
 ];
 
 describe('display shape kernel', () => {
-  it('places every panel exactly as foldedShape does (solver/shape.ts), for random angles and base panels', () => {
+  it('places every panel exactly as foldedShape does (solver/outputs/shape.ts), for random angles and base panels', () => {
     for (const pattern of sheets) {
       fc.assert(
         fc.property(

@@ -5,7 +5,7 @@ import { afterEach, describe, expect, it, vi } from 'vitest';
 import { act, cleanup, fireEvent, render, screen, waitFor, within } from '@testing-library/react';
 import { readFileSync } from 'node:fs';
 import path from 'node:path';
-import { buildPattern } from '../../solver/pattern';
+import { buildPattern } from '../../solver/model/pattern';
 import { loadPatternText, solveDrives } from '../../solver';
 import type { PathResultDto, ProjectDto, SolutionDto } from '../../electron/contract';
 import { createHingeplanApi, type Transport } from '../../electron/bridge';

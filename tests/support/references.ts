@@ -1,6 +1,6 @@
 // Reference relations shared by several test files; each names its source.
-import { miura } from '../../solver/generators';
-import { buildPattern } from '../../solver/pattern';
+import { miura } from '../../solver/model/generators';
+import { buildPattern } from '../../solver/model/pattern';
 
 /**
  * Spherical four-bar input–output equation of a degree-4 vertex whose links are the sector arcs

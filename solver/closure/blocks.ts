@@ -2,7 +2,7 @@
 // the hinge rotations met walking once around the vertex) and its Jacobian block in one call, so the two can
 // never disagree.
 
-import type { Pattern } from './types';
+import type { Pattern } from '../types';
 import {
   axisAngleRotation,
   inverseLeftJacobian,
@@ -12,7 +12,7 @@ import {
   setIdentity,
   transformVec3,
   vec3,
-} from './math/rotation';
+} from '../math/rotation';
 
 export interface ClosureSystem {
   readonly blockCount: number;

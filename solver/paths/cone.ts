@@ -2,9 +2,9 @@
 // Σ ρ_i u_i = 0 at each vertex (linear); second order gives Σ_{i<j} ρ_i ρ_j sin(θ_j − θ_i) = 0 (quadratic).
 // Rays are the unit vectors of the linear null space on which every quadratic vanishes.
 
-import { nullBasisFromQR, pivotedQR } from './math/qr';
-import type { Pattern } from './types';
-import { solveSmall } from './newton';
+import { nullBasisFromQR, pivotedQR } from '../math/qr';
+import type { Pattern } from '../types';
+import { solveSmall } from '../closure/newton';
 
 export interface ConeRay {
   /** unit direction over all creases (zeros on held creases) */

@@ -1,6 +1,6 @@
 // Drives as a person or a file states them (a crease reference and an angle in degrees), checked against
 // a built pattern and turned into solver drives (crease index, radians).
-import type { Drive, Message, Pattern, Where } from './types';
+import type { Drive, Message, Pattern, Where } from '../types';
 import { findCrease } from './pattern';
 
 export interface DriveSpec {

@@ -11,8 +11,8 @@ import type {
   PatternSource,
   Severity,
   Where,
-} from './types';
-import { MAX_CREASES, MAX_VERTICES } from './formats/limits';
+} from '../types';
+import { MAX_CREASES, MAX_VERTICES } from '../formats/limits';
 
 /** Two vertices closer than this × sheet size are one vertex entered twice. */
 export const DUPLICATE_TOLERANCE = 1e-9;

@@ -5,10 +5,10 @@
 // Every block is checked on the closure residual as it is finished; the caller polishes or falls back
 // to the general solver when the mesh is not (numerically) rigid-foldable.
 
-import type { Pattern } from './types';
-import { closureScratch, type ClosureScratch, type ClosureSystem } from './closure';
-import { inverseLeftJacobian, rotationVector } from './math/rotation';
-import { wrapAngle } from './math/rotation';
+import type { Pattern } from '../types';
+import { closureScratch, type ClosureScratch, type ClosureSystem } from '../closure/blocks';
+import { inverseLeftJacobian, rotationVector } from '../math/rotation';
+import { wrapAngle } from '../math/rotation';
 
 export interface PropagationPlan {
   drive: number;

@@ -2,8 +2,8 @@
 // and the sensitivity of every free crease to every drive (the implicit-function derivative −J_f⁺·J_d).
 
 import type { ClosureProblem } from './newton';
-import { EnvelopeMatrix } from './math/envelope';
-import { applyQt, nullBasisFromQR, pivotedQR, singularValueBounds, solveR11 } from './math/qr';
+import { EnvelopeMatrix } from '../math/envelope';
+import { applyQt, nullBasisFromQR, pivotedQR, singularValueBounds, solveR11 } from '../math/qr';
 
 /** Columns up to this count use a dense pivoted QR; larger problems use the sparse normal-matrix factor. */
 export const DENSE_LIMIT = 700;

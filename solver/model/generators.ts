@@ -1,8 +1,8 @@
 // Built-in crease patterns: a single vertex, Miura-ori, the waterbomb base and a generic degree-5 vertex.
 // Each returns a Project (the pattern plus suggested drives) or messages saying what is wrong with the
 // parameters. Lengths are in whatever unit the caller means; angles are degrees.
-import type { Assignment, Message } from './types';
-import type { Project } from './formats/project';
+import type { Assignment, Message } from '../types';
+import type { Project } from '../formats/project';
 import type { DriveSpec } from './drives';
 
 export interface GeneratorResult {

@@ -2,8 +2,8 @@
 // row is a path in the first drive with the second held, started from that column. Every node is an exact
 // solve; nodes the paths cannot reach are flagged with the reason.
 
-import type { Drive, Message, Pattern } from './types';
-import { runSteps, sweepSteps, type SweepHooks } from './path';
+import type { Drive, Message, Pattern } from '../types';
+import { runSteps, sweepSteps, type SweepHooks } from '../paths/sweep';
 
 export interface GridAxis {
   drive: number;

@@ -3,13 +3,13 @@
 // the cautions line and the command that wrote it), then one row per sample. Pure text in, text out: the
 // caller supplies the date, version and command, so the core does no I/O and reads no clock.
 
-import type { Pattern } from './types';
-import type { SweepEvent, SweepResult } from './path';
+import type { Pattern } from '../types';
+import type { SweepEvent, SweepResult } from '../paths/sweep';
 import type { ScheduleResult } from './schedule';
 import type { FollowResult } from './schedule';
 import type { GridResult } from './grid';
-import { CAUTIONS } from './formats/cautions';
-import { RESIDUAL_TOLERANCE } from './newton';
+import { CAUTIONS } from '../formats/cautions';
+import { RESIDUAL_TOLERANCE } from '../closure/newton';
 
 const DEG = 180 / Math.PI;
 

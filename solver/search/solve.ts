@@ -8,12 +8,12 @@
 //  3. a deterministic multistart: uniformly random free angles in [−180°, 180°] (mulberry32, seed 1), each
 //     polished by Newton/LM; 24 starts up to 200 free creases, 8 up to 600, none above.
 
-import type { Drive, Message, Pattern, Solution, SolveReport, SolveStatus } from './types';
-import { ClosureProblem, RESIDUAL_TOLERANCE, type LsqResult } from './newton';
-import { analyzeState, NEAR_SINGULAR_CONDITION, type LocalAnalysis } from './analysis';
-import { flatCone, mulberry32 } from './cone';
-import { blockResiduals } from './closure';
-import { wrapAngle } from './math/rotation';
+import type { Drive, Message, Pattern, Solution, SolveReport, SolveStatus } from '../types';
+import { ClosureProblem, RESIDUAL_TOLERANCE, type LsqResult } from '../closure/newton';
+import { analyzeState, NEAR_SINGULAR_CONDITION, type LocalAnalysis } from '../closure/analysis';
+import { flatCone, mulberry32 } from '../paths/cone';
+import { blockResiduals } from '../closure/blocks';
+import { wrapAngle } from '../math/rotation';
 
 export interface SolveOptions {
   /** random starts; default by size (see above) */

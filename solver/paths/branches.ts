@@ -2,7 +2,7 @@
 // that pass through it, each with its first-order angle ratios, whether its signs follow the mountain/valley
 // assignment, and a short name of our own.
 //
-//  - At the flat state the tangent cone of solver/cone.ts is used (linear Σρu = 0, quadratic Σρρ sin = 0).
+//  - At the flat state the tangent cone of solver/paths/cone.ts is used (linear Σρu = 0, quadratic Σρρ sin = 0).
 //    Rays that only mix straight crease lines are not listed one by one: each line is listed alone, and
 //    the group notes that lines may also fold together. Above the dense size limit, degree-4 meshes get their
 //    mode pair by exact first-order propagation vertex by vertex (see flatModeOfMesh), plus the lines.
@@ -12,11 +12,11 @@
 //    by the Baker–Campbell–Hausdorff series: log Π exp(ε v_k [w_k]) = εΣ v_k w_k + ε²/2 Σ_{a<b} v_a v_b w_a × w_b).
 //  - Every ray is then checked on the real equations a small step away (a constrained Newton solve).
 
-import type { Drive, Message, Pattern } from './types';
-import { ClosureProblem, solveSmall } from './newton';
+import type { Drive, Message, Pattern } from '../types';
+import { ClosureProblem, solveSmall } from '../closure/newton';
 import { flatCone, mulberry32, nullSpace } from './cone';
-import { buildClosureSystem } from './closure';
-import { pivotedQR, nullBasisFromQR } from './math/qr';
+import { buildClosureSystem } from '../closure/blocks';
+import { pivotedQR, nullBasisFromQR } from '../math/qr';
 import { planPropagation } from './propagate';
 
 export type BranchKind = 'curve' | 'line' | 'direction';

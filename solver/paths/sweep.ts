@@ -3,7 +3,7 @@
 // on the way (turning point, branch point, hinge limit, folded flat, corrector failure).
 //
 // Two methods, chosen per pattern:
-//  - propagation (solver/propagate.ts) for meshes of degree-4 vertices with nothing held: every sample is
+//  - propagation (solver/paths/propagate.ts) for meshes of degree-4 vertices with nothing held: every sample is
 //    solved in closed form vertex by vertex, O(creases), and checked on the closure residual;
 //  - pseudo-arclength continuation on the sparse Jacobian otherwise (and wherever propagation stops):
 //    tangent from the null space of J (held-column split: J_{−k}·b = −J_k, t = (1, b)/|…|), a predictor
@@ -11,15 +11,15 @@
 //    corrector. Normal-matrix factors are reused along the path as preconditioners for conjugate gradients.
 // Samples are never interpolated: each is a Newton solve (or a propagation) at exactly its drive value.
 
-import type { Drive, Message, Pattern } from './types';
-import { buildClosureSystem, type ClosureSystem } from './closure';
-import { ClosureProblem, RESIDUAL_TOLERANCE } from './newton';
-import { NEAR_SINGULAR_CONDITION } from './analysis';
+import type { Drive, Message, Pattern } from '../types';
+import { buildClosureSystem, type ClosureSystem } from '../closure/blocks';
+import { ClosureProblem, RESIDUAL_TOLERANCE } from '../closure/newton';
+import { NEAR_SINGULAR_CONDITION } from '../closure/analysis';
 import { planPropagation, propagate, propagationWork, type PropagationPlan, type PropagationWork, type RootChoice } from './propagate';
-import { ConditionTracker, NormalSystem, dot } from './path-linear';
+import { ConditionTracker, NormalSystem, dot } from './linear';
 import { branchesAt, flatBranches, tangentMatchesAssignment, type Branch } from './branches';
-import { matchesAssignment, solveDrives } from './solve';
-import { wrapAngle } from './math/rotation';
+import { matchesAssignment, solveDrives } from '../search/solve';
+import { wrapAngle } from '../math/rotation';
 
 const DEG = 180 / Math.PI;
 /** A sample is kept when its largest vertex residual is at most this (radians); RESIDUAL_TOLERANCE is 1e-10. */

@@ -3,10 +3,10 @@
 // finite-difference Jacobian, while closure needs the exact sparse Jacobian and a normal-matrix factor
 // that is reused; see DEVELOPERS.md.
 
-import type { Pattern } from './types';
-import { buildClosureSystem, closureScratch, evaluateClosure, type ClosureScratch, type ClosureSystem } from './closure';
-import { EnvelopeMatrix } from './math/envelope';
-import { wrapAngle } from './math/rotation';
+import type { Pattern } from '../types';
+import { buildClosureSystem, closureScratch, evaluateClosure, type ClosureScratch, type ClosureSystem } from './blocks';
+import { EnvelopeMatrix } from '../math/envelope';
+import { wrapAngle } from '../math/rotation';
 
 /** Converged means the largest vertex residual is at most this (radians). */
 export const RESIDUAL_TOLERANCE = 1e-10;

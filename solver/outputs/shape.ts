@@ -1,8 +1,8 @@
 // The folded shape: hold the base panel, walk the panel adjacency breadth first, and give each panel its
 // parent's transform composed with the rotation about the shared crease line.
 
-import type { Pattern, Shape } from './types';
-import { axisAngleRotation, mat3 } from './math/rotation';
+import type { Pattern, Shape } from '../types';
+import { axisAngleRotation, mat3 } from '../math/rotation';
 
 /** 3×4 row-major rigid transform [R | t]. */
 function identityTransform(): Float64Array {

@@ -4,11 +4,11 @@
 // every hinge that exceeds a rate or acceleration limit. Also: following a schedule the actuator team
 // supplies (time and drive angles per row), with a clear flag on rows that have no consistent state.
 
-import type { Drive, Message, Pattern } from './types';
-import { runSteps, sweepSteps, type SweepEvent, type SweepHooks, type SweepOptions, type SweepResult, type SweepSample } from './path';
-import { solveDrives } from './solve';
-import { ClosureProblem, RESIDUAL_TOLERANCE } from './newton';
-import { wrapAngle } from './math/rotation';
+import type { Drive, Message, Pattern } from '../types';
+import { runSteps, sweepSteps, type SweepEvent, type SweepHooks, type SweepOptions, type SweepResult, type SweepSample } from '../paths/sweep';
+import { solveDrives } from '../search/solve';
+import { ClosureProblem, RESIDUAL_TOLERANCE } from '../closure/newton';
+import { wrapAngle } from '../math/rotation';
 
 const DEG = 180 / Math.PI;
 

@@ -5,8 +5,8 @@
 // without a new factorization each time. Along a path the Jacobian changes slowly, so a factor from a
 // nearby state is an excellent preconditioner: this is how factorizations are reused.
 
-import type { ClosureSystem } from './closure';
-import { EnvelopeMatrix } from './math/envelope';
+import type { ClosureSystem } from '../closure/blocks';
+import { EnvelopeMatrix } from '../math/envelope';
 
 /** Pivots below this fraction of their diagonal are taken as zero (the variable is held). */
 const PIVOT_TOLERANCE = 1e-14;
