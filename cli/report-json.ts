@@ -29,6 +29,7 @@ export function solutionJson(pattern: Pattern, s: Solution, index: number) {
     localDof: s.localDof,
     condition: finite(s.condition),
     signs: s.signs,
+    ...(s.stacked?.length ? { stacked: s.stacked.map((c) => pattern.creases[c].label) } : {}),
     sensitivity,
     vertexResiduals: Object.fromEntries(pattern.interiorVertices.map((iv, i) => [String(iv.vertex), s.vertexResiduals[i]])),
   };
@@ -46,6 +47,13 @@ export function reportJson(pattern: Pattern, drives: Drive[], report: SolveRepor
     patternDof: finite(report.patternDof),
     drives: Object.fromEntries(drives.map((d) => [pattern.creases[d.crease].label, d.value * DEG])),
     solutions: report.solutions.map((s, i) => solutionJson(pattern, s, i + 1)),
+    families: report.families.map((f) => ({
+      dof: f.dof,
+      representative: solutionJson(pattern, f.representative, 0).angles,
+      directions: f.directions.map((d) => Object.fromEntries([...d].map(([c, v]) => [pattern.creases[c].label, v]))),
+      matchesAssignment: f.matchesAssignment,
+    })),
+    search: report.search,
     ...(report.compromise ? { compromise: solutionJson(pattern, report.compromise, 0) } : {}),
     ...(report.excluded?.length ? { excluded: report.excluded.map((s, i) => solutionJson(pattern, s, i + 1)) } : {}),
     ...(report.suggestedDrives ? { suggestedDrives: labels(report.suggestedDrives) } : {}),

@@ -186,14 +186,37 @@ export const SolutionSchema = z.object({
   signs: z.string(),
   /** d(crease)/d(drive) in degrees per degree: [crease index, drive crease index, value] */
   sensitivity: z.array(z.tuple([z.number().int(), z.number().int(), finite])),
+  /** creases at ±180° with their panels stacked */
+  stacked: z.array(z.number().int()).optional(),
 });
 export type SolutionDto = z.output<typeof SolutionSchema>;
+
+export const SearchSummarySchema = z.object({
+  complete: z.boolean(),
+  method: z.string(),
+  found: z.number().int(),
+  limit: z.number().int().optional(),
+  note: z.string(),
+});
+
+export const FamilySchema = z.object({
+  dof: z.number().int(),
+  representative: SolutionSchema,
+  /** free directions: per direction, [crease index, component] for every crease that moves */
+  directions: z.array(z.array(z.tuple([z.number().int(), finite]))),
+  matchesAssignment: z.boolean(),
+});
+export type FamilyDto = z.output<typeof FamilySchema>;
 
 export const SolveResultSchema = z.object({
   status: SolveStatusSchema,
   dof: z.number().int(),
   patternDof: z.number().int(),
+  /** isolated solutions only (local DOF 0) */
   solutions: z.array(SolutionSchema),
+  /** continua through the drive values, one representative each */
+  families: z.array(FamilySchema),
+  search: SearchSummarySchema,
   compromise: SolutionSchema.optional(),
   /** labels of creases that would complete an underspecified set of drives */
   suggestedDrives: z.array(z.string()).optional(),

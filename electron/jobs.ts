@@ -185,6 +185,13 @@ export function solveReportDto(pattern: Pattern, report: SolveReport, extra: Mes
     dof: report.dof,
     patternDof: report.patternDof,
     solutions: report.solutions.map(solutionDto),
+    families: report.families.map((f) => ({
+      dof: f.dof,
+      representative: solutionDto(f.representative),
+      directions: f.directions.map((d) => [...d].map(([c, v]) => [c, v] as [number, number])),
+      matchesAssignment: f.matchesAssignment,
+    })),
+    search: { ...report.search },
     messages: [...extra, ...messages(report.messages)],
     iterations: report.iterations,
   };
@@ -207,7 +214,7 @@ export function solveJob(state: JobState, payload: unknown): SolveResultDto {
   const pattern = patternFor(state, key);
   const resolved = resolveOrFail(pattern, drives);
   if (resolved.failed) {
-    return { status: 'invalid', dof: 0, patternDof: 0, solutions: [], messages: resolved.messages, iterations: 0 };
+    return { status: 'invalid', dof: 0, patternDof: 0, solutions: [], families: [], search: { complete: false, method: 'none', found: 0, note: 'the drives were refused' }, messages: resolved.messages, iterations: 0 };
   }
   return solveReportDto(pattern, solveDrives(pattern, resolved.drives), resolved.messages);
 }

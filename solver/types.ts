@@ -140,6 +140,34 @@ export interface Solution {
   condition: number;
   /** '+', '-' or '0' per crease: a compact sign pattern for display */
   signs: string;
+  /** creases at ±180° whose two panels lie on each other (folded flat, stacked), when any */
+  stacked?: number[];
+}
+
+/** How a solve looked for its solutions, and whether the list is proven to hold them all. */
+export interface SearchSummary {
+  /** true only where the method proves that every isolated solution and every family was found */
+  complete: boolean;
+  /** the method in words, e.g. "closed form (spherical four-bar)", "vertex-by-vertex enumeration" */
+  method: string;
+  /** how many distinct states (isolated solutions, family representatives, excluded states) were found */
+  found: number;
+  /** the cap that stopped the search, when one did (then complete is false) */
+  limit?: number;
+  /** what was done and, when not complete, what could have been missed */
+  note: string;
+}
+
+/** A continuum of closed states through the drive values (local DOF > 0 with the drives held). */
+export interface Family {
+  /** local DOF with the drives held */
+  dof: number;
+  /** one closed state of the family (sensitivities are not defined there and are left empty) */
+  representative: Solution;
+  /** free directions of the family: an orthonormal null-space basis, each as crease index → component */
+  directions: Map<number, number>[];
+  /** the representative's signs agree with the mountain/valley assignment */
+  matchesAssignment: boolean;
 }
 
 export interface SolveReport {
@@ -148,7 +176,12 @@ export interface SolveReport {
   dof: number;
   /** DOF of the pattern with no drives, at a generic folded state */
   patternDof: number;
+  /** isolated states only (local DOF 0 with the drives held), each with its sensitivities */
   solutions: Solution[];
+  /** continua through the drive values: one representative per family found */
+  families: Family[];
+  /** how the solutions were looked for, and whether the list is complete */
+  search: SearchSummary;
   /** states that close the pattern but put some hinge past its limit */
   excluded?: Solution[];
   /** for inconsistent/unreachable: the least-squares compromise */

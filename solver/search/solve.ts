@@ -286,6 +286,8 @@ export function solveDrives(pattern: Pattern, drives: Drive[], options: SolveOpt
     dof,
     patternDof: patternDof(),
     solutions,
+    families: [],
+    search: { complete: false, method: 'homotopy from flat rays and multistart', found: found.length, note: 'a numerical search; states it did not reach may exist' },
     messages,
     iterations,
     ...(held.excluded?.length ? { excluded: held.excluded } : {}),

@@ -55,7 +55,7 @@ describe('contract validation', () => {
     expect(finiteOrNull(Infinity)).toBeNull();
     expect(finiteOrNull(3)).toBe(3);
     const sol = { anglesDeg: [1], maxResidual: 0, vertexResiduals: [], matchesAssignment: true, localDof: 0, condition: Infinity, signs: '+', sensitivity: [] };
-    const res = { status: 'solved', dof: 0, patternDof: 1, solutions: [sol], messages: [], iterations: 1 };
+    const res = { status: 'solved', dof: 0, patternDof: 1, solutions: [sol], families: [], search: { complete: true, method: 'closed form', found: 1, note: '' }, messages: [], iterations: 1 };
     expect(parseResponse('solve', { status: 'done', value: res }).ok).toBe(false);
     expect(parseResponse('solve', { status: 'done', value: { ...res, solutions: [{ ...sol, condition: null }] } }).ok).toBe(true);
   });

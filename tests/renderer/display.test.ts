@@ -10,7 +10,7 @@ import type { PathResultDto, ProjectDto, SolveResultDto } from '../../electron/c
 import { groupCurves, hingeRows, hingeTableCsv, sortRows, statusInWords, tintScale, TINT_STOPS, type ShownState } from '../../renderer/state/display';
 import { CreasePicker, segmentDistance } from '../../renderer/geometry';
 
-const base: SolveResultDto = { status: 'solved', dof: 0, patternDof: 1, solutions: [], messages: [], iterations: 3 };
+const base: SolveResultDto = { status: 'solved', dof: 0, patternDof: 1, solutions: [], families: [], search: { complete: true, method: 'test', found: 0, note: '' }, messages: [], iterations: 3 };
 
 describe('status in words', () => {
   it('names every status and says what to do', () => {

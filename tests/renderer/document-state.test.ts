@@ -147,7 +147,7 @@ describe('app reducer', () => {
   it('ignores the answer of a solve that a newer one replaced', () => {
     let s = reducer(opened, { type: 'solve-started', requestId: 'old', forDrives: '[]' });
     s = reducer(s, { type: 'solve-started', requestId: 'new', forDrives: '[]' });
-    const result = { status: 'solved' as const, dof: 0, patternDof: 1, solutions: [], messages: [], iterations: 1 };
+    const result = { status: 'solved' as const, dof: 0, patternDof: 1, solutions: [], families: [], search: { complete: true, method: 'test', found: 0, note: '' }, messages: [], iterations: 1 };
     expect(reducer(s, { type: 'solve-finished', requestId: 'old', result })).toBe(s);
     expect(reducer(s, { type: 'solve-finished', requestId: 'new', result }).solve.status).toBe('done');
   });
@@ -166,7 +166,7 @@ describe('app reducer', () => {
 
   it('after a re-solve keeps the solution nearest the state on screen, else one that follows the assignment', () => {
     const sol = (a: number[], m: boolean) => ({ anglesDeg: a, maxResidual: 0, vertexResiduals: [], matchesAssignment: m, localDof: 0, condition: 1, signs: '', sensitivity: [] });
-    const result = { status: 'several-solutions' as const, dof: 0, patternDof: 1, solutions: [sol([10, -10], false), sol([40, 40], true), sol([-30, 30], false)], messages: [], iterations: 1 };
+    const result = { status: 'several-solutions' as const, dof: 0, patternDof: 1, solutions: [sol([10, -10], false), sol([40, 40], true), sol([-30, 30], false)], families: [], search: { complete: true, method: 'test', found: 3, note: '' }, messages: [], iterations: 1 };
     expect(nearestSolution(result, [-29, 29])).toBe(2);
     expect(nearestSolution(result, undefined)).toBe(1);
   });

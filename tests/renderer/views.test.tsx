@@ -73,7 +73,7 @@ describe('drives panel', () => {
     render(
       <DrivePanel
         drives={[{ crease: 'c0', angleDeg: 45 }]}
-        result={{ status: 'solved', dof: 0, patternDof: 1, solutions: [solutionDto(0)], messages: [], iterations: 4 }}
+        result={{ status: 'solved', dof: 0, patternDof: 1, solutions: [solutionDto(0)], families: [], search: { complete: true, method: 'test', found: 0, note: '' }, messages: [], iterations: 4 }}
         solveStatus="done"
         shown={shown}
         onChange={onChange}
@@ -97,7 +97,7 @@ describe('drives panel', () => {
   it('offers the suggested drives of an underspecified pattern', () => {
     const add = vi.fn();
     render(
-      <DrivePanel drives={[]} result={{ status: 'underspecified', dof: 1, patternDof: 1, solutions: [], suggestedDrives: ['c0'], messages: [], iterations: 0 }} solveStatus="done" shown={{ ...shown, solution: undefined }} onChange={() => {}} onDragEnd={() => {}} onRemove={() => {}} onAddSuggested={add} />,
+      <DrivePanel drives={[]} result={{ status: 'underspecified', dof: 1, patternDof: 1, solutions: [], families: [], search: { complete: true, method: 'test', found: 0, note: '' }, suggestedDrives: ['c0'], messages: [], iterations: 0 }} solveStatus="done" shown={{ ...shown, solution: undefined }} onChange={() => {}} onDragEnd={() => {}} onRemove={() => {}} onAddSuggested={add} />,
     );
     fireEvent.click(screen.getByText('Drive c0'));
     expect(add).toHaveBeenCalledWith('c0');
