@@ -242,7 +242,7 @@ export type BranchDto = z.output<typeof BranchSchema>;
 export const BranchesResultSchema = z.object({ branches: z.array(BranchSchema), messages: z.array(MessageSchema) });
 export type BranchesResultDto = z.output<typeof BranchesResultSchema>;
 
-export const PathEventTypeSchema = z.enum(['turning-point', 'branch-point', 'hinge-limit', 'folded-flat', 'corrector-failed']);
+export const PathEventTypeSchema = z.enum(['turning-point', 'branch-point', 'hinge-limit', 'folded-flat', 'corrector-failed', 'contact']);
 
 export const PathSampleSchema = z.object({
   driveDeg: finite,

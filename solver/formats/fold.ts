@@ -10,11 +10,13 @@
 //   hingeplan:basePanel     index into faces_vertices (or the derived panel order)
 //   hingeplan:units         free-text units when frame_unit cannot say them
 //   hingeplan:cautions      the cautions line, written with solved fold angles (ignored on reading)
+//   hingeplan:loads         {arealDensity, gravity, panelMasses, springs}: loads for the drive torque (SI)
 import type { Assignment, HingeLimit, Message, PatternSource } from '../types';
 import type { DriveSpec } from '../model/drives';
 import type { Project } from './project';
 import { readJsonText } from './limits';
 import { CAUTIONS } from './cautions';
+import { loadsValue, readLoads, type FileLoads } from './loads';
 
 export const FOLD_SPEC = 1.1;
 export const FOLD_CREATOR = 'Hingeplan';
@@ -40,6 +42,7 @@ const CONSUMED = new Set([
   `${NS}basePanel`,
   `${NS}units`,
   `${NS}cautions`,
+  `${NS}loads`,
 ]);
 
 const DEG = 180 / Math.PI;
@@ -271,6 +274,13 @@ export function parseFoldValue(value: unknown, fileName?: string): { project?: P
     else warn('bad-base-panel', `${NS}basePanel is not a panel index; the default base panel is used.`, `${NS}basePanel`);
   }
 
+  let loads: FileLoads | undefined;
+  if (obj[`${NS}loads`] !== undefined) {
+    const r = readLoads(obj[`${NS}loads`], `${NS}loads`);
+    messages.push(...r.messages);
+    loads = r.loads;
+  }
+
   if (messages.some((m) => m.severity === 'error')) return { messages };
 
   const extra: Record<string, unknown> = {};
@@ -284,6 +294,7 @@ export function parseFoldValue(value: unknown, fileName?: string): { project?: P
   if (units !== undefined) project.units = units;
   if (notes !== undefined) project.notes = notes;
   if (foldAngles) project.foldAngles = foldAngles;
+  if (loads) project.loads = loads;
   return { project, messages };
 }
 
@@ -335,6 +346,7 @@ export function writeFold(project: Project, opts: FoldWriteOptions = {}): string
   if (project.drives.length > 0) entries.push([`${NS}drives`, arrayLines(project.drives.map((d) => ({ crease: d.crease, angle: d.angleDeg })))]);
   if (src.basePanel !== undefined) entries.push([`${NS}basePanel`, j(src.basePanel)]);
   if (project.units !== undefined && !unitIsFold) entries.push([`${NS}units`, j(project.units)]);
+  if (project.loads !== undefined) entries.push([`${NS}loads`, j(loadsValue(project.loads))]);
   const written = new Set(entries.map(([k]) => k));
   for (const [k, v] of Object.entries(extra)) {
     if (!written.has(k) && v !== undefined) entries.push([k, j(v)]);

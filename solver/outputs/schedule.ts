@@ -5,6 +5,7 @@
 // supplies (time and drive angles per row), with a clear flag on rows that have no consistent state.
 
 import type { Drive, Message, Pattern } from '../types';
+import type { ChecksSummary, StateChecks } from './path-physics';
 import { runSteps, sweepSteps, type SweepEvent, type SweepHooks, type SweepOptions, type SweepResult, type SweepSample } from '../paths/sweep';
 import { solveDrives } from '../search/solve';
 import { ClosureProblem, RESIDUAL_TOLERANCE } from '../closure/newton';
@@ -144,6 +145,8 @@ export interface ScheduleRow {
   overAcceleration: number[];
   /** why the row has no state */
   unreachable?: string;
+  /** contact and torque at the row's state, when the path checks them */
+  checks?: StateChecks;
 }
 
 export interface HingeSummary {
@@ -225,7 +228,7 @@ export function* scheduleSteps(pattern: Pattern, opts: ScheduleOptions, hooks: S
       if (lim.maxRate !== undefined && Math.abs(velocities[c]) > lim.maxRate) overRate.push(c);
       if (lim.maxAcceleration !== undefined && Math.abs(accelerations[c]) > lim.maxAcceleration) overAcceleration.push(c);
     }
-    return { t: st.t, drive: st.position, driveVelocity: st.velocity, driveAcceleration: st.acceleration, angles: s.angles, velocities, accelerations, maxResidual: s.maxResidual, overRate, overAcceleration };
+    return { t: st.t, drive: st.position, driveVelocity: st.velocity, driveAcceleration: st.acceleration, angles: s.angles, velocities, accelerations, maxResidual: s.maxResidual, overRate, overAcceleration, ...(s.checks ? { checks: s.checks } : {}) };
   });
   const hinges = summarize(pattern, rows);
   const unreachable = rows.filter((r) => r.unreachable).length;
@@ -380,6 +383,8 @@ export interface FollowRow {
   maxResidual?: number;
   /** why the row has no consistent state */
   unreachable?: string;
+  /** contact and torque at the row's state, when checked */
+  checks?: StateChecks;
 }
 
 export interface FollowResult {
@@ -388,6 +393,8 @@ export interface FollowResult {
   events: SweepEvent[];
   messages: Message[];
   status: 'complete' | 'partial' | 'stopped' | 'failed';
+  /** what the checks found over the rows (contact, peak torque), when checked */
+  checks?: ChecksSummary;
 }
 
 /**

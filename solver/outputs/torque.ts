@@ -8,6 +8,7 @@
 
 import type { Message, Pattern } from '../types';
 import { placePanels, planShape, type ShapePlan } from './placement';
+import type { FileLoads } from '../formats/loads';
 
 /** Standard acceleration of gravity, m/s² (the conventional value of the CGPM, 1901; common practice). */
 export const STANDARD_GRAVITY = 9.80665;
@@ -181,4 +182,38 @@ export function ratesFromSensitivity(pattern: Pattern, sensitivity: Map<number, 
   for (const [c, byDrive] of sensitivity) rates[c] = byDrive.get(drive) ?? 0;
   rates[drive] = 1;
   return rates;
+}
+
+/** Loads given on top of the file's (a command line's options): they replace the file's values. */
+export interface LoadOverrides {
+  arealDensity?: number;
+  gravity?: [number, number, number];
+  /** springs by crease index (replace the file's spring on that crease) */
+  springs?: Spring[];
+}
+
+/**
+ * The loads for a pattern from its file's loads and the overrides: springs resolved from labels, rest angles
+ * to radians. `asked` is false when nothing has a mass or a spring (no torque to compute).
+ */
+export function resolveLoads(pattern: Pattern, file: FileLoads | undefined, over: LoadOverrides = {}): { spec: LoadSpec; asked: boolean; messages: Message[] } {
+  const messages: Message[] = [];
+  const springs = new Map<number, Spring>();
+  (file?.springs ?? []).forEach((s, k) => {
+    const c = pattern.labelIndex.get(s.crease) ?? (/^\d+$/.test(s.crease) && Number(s.crease) < pattern.creases.length ? Number(s.crease) : undefined);
+    if (c === undefined) messages.push({ severity: 'error', code: 'unknown-crease', text: `loads.springs[${k}] names crease "${s.crease}", which the pattern does not have.`, where: { field: `loads.springs[${k}]` } });
+    else springs.set(c, { crease: c, stiffness: s.stiffness, rest: (s.rest ?? 0) * (Math.PI / 180) });
+  });
+  for (const s of over.springs ?? []) springs.set(s.crease, s);
+  const panelMasses = new Map<number, number>();
+  for (const m of file?.panelMasses ?? []) panelMasses.set(m.panel, m.mass);
+  const arealDensity = over.arealDensity ?? file?.arealDensity;
+  const gravity = over.gravity ?? file?.gravity;
+  const spec: LoadSpec = {
+    ...(arealDensity !== undefined ? { arealDensity } : {}),
+    ...(panelMasses.size ? { panelMasses } : {}),
+    ...(gravity ? { gravity } : {}),
+    springs: [...springs.values()],
+  };
+  return { spec, asked: arealDensity !== undefined || panelMasses.size > 0 || springs.size > 0, messages };
 }
