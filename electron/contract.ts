@@ -48,6 +48,15 @@ export type PatternSourceDto = z.output<typeof PatternSourceSchema>;
 export const DriveSpecSchema = z.object({ crease: z.string().min(1).max(10_000), angleDeg: finite });
 export type DriveSpec = z.output<typeof DriveSpecSchema>;
 
+/** Loads for the drive torque (SI units; springs by crease label, rest angle in degrees). */
+export const LoadsSchema = z.object({
+  arealDensity: finite.min(0).optional(),
+  gravity: z.tuple([finite, finite, finite]).optional(),
+  panelMasses: z.array(z.object({ panel: z.number().int().min(0), mass: finite.min(0) })).max(250_000).optional(),
+  springs: z.array(z.object({ crease: z.string().min(1).max(200), stiffness: finite.min(0), rest: finite.min(-180).max(180).optional() })).max(250_000).optional(),
+});
+export type LoadsDto = z.output<typeof LoadsSchema>;
+
 export const ProjectSchema = z.object({
   source: PatternSourceSchema,
   drives: z.array(DriveSpecSchema).max(10_000),
@@ -55,6 +64,8 @@ export const ProjectSchema = z.object({
   notes: z.string().max(1_000_000).optional(),
   /** a folded state to start from, radians per crease (from a FOLD file's fold angles) */
   foldAngles: z.array(finite).optional(),
+  /** loads for the static drive torque */
+  loads: LoadsSchema.optional(),
   /** what a FOLD file carried that the project does not use, kept to be written back */
   fold: z.object({ extra: z.record(z.string(), z.unknown()), z: finite.optional() }).optional(),
 });
@@ -188,6 +199,8 @@ export const SolutionSchema = z.object({
   sensitivity: z.array(z.tuple([z.number().int(), z.number().int(), finite])),
   /** creases at ±180° with their panels stacked */
   stacked: z.array(z.number().int()).optional(),
+  /** pairs of panels (indices) that pass through each other in this state */
+  contacts: z.array(z.tuple([z.number().int(), z.number().int()])).optional(),
 });
 export type SolutionDto = z.output<typeof SolutionSchema>;
 
@@ -252,6 +265,12 @@ export const PathSampleSchema = z.object({
   rates: z.array(maybeInfinite),
   condition: maybeInfinite,
   nearSingular: z.boolean(),
+  /** at or past the first contact of two panels */
+  contact: z.boolean().optional(),
+  /** pairs of panels (indices) in contact at this sample */
+  contacts: z.array(z.tuple([z.number().int(), z.number().int()])).optional(),
+  /** static holding torque per drive: [crease index, N·m] */
+  torque: z.array(z.tuple([z.number().int(), finite])).optional(),
 });
 export type PathSampleDto = z.output<typeof PathSampleSchema>;
 
@@ -263,6 +282,10 @@ export const PathEventSchema = z.object({
   /** at a branch point: the rays leaving it, and the state there (degrees per crease) */
   branches: z.array(BranchSchema).optional(),
   anglesDeg: z.array(finite).optional(),
+  /** contact: the two panels, a point of the contact (base panel's frame) and their distance there */
+  panels: z.tuple([z.number().int(), z.number().int()]).optional(),
+  point: z.tuple([finite, finite, finite]).optional(),
+  distance: finite.optional(),
 });
 export type PathEventDto = z.output<typeof PathEventSchema>;
 
@@ -277,6 +300,10 @@ export const PathResultSchema = z.object({
   messages: z.array(MessageSchema),
   /** the sweep stopped early (cancelled or failed); samples hold what was computed */
   complete: z.boolean(),
+  /** what the path checked for contact */
+  contact: z.object({ checked: z.boolean(), clearance: finite.min(0) }).optional(),
+  /** per drive: [crease index, peak torque N·m, drive value there in degrees] */
+  peakTorque: z.array(z.tuple([z.number().int(), finite, finite])).optional(),
 });
 export type PathResultDto = z.output<typeof PathResultSchema>;
 
@@ -317,6 +344,12 @@ export const SweepOptionsSchema = z.object({
   branchId: z.string().max(200).optional(),
   /** start from this state (the current solution) instead of the flat sheet */
   startAnglesDeg: z.array(finite).optional(),
+  /** check panel contact at every sample (default on), closer than `clearance` (file units) counting */
+  contact: z.boolean().default(true),
+  clearance: finite.min(0).max(1e9).default(0),
+  /** the document's units and loads, for the drive torque (no loads: no torque) */
+  units: z.string().max(50).optional(),
+  loads: LoadsSchema.optional(),
 });
 export type SweepOptionsDto = z.input<typeof SweepOptionsSchema>;
 

@@ -48,6 +48,9 @@ import { scheduleSteps, type HingeLimits, type ScheduleOptions } from '../solver
 import { appTableHeader, scheduleCommand, tableCommand } from './table-header';
 import type { SweepOptionsSchema } from './contract';
 import type { JobContext } from './worker-protocol';
+import { ContactChecker } from '../solver/outputs/contact';
+import { finishChecks } from '../solver/outputs/path-physics';
+import { pathChecks } from './path-checks';
 import { z } from 'zod';
 
 const DEG = 180 / Math.PI;
@@ -180,11 +183,16 @@ export function solutionDto(s: Solution): SolutionDto {
 
 export function solveReportDto(pattern: Pattern, report: SolveReport, extra: MessageDto[] = []): SolveResultDto {
   const label = (c: number) => pattern.creases[c]?.label ?? String(c);
+  let checker: ContactChecker | undefined;
   const out: SolveResultDto = {
     status: report.status,
     dof: report.dof,
     patternDof: report.patternDof,
-    solutions: report.solutions.map(solutionDto),
+    solutions: report.solutions.map((sol) => {
+      // the panels each solution has passing through each other (contact on by default, as on the command line)
+      checker ??= new ContactChecker(pattern);
+      return { ...solutionDto(sol), contacts: checker.checkAngles(sol.angles).contacts.map((c) => c.panels) };
+    }),
     families: report.families.map((f) => ({
       dof: f.dof,
       representative: solutionDto(f.representative),
@@ -279,7 +287,7 @@ export function exportJob(state: JobState, payload: unknown, ctx?: JobContext): 
       if (!stored || stored.key !== req.key) throw new JobFailure('path-unknown', 'the computed path is no longer available; compute it again');
       const file = req.file ?? { name: 'pattern.hingeplan.json' };
       const header = (command: string) => appTableHeader(pattern, req.project, file, req.version ?? 'unknown', command);
-      return req.kind === 'angle-table' ? writeAngleTable(pattern, stored, req.options, file.name, header) : writeSchedule(pattern, stored, req.options, file.name, header, ctx);
+      return req.kind === 'angle-table' ? writeAngleTable(pattern, stored, req.options, file.name, header, req.project) : writeSchedule(pattern, stored, req.options, file.name, header, req.project, ctx);
     }
   }
 }
@@ -303,12 +311,13 @@ function heldDrives(pattern: Pattern, path: StoredPath): Drive[] {
   return r.drives;
 }
 
-function writeAngleTable(pattern: Pattern, path: StoredPath, options: Options, fileName: string, header: (command: string) => TableHeader): ExportData {
+function writeAngleTable(pattern: Pattern, path: StoredPath, options: Options, fileName: string, header: (command: string) => TableHeader, project: ProjectDto): ExportData {
   const creases = chosenCreases(pattern, options.creases);
   const text = angleTable(pattern, path.raw as SweepResult, header(tableCommand(pattern, fileName, path.request, options)), heldDrives(pattern, path), {
     format: options.format,
     rates: options.rates,
     ...(creases ? { creases } : {}),
+    ...(project.units ? { units: project.units } : {}),
   });
   return { data: text, extension: options.format };
 }
@@ -317,7 +326,7 @@ function writeAngleTable(pattern: Pattern, path: StoredPath, options: Options, f
  * The schedule over the path's drive range, solved anew at its time rows (the profile's drive values, as
  * `hingeplan schedule` does), never picked or interpolated from the path's samples.
  */
-function writeSchedule(pattern: Pattern, path: StoredPath, options: Options, fileName: string, header: (command: string) => TableHeader, ctx?: JobContext): ExportData {
+function writeSchedule(pattern: Pattern, path: StoredPath, options: Options, fileName: string, header: (command: string) => TableHeader, project: ProjectDto, ctx?: JobContext): ExportData {
   const sweep = path.request;
   if (sweep.startAnglesDeg) {
     throw new JobFailure('schedule-from-state', 'this path starts from a state on a ray of a branch point; a schedule starts at the flat state or at a solution of the first drive value (as `hingeplan schedule` does): export the angle table of this path, or compute the path from the start of the range');
@@ -344,11 +353,23 @@ function writeSchedule(pattern: Pattern, path: StoredPath, options: Options, fil
     limits,
     hingeLimits: new Map(),
   };
-  const result = runSteps(scheduleSteps(pattern, scheduleOptions, { onProgress: (done, total) => ctx?.progress(done, total, 'schedule'), shouldStop: () => ctx?.shouldStop() ?? false }));
+  // the document's units and loads, as the command in the header reads them from the file
+  const { checks } = pathChecks(pattern, { ...sweep, units: project.units, loads: project.loads }, path.driveCrease, holds);
+  const result = runSteps(scheduleSteps(pattern, scheduleOptions, {
+    onProgress: (done, total) => ctx?.progress(done, total, 'schedule'),
+    shouldStop: () => ctx?.shouldStop() ?? false,
+    ...(checks ? {
+      onSample: (s) => {
+        const c = checks.observe({ drive: s.drive, angles: s.angles, rates: s.rates });
+        s.checks = { contact: c.contact, contacts: c.contacts, ...(c.torque ? { torque: c.torque } : {}) };
+      },
+    } : {}),
+  }));
+  if (checks && result.sweep) finishChecks(result.sweep, checks);
   if (result.status === 'failed' && !result.rows.length) {
     throw new JobFailure(result.messages[0]?.code ?? 'schedule-failed', result.messages.map((m) => m.text).join(' ') || 'the schedule could not be solved');
   }
-  const text = scheduleTable(pattern, result, header(scheduleCommand(fileName, sweep, options)), path.driveCrease, holds, options.format);
+  const text = scheduleTable(pattern, result, header(scheduleCommand(fileName, sweep, options)), path.driveCrease, holds, options.format, undefined, project.units);
   return { data: text, extension: options.format };
 }
 

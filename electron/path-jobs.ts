@@ -9,6 +9,8 @@ import { flatBranches, type Branch, type BranchAnalysis } from '../solver/paths/
 import { DriveSpecSchema, SweepOptionsSchema, finiteOrNull, type BranchDto, type BranchesResultDto, type PathResultDto } from './contract';
 import { JobFailure, type JobContext } from './worker-protocol';
 import { patternFor, resolveOrFail, type JobState } from './jobs';
+import { finishChecks } from '../solver/outputs/path-physics';
+import { pathChecks } from './path-checks';
 
 const DEG = 180 / Math.PI;
 const RAD = Math.PI / 180;
@@ -44,6 +46,8 @@ function eventDto(e: SweepEvent) {
     text: e.text,
     ...(e.crease !== undefined ? { crease: e.crease } : {}),
     ...(e.branches?.length ? { branches: e.branches.map(branchDto), anglesDeg: Array.from(e.angles, (a) => a * DEG) } : {}),
+    ...(e.panels ? { panels: e.panels, point: e.point!, distance: e.distance! } : {}),
+    ...(e.type === 'contact' ? { anglesDeg: Array.from(e.angles, (a) => a * DEG) } : {}),
   };
 }
 
@@ -61,10 +65,15 @@ export function pathDto(pattern: Pattern, pathId: string, result: SweepResult): 
       rates: Array.from(s.rates, finiteOrNull),
       condition: finiteOrNull(s.condition),
       nearSingular: s.nearSingular,
+      ...(s.checks?.contact ? { contact: true } : {}),
+      ...(s.checks?.contacts.length ? { contacts: s.checks.contacts } : {}),
+      ...(s.checks?.torque ? { torque: [...s.checks.torque] } : {}),
     })),
     events: result.events.map(eventDto),
     messages: result.messages.map((m) => ({ severity: m.severity, code: m.code, text: m.text, ...(m.where ? { where: m.where } : {}) })),
     complete: result.status === 'complete',
+    ...(result.checks ? { contact: result.checks.contact } : {}),
+    ...(result.checks?.peakTorque ? { peakTorque: [...result.checks.peakTorque].map(([c, p]) => [c, p.value, p.at * DEG] as [number, number, number]) } : {}),
   };
 }
 
@@ -109,7 +118,19 @@ export function sweepJob(state: JobState, payload: unknown, ctx: JobContext): Pa
     ...(o.branchId !== undefined && /^\d+$/.test(o.branchId) ? { branch: Number(o.branchId) } : {}),
     ...(o.startAnglesDeg ? { start: Float64Array.from(o.startAnglesDeg, (a) => a * RAD) } : {}),
   };
-  const result = sweep(pattern, options, { onProgress: (done, total) => ctx.progress(done, total), shouldStop: () => ctx.shouldStop() });
+  const { checks, messages } = pathChecks(pattern, o, options.drive, held.drives);
+  const result = sweep(pattern, options, {
+    onProgress: (done, total) => ctx.progress(done, total),
+    shouldStop: () => ctx.shouldStop(),
+    ...(checks ? {
+      onSample: (s) => {
+        const c = checks.observe({ drive: s.drive, angles: s.angles, rates: s.rates });
+        s.checks = { contact: c.contact, contacts: c.contacts, ...(c.torque ? { torque: c.torque } : {}) };
+      },
+    } : {}),
+  });
+  if (checks) finishChecks(result, checks);
+  result.messages.push(...messages);
   if (result.status !== 'failed' && result.samples.length) state.paths.set(pathId, { key, driveCrease: result.drive, raw: result, request: o });
   return pathDto(pattern, pathId, result);
 }

@@ -66,10 +66,17 @@ export function tableCommand(pattern: Pattern, fileName: string, sweep: Sweep, o
     ...holdWords(sweep.held),
     ...branchWords(sweep),
     ...(sweep.startAnglesDeg ? ['--start', '/dev/stdin'] : []),
+    ...contactWords(sweep),
     '--format', options.format,
     ...(options.rates ? ['--rates'] : []),
   ].map(shellWord).join(' ');
   return sweep.startAnglesDeg ? `printf '%s\\n' ${shellWord(startJson(pattern, sweep.startAnglesDeg))} | ${words}` : words;
+}
+
+/** The path's contact check as options (the loads come from the file's own "loads"). */
+function contactWords(sweep: Sweep): string[] {
+  if (sweep.contact === false) return ['--contact', 'off'];
+  return sweep.clearance ? ['--clearance', String(sweep.clearance)] : [];
 }
 
 /** `hingeplan schedule` over the path's drive range with its holds and branch, and the schedule's options. */
@@ -89,6 +96,7 @@ export function scheduleCommand(fileName: string, sweep: Sweep, options: Options
     ...(options.maxAccelDegPerS2 !== undefined ? ['--max-accel', String(options.maxAccelDegPerS2)] : []),
     ...holdWords(sweep.held),
     ...branchWords(sweep),
+    ...contactWords(sweep),
     '--format', options.format,
   ].map(shellWord).join(' ');
 }

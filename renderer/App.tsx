@@ -7,7 +7,7 @@ import type { Controller } from './controller';
 import { useStore } from './state/store';
 import { canRedo, canUndo } from './state/history';
 import { isDirty } from './state/app';
-import { hingeRows, hingeTableCsv, shownState } from './state/display';
+import { contactPanels, hingeRows, hingeTableCsv, shownState } from './state/display';
 import { renameCrease, setBasePanel, setCreaseLimit, addDrive, removeDrive, creaseIndexByLabel } from './state/document';
 import { derivePattern, limitViolations, shapeFor } from './geometry';
 import { shortcutFor } from './shortcuts';
@@ -51,6 +51,7 @@ export function App({ controller }: { controller: Controller }) {
     [project, pattern, shown.anglesDeg],
   );
   const rows = useMemo(() => (project ? hingeRows(project, shown) : []), [project, shown]);
+  const touching = useMemo(() => contactPanels(shown), [shown]);
   // the gap check walks the whole shape: not while scrubbing, where every sample is a solved state anyway
   const mismatch = useMemo(
     () => (pattern && project && shown.source !== 'path' ? shapeFor(pattern, shown.anglesDeg, project.source.basePanel).maxMismatch : undefined),
@@ -148,6 +149,7 @@ export function App({ controller }: { controller: Controller }) {
                   selectedCrease={selected}
                   hoverCrease={state.hoverCrease}
                   violatingPanels={violations.panels}
+                  contactPanels={touching}
                   onHover={(i) => dispatch({ type: 'hover-crease', index: i })}
                   onSelect={(i) => dispatch({ type: 'select-crease', index: i })}
                 />
@@ -161,6 +163,7 @@ export function App({ controller }: { controller: Controller }) {
                   caption={`Folded: ${shown.caption}`}
                   selectedCrease={selected}
                   violatingPanels={violations.panels}
+                  contactPanels={touching}
                   ghost={state.view.ghost}
                   labels={state.view.labels}
                   fitRequest={state.view.fitRequest}

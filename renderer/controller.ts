@@ -26,6 +26,9 @@ export interface PathRequest {
   branchId?: string;
   /** start from this state (degrees per crease) instead of the flat sheet */
   startAnglesDeg?: number[];
+  /** check panel contact at every sample (default on), closer than the clearance (sheet units) counting */
+  contact?: boolean;
+  clearance?: number;
 }
 
 export class Controller {
@@ -36,7 +39,7 @@ export class Controller {
   private lastDocState = '';
   private unsubscribe: (() => void)[] = [];
   /** path options last used, so "compute path" repeats them */
-  pathDefaults: Required<Omit<PathRequest, 'drive' | 'branchId' | 'startAnglesDeg'>> = { fromDeg: 0, toDeg: 180, stepDeg: 1 };
+  pathDefaults: Required<Omit<PathRequest, 'drive' | 'branchId' | 'startAnglesDeg'>> = { fromDeg: 0, toDeg: 180, stepDeg: 1, contact: true, clearance: 0 };
 
   constructor(
     readonly api: HingeplanApi,
@@ -312,7 +315,7 @@ export class Controller {
       return;
     }
     const defaults = { ...this.pathDefaults, ...Object.fromEntries(Object.entries(request).filter(([k, v]) => v !== undefined && k !== 'startAnglesDeg')) } as typeof this.pathDefaults;
-    if (!request.startAnglesDeg) this.pathDefaults = { fromDeg: defaults.fromDeg, toDeg: defaults.toDeg, stepDeg: defaults.stepDeg };
+    if (!request.startAnglesDeg) this.pathDefaults = { fromDeg: defaults.fromDeg, toDeg: defaults.toDeg, stepDeg: defaults.stepDeg, contact: defaults.contact, clearance: defaults.clearance };
     const requestId = newId('sweep');
     this.store.dispatch({ type: 'path-started', requestId, drive, branchId: request.branchId });
     const key = await this.ensurePattern(project);
@@ -328,6 +331,10 @@ export class Controller {
       held: project.drives.filter((d) => d.crease !== drive),
       ...(request.branchId && !request.startAnglesDeg ? { branchId: request.branchId } : {}),
       ...(request.startAnglesDeg ? { startAnglesDeg: request.startAnglesDeg } : {}),
+      contact: defaults.contact,
+      clearance: defaults.contact ? defaults.clearance : 0,
+      ...(project.units ? { units: project.units } : {}),
+      ...(project.loads ? { loads: project.loads } : {}),
     };
     const r = await this.api.sweep({ requestId, key, options });
     if (!r.ok) {

@@ -96,6 +96,8 @@ export interface ShownState {
   source: 'solution' | 'compromise' | 'path' | 'flat';
   caption: string;
   solution?: SolutionDto;
+  /** pairs of panels in contact in this state, when it was checked */
+  contacts?: [number, number][];
 }
 
 export function shownState(state: AppState, creaseCount: number): ShownState {
@@ -103,13 +105,13 @@ export function shownState(state: AppState, creaseCount: number): ShownState {
   const path = state.path.result;
   if (state.scrubIndex !== null && path && path.samples[state.scrubIndex]) {
     const s = path.samples[state.scrubIndex];
-    return { anglesDeg: s.anglesDeg, rates: s.rates, source: 'path', caption: `path sample ${state.scrubIndex + 1} of ${path.samples.length}, ${path.driveLabel} = ${s.driveDeg.toFixed(2)}°` };
+    return { anglesDeg: s.anglesDeg, rates: s.rates, source: 'path', caption: `path sample ${state.scrubIndex + 1} of ${path.samples.length}, ${path.driveLabel} = ${s.driveDeg.toFixed(2)}°${s.contact ? ' (past the first contact)' : ''}`, contacts: s.contacts ?? [] };
   }
   const result = state.solve.result;
   if (result && result.solutions.length && result.solutions[0].anglesDeg.length === creaseCount) {
     const i = Math.min(state.selectedSolution, result.solutions.length - 1);
     const sol = result.solutions[i];
-    return { anglesDeg: sol.anglesDeg, rates: ratesOf(sol, project, creaseCount), source: 'solution', caption: `solution ${i + 1} of ${result.solutions.length}`, solution: sol };
+    return { anglesDeg: sol.anglesDeg, rates: ratesOf(sol, project, creaseCount), source: 'solution', caption: `solution ${i + 1} of ${result.solutions.length}${sol.contacts?.length ? ', panels in contact' : ''}`, solution: sol, contacts: sol.contacts ?? [] };
   }
   if (result?.compromise && result.compromise.anglesDeg.length === creaseCount) {
     return { anglesDeg: result.compromise.anglesDeg, rates: null, source: 'compromise', caption: 'closest compromise (does not close)', solution: result.compromise };
@@ -297,4 +299,11 @@ export function sampleNearest(path: PathResultDto, driveDeg: number): number {
 export function formatAngle(deg: number, digits = 2): string {
   const v = Math.abs(deg) < 0.5 * 10 ** -digits ? 0 : deg;
   return `${v.toFixed(digits)}°`;
+}
+
+/** Every panel that is in contact with another in the shown state. */
+export function contactPanels(shown: ShownState): Set<number> {
+  const out = new Set<number>();
+  for (const [p, q] of shown.contacts ?? []) { out.add(p); out.add(q); }
+  return out;
 }

@@ -15,6 +15,8 @@ export interface FoldedViewProps {
   caption: string;
   selectedCrease: number | null;
   violatingPanels: Set<number>;
+  /** panels in contact with another in the shown state */
+  contactPanels?: Set<number>;
   ghost: boolean;
   labels: boolean;
   fitRequest: number;
@@ -78,10 +80,11 @@ export function FoldedView(props: FoldedViewProps) {
       selected: selectedCrease,
       drives: pattern.creases.filter((c) => driveLabels.has(c.label)).map((c) => c.index),
       violatingPanels,
+      ...(props.contactPanels ? { contactPanels: props.contactPanels } : {}),
       basePanel,
       labelText: (c) => `${creaseLabel(project, c)} ${formatAngle(anglesDeg[c] ?? 0, 1)}`,
     });
-  }, [ghost, labels, selectedCrease, violatingPanels, basePanel, project, pattern, anglesDeg]);
+  }, [ghost, labels, selectedCrease, violatingPanels, props.contactPanels, basePanel, project, pattern, anglesDeg]);
 
   useEffect(() => {
     if (fitRequest > 0) sceneRef.current?.fit();
@@ -105,6 +108,7 @@ export function FoldedView(props: FoldedViewProps) {
       <div className="scene-key">
         <span className="key-swatch key-base" /> base panel (held)
         <span className="key-swatch key-violating" /> past a hinge limit
+        <span className="key-swatch key-contact" /> in contact{props.contactPanels?.size ? <span data-testid="contact-count"> ({props.contactPanels.size} panels)</span> : null}
         <span className="key-swatch key-under" /> underside
         {props.maxMismatch !== undefined && props.maxMismatch > 1e-6 * 1 && (
           <span className="mismatch" title="Largest gap between two placements of one vertex">gap {props.maxMismatch.toExponential(1)}</span>

@@ -14,7 +14,7 @@ const EVENT_LOOK: Record<PathEventDto['type'], { mark: string; word: string }> =
   'hinge-limit': { mark: '■', word: 'hinge limit' },
   'folded-flat': { mark: '●', word: 'folded flat' },
   'corrector-failed': { mark: '✕', word: 'path lost' },
-  contact: { mark: '✱', word: 'panels meet' },
+  contact: { mark: '✱', word: 'contact' },
 };
 
 export { EVENT_LOOK };

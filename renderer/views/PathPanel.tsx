@@ -6,6 +6,8 @@ import type { BranchDto, BranchesResultDto, PathEventDto, PathResultDto, Project
 import type { PathState, BranchState } from '../state/app';
 import { PathCharts, EVENT_LOOK } from './PathCharts';
 import type { PathRequest } from '../controller';
+import { ContactControls, ContactNote } from './ContactControls';
+import { TorqueChart } from './TorqueChart';
 
 export interface PathPanelProps {
   project: ProjectDto;
@@ -13,7 +15,7 @@ export interface PathPanelProps {
   branches: BranchState;
   scrubIndex: number | null;
   selectedCrease: number | null;
-  defaults: { fromDeg: number; toDeg: number; stepDeg: number };
+  defaults: { fromDeg: number; toDeg: number; stepDeg: number; contact?: boolean; clearance?: number };
   onCompute(request: PathRequest): void;
   onCancel(): void;
   onScrub(index: number | null, done: boolean): void;
@@ -87,6 +89,8 @@ export function PathPanel(props: PathPanelProps) {
   const [from, setFrom] = useState(String(props.defaults.fromDeg));
   const [to, setTo] = useState(String(props.defaults.toDeg));
   const [step, setStep] = useState(String(props.defaults.stepDeg));
+  const [contact, setContact] = useState(props.defaults.contact ?? true);
+  const [clearance, setClearance] = useState(String(props.defaults.clearance ?? 0));
   const [problem, setProblem] = useState<string | null>(null);
   const [ref, width] = useWidth<HTMLDivElement>();
   useEffect(() => {
@@ -100,8 +104,10 @@ export function PathPanel(props: PathPanelProps) {
     if (![f, t].every((v) => Number.isFinite(v) && v >= -180 && v <= 180)) return setProblem('The range must lie between −180° and 180°.');
     if (!(s > 0 && s <= 90)) return setProblem('The step must be above 0° and at most 90°.');
     if (f === t) return setProblem('The range is empty: “from” equals “to”.');
+    const c = Number(clearance);
+    if (contact && !(Number.isFinite(c) && c >= 0)) return setProblem(`The clearance must be a length of 0 or more${project.units ? ` (${project.units})` : ''}.`);
     setProblem(null);
-    props.onCompute({ drive, fromDeg: f, toDeg: t, stepDeg: s, branchId });
+    props.onCompute({ drive, fromDeg: f, toDeg: t, stepDeg: s, branchId, contact, clearance: contact ? c : 0 });
   };
   const result = path.result;
   const running = path.status === 'running';
@@ -131,6 +137,7 @@ export function PathPanel(props: PathPanelProps) {
         <label>
           step <input className="small-number" value={step} onChange={(e) => setStep(e.target.value)} aria-label="path step, degrees" />°
         </label>
+        <ContactControls checked={contact} clearance={clearance} units={project.units} onChecked={setContact} onClearance={setClearance} />
         {running ? (
           <button onClick={props.onCancel} data-testid="cancel-path" className="danger">
             Cancel
@@ -154,6 +161,7 @@ export function PathPanel(props: PathPanelProps) {
         {!running && result && path.status === 'done' && <Summary result={result} />}
       </div>
       {problem && <p className="message message-error">{problem}</p>}
+      {result && !running && <ContactNote result={result} />}
       {branches.status === 'done' && branches.result && (
         <BranchMap result={branches.result} current={path.branchId} onPick={(id) => compute(id)} />
       )}
@@ -180,6 +188,7 @@ export function PathPanel(props: PathPanelProps) {
         {result ? (
           <>
             <PathCharts path={result} project={project} selectedCrease={props.selectedCrease} current={current} width={width} onScrub={(i, done) => props.onScrub(i, done)} />
+            <TorqueChart path={result} labels={project.source.labels.map((l, i) => l ?? String(i))} width={width} current={current} />
             <div className="scrub">
               <input
                 type="range"

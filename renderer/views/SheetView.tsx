@@ -17,6 +17,8 @@ export interface SheetViewProps {
   selectedCrease: number | null;
   hoverCrease: number | null;
   violatingPanels: Set<number>;
+  /** panels in contact with another in the shown state */
+  contactPanels?: Set<number>;
   onHover(index: number | null): void;
   onSelect(index: number | null): void;
 }
@@ -177,6 +179,7 @@ export function SheetView(props: SheetViewProps) {
     return pattern.creases.filter((c) => labels.has(c.label)).map((c) => c.index);
   }, [pattern, project.drives]);
   const violating = useMemo(() => panelPath(pattern, violatingPanels), [pattern, violatingPanels]);
+  const touching = useMemo(() => panelPath(pattern, props.contactPanels ?? []), [pattern, props.contactPanels]);
   const basePanel = project.source.basePanel ?? pattern.basePanel;
 
   const toSheet = useCallback((clientX: number, clientY: number): [number, number] | null => {
@@ -263,6 +266,7 @@ export function SheetView(props: SheetViewProps) {
         <g ref={groupRef} className="sheet-flip" transform="scale(1 -1)">
           <Panels pattern={pattern} basePanel={basePanel} />
           {violating && <path d={violating} className="sheet-violating" />}
+          {touching && <path d={touching} className="sheet-contact" data-testid="sheet-contact" />}
           {drives.map((i) => (
             <path key={`drive-${i}`} d={segment(pattern, i)} className="sheet-drive-halo" vectorEffect="non-scaling-stroke" />
           ))}

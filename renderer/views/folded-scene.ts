@@ -15,6 +15,8 @@ export interface SceneOptions {
   selected: number | null;
   drives: number[];
   violatingPanels: Set<number>;
+  /** panels in contact with another (drawn in the contact colour) */
+  contactPanels?: Set<number>;
   basePanel: number;
   labelText: (crease: number) => string;
 }
@@ -23,6 +25,7 @@ const COLORS = {
   top: new THREE.Color('#f7f5f0'),
   base: new THREE.Color('#efd88f'),
   violating: new THREE.Color('#e0573f'),
+  contact: new THREE.Color('#8a3fb0'),
   valley: new THREE.Color('#16688c'),
   mountain: new THREE.Color('#b24a24'),
   unassigned: new THREE.Color('#5d5a53'),
@@ -182,7 +185,7 @@ export class FoldedScene {
       const arr = colors.array as Float32Array;
       let o = 0;
       for (const t of this.triangles) {
-        const col = options.violatingPanels.has(t.panel) ? COLORS.violating : t.panel === options.basePanel ? COLORS.base : COLORS.top;
+        const col = options.contactPanels?.has(t.panel) ? COLORS.contact : options.violatingPanels.has(t.panel) ? COLORS.violating : t.panel === options.basePanel ? COLORS.base : COLORS.top;
         for (let k = 0; k < t.corners.length; k++) {
           col.toArray(arr, o);
           o += 3;
