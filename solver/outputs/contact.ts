@@ -75,6 +75,9 @@ export class ContactChecker {
   private readonly close = new Float64Array(6);
   private readonly tri2 = new Float64Array(6);
   private readonly plan: ShapePlan;
+  /** which state each panel's placed triangles belong to */
+  private readonly worldStamp: Int32Array;
+  private stamp = 0;
   private readonly vertexScratch: Float64Array;
   private readonly vertexSeen: Uint8Array;
 
@@ -115,6 +118,7 @@ export class ContactChecker {
     this.normals = new Float64Array(3 * P);
     this.offsets = new Float64Array(P);
     this.transforms = new Float64Array(12 * P);
+    this.worldStamp = new Int32Array(P).fill(-1);
     this.tree = new BoxTree(places, P);
     this.plan = planShape(pattern, options.basePanel ?? pattern.basePanel);
     this.vertexScratch = new Float64Array(3 * pattern.vertices.length);
@@ -170,7 +174,6 @@ export class ContactChecker {
    * between two placements of one vertex through different panels (the closure's imprecision in space).
    */
   private place(): number {
-    const { start, flat } = this.triangles;
     const T = this.transforms, C = this.corners, FC = this.flatCorners, CV = this.cornerVertex;
     const seen = this.vertexSeen, first = this.vertexScratch;
     seen.fill(0);
@@ -205,17 +208,27 @@ export class ContactChecker {
       const nx = T[o + 2], ny = T[o + 6], nz = T[o + 10];
       this.normals[3 * p] = nx; this.normals[3 * p + 1] = ny; this.normals[3 * p + 2] = nz;
       this.offsets[p] = nx * t03 + ny * t13 + nz * t23;
-      for (let t = start[p], e = start[p + 1]; t < e; t++) {
-        for (let k = 0; k < 3; k++) {
-          const x = flat[6 * t + 2 * k], y = flat[6 * t + 2 * k + 1];
-          const w = 9 * t + 3 * k;
-          this.world[w] = t00 * x + t01 * y + t03;
-          this.world[w + 1] = t10 * x + t11 * y + t13;
-          this.world[w + 2] = t20 * x + t21 * y + t23;
-        }
+    }
+    this.stamp++;
+    return Math.sqrt(worst);
+  }
+
+  /** Place panel p's triangles for the current state (only panels that reach the exact tests need them). */
+  private triangulated(p: number): void {
+    if (this.worldStamp[p] === this.stamp) return;
+    this.worldStamp[p] = this.stamp;
+    const { start, flat } = this.triangles;
+    const T = this.transforms, o = 12 * p;
+    const t00 = T[o], t01 = T[o + 1], t03 = T[o + 3], t10 = T[o + 4], t11 = T[o + 5], t13 = T[o + 7], t20 = T[o + 8], t21 = T[o + 9], t23 = T[o + 11];
+    for (let t = start[p], e = start[p + 1]; t < e; t++) {
+      for (let k = 0; k < 3; k++) {
+        const x = flat[6 * t + 2 * k], y = flat[6 * t + 2 * k + 1];
+        const w = 9 * t + 3 * k;
+        this.world[w] = t00 * x + t01 * y + t03;
+        this.world[w + 1] = t10 * x + t11 * y + t13;
+        this.world[w + 2] = t20 * x + t21 * y + t23;
       }
     }
-    return Math.sqrt(worst);
   }
 
   /** Signed distance of a placed point to the plane of panel p. */
@@ -252,6 +265,8 @@ export class ContactChecker {
     const N = this.normals;
     const dot = N[3 * p] * N[3 * q] + N[3 * p + 1] * N[3 * q + 1] + N[3 * p + 2] * N[3 * q + 2];
     if (Math.abs(dot) >= COS_STACK) {
+      this.triangulated(p);
+      this.triangulated(q);
       const tolStack = STACK_ANGLE * (this.diameter[p] + this.diameter[q]) + tol;
       if (this.inPlane(p, q, tolStack)) {
         if (c > 0) return this.distanceContact(p, q, vp);
@@ -262,6 +277,8 @@ export class ContactChecker {
     if (!shared || c === 0) {
       if (this.beyondPlane(p, q, c + tol, shared) || this.beyondPlane(q, p, c + tol, shared)) return undefined;
     }
+    this.triangulated(p);
+    this.triangulated(q);
     const crossing = this.crossing(p, q, shared);
     if (crossing) return crossing;
     if (c > 0) return this.distanceContact(p, q, vp);
