@@ -174,12 +174,15 @@ export class LoadModel {
 }
 
 /**
- * dρ/dq_d of every crease for drive d of a solution (rad/rad): 1 for d, 0 for the other drives and for flat
- * and rim creases, the solution's sensitivity for every free crease.
+ * dρ/dq_d of every crease for drive d of a solution (rad/rad): the solution's sensitivity to d (per crease),
+ * with 1 for d itself and 0 for the other drives and for flat and rim creases.
  */
-export function ratesFromSensitivity(pattern: Pattern, sensitivity: Map<number, Map<number, number>>, drive: number): Float64Array {
+export function ratesFromSensitivity(pattern: Pattern, sensitivity: Map<number, ArrayLike<number>>, drive: number): Float64Array {
   const rates = new Float64Array(pattern.creases.length);
-  for (const [c, byDrive] of sensitivity) rates[c] = byDrive.get(drive) ?? 0;
+  const row = sensitivity.get(drive);
+  if (row) for (let c = 0; c < rates.length; c++) rates[c] = Number.isFinite(row[c]) ? row[c] : 0;
+  for (const d of sensitivity.keys()) rates[d] = 0;
+  for (const c of pattern.creases) if (c.assignment === 'B' || c.assignment === 'F') rates[c.index] = 0;
   rates[drive] = 1;
   return rates;
 }
