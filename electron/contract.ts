@@ -199,8 +199,6 @@ export const SolutionSchema = z.object({
   sensitivity: z.array(z.tuple([z.number().int(), z.number().int(), finite])),
   /** creases at ±180° with their panels stacked */
   stacked: z.array(z.number().int()).optional(),
-  /** pairs of panels (indices) that pass through each other in this state */
-  contacts: z.array(z.tuple([z.number().int(), z.number().int()])).optional(),
 });
 export type SolutionDto = z.output<typeof SolutionSchema>;
 

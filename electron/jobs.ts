@@ -48,7 +48,6 @@ import { scheduleSteps, type HingeLimits, type ScheduleOptions } from '../solver
 import { appTableHeader, scheduleCommand, tableCommand } from './table-header';
 import type { SweepOptionsSchema } from './contract';
 import type { JobContext } from './worker-protocol';
-import { ContactChecker } from '../solver/outputs/contact';
 import { finishChecks } from '../solver/outputs/path-physics';
 import { pathChecks } from './path-checks';
 import { z } from 'zod';
@@ -184,16 +183,11 @@ export function solutionDto(s: Solution): SolutionDto {
 
 export function solveReportDto(pattern: Pattern, report: SolveReport, extra: MessageDto[] = []): SolveResultDto {
   const label = (c: number) => pattern.creases[c]?.label ?? String(c);
-  let checker: ContactChecker | undefined;
   const out: SolveResultDto = {
     status: report.status,
     dof: report.dof,
     patternDof: report.patternDof,
-    solutions: report.solutions.map((sol) => {
-      // the panels each solution has passing through each other (contact on by default, as on the command line)
-      checker ??= new ContactChecker(pattern);
-      return { ...solutionDto(sol), contacts: checker.checkAngles(sol.angles).contacts.map((c) => c.panels) };
-    }),
+    solutions: report.solutions.map(solutionDto),
     families: report.families.map((f) => ({
       dof: f.dof,
       representative: solutionDto(f.representative),

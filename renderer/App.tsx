@@ -51,7 +51,7 @@ export function App({ controller }: { controller: Controller }) {
     [project, pattern, shown.anglesDeg],
   );
   const rows = useMemo(() => (project ? hingeRows(project, shown) : []), [project, shown]);
-  const touching = useMemo(() => contactPanels(shown), [shown]);
+  const touching = useMemo(() => contactPanels(shown, pattern), [shown, pattern]);
   // the gap check walks the whole shape: not while scrubbing, where every sample is a solved state anyway
   const mismatch = useMemo(
     () => (pattern && project && shown.source !== 'path' ? shapeFor(pattern, shown.anglesDeg, project.source.basePanel).maxMismatch : undefined),

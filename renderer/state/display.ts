@@ -1,6 +1,8 @@
 // What the views show, computed from the state as plain functions: the status in words, the state on
 // screen (a solution or a path sample), the hinge table rows and its CSV, the tint scale, chart curves.
 
+import { ContactChecker } from '../../solver/outputs/contact';
+import type { Pattern } from '../../solver/types';
 import { scaleDiverging } from 'd3-scale';
 import type { PathResultDto, ProjectDto, SolutionDto, SolveResultDto } from '../../electron/contract';
 import { CAUTIONS } from '../../solver/formats/cautions';
@@ -111,7 +113,7 @@ export function shownState(state: AppState, creaseCount: number): ShownState {
   if (result && result.solutions.length && result.solutions[0].anglesDeg.length === creaseCount) {
     const i = Math.min(state.selectedSolution, result.solutions.length - 1);
     const sol = result.solutions[i];
-    return { anglesDeg: sol.anglesDeg, rates: ratesOf(sol, project, creaseCount), source: 'solution', caption: `solution ${i + 1} of ${result.solutions.length}${sol.contacts?.length ? ', panels in contact' : ''}`, solution: sol, contacts: sol.contacts ?? [] };
+    return { anglesDeg: sol.anglesDeg, rates: ratesOf(sol, project, creaseCount), source: 'solution', caption: `solution ${i + 1} of ${result.solutions.length}`, solution: sol };
   }
   if (result?.compromise && result.compromise.anglesDeg.length === creaseCount) {
     return { anglesDeg: result.compromise.anglesDeg, rates: null, source: 'compromise', caption: 'closest compromise (does not close)', solution: result.compromise };
@@ -301,9 +303,19 @@ export function formatAngle(deg: number, digits = 2): string {
   return `${v.toFixed(digits)}°`;
 }
 
-/** Every panel that is in contact with another in the shown state. */
-export function contactPanels(shown: ShownState): Set<number> {
+/** Every panel that is in contact with another in the shown state: a path sample's from the path, else checked here. */
+export function contactPanels(shown: ShownState, pattern: Pattern | undefined): Set<number> {
   const out = new Set<number>();
-  for (const [p, q] of shown.contacts ?? []) { out.add(p); out.add(q); }
+  let pairs = shown.contacts;
+  if (!pairs && pattern && shown.source === 'solution') pairs = solutionContacts(pattern, shown.anglesDeg);
+  for (const [p, q] of pairs ?? []) { out.add(p); out.add(q); }
   return out;
+}
+
+// one checker per pattern: its triangulation and pair relations are built once, each state then costs a few ms
+const checkers = new WeakMap<Pattern, ContactChecker>();
+function solutionContacts(pattern: Pattern, anglesDeg: readonly number[]): [number, number][] {
+  let c = checkers.get(pattern);
+  if (!c) { c = new ContactChecker(pattern); checkers.set(pattern, c); }
+  return c.checkAngles(Float64Array.from(anglesDeg, (a) => (a * Math.PI) / 180)).contacts.map((x) => x.panels);
 }

@@ -46,6 +46,8 @@ export const contactTests: E2ETest[] = [
       const s = await h.open({ openSample: 'hinge-coupon.hingeplan.json' });
       try {
         const { page, host, tmp } = s;
+        // the sample's own solve and path first, so the window is idle when the file is opened
+        await page.waitForSelector('[data-testid=path-summary]', { timeout: 90_000 });
         const file = path.join(tmp, 'flaps.hingeplan.json');
         const text = stripProject();
         await fs.writeFile(file, text);
@@ -81,6 +83,16 @@ export const contactTests: E2ETest[] = [
         }
         await page.locator('[data-testid=scrub]').fill(String(past));
         await screenshot(page, 'contact-torque');
+        // a solution with the flaps through each other (c1 = 150°, past the first contact) is marked too
+        const field = page.getByLabel('angle of drive c1 in degrees');
+        await field.click();
+        await field.fill('150');
+        await field.press('Enter');
+        await page.waitForSelector('[data-testid=hinge-table] .row[data-label=c1] [data-testid=angle-cell]:has-text("150.00°")', { timeout: 30_000 });
+        // the solution itself (not the path sample last scrubbed to)
+        await page.locator('[data-testid=solution-card]').first().click();
+        await page.waitForSelector('[data-testid=shape-caption]:has-text("solution")', { timeout: 30_000 });
+        await page.waitForSelector('[data-testid=contact-count]:has-text("2 panels")', { timeout: 30_000 });
         assert.deepEqual(s.pageErrors.filter((x) => !/GL Driver Message/.test(x)), [], 'the page reported errors');
       } catch (err) {
         await screenshot(s.page, 'contact-torque-FAILED').catch(() => undefined);
