@@ -1,6 +1,7 @@
 // The command line's contact with the outside world, passed in so that tests can run commands in-process.
 import { readFileSync, renameSync, writeFileSync, statSync, unlinkSync } from 'node:fs';
 import { basename, dirname, join } from 'node:path';
+import type { DrawingOptions } from '../solver/formats/drawing';
 
 export interface Io {
   stdout(text: string): void;
@@ -13,6 +14,8 @@ export interface Io {
   onInterrupt(handler: () => void): () => void;
   /** true when stderr is a terminal (progress lines are drawn only then, or when forced) */
   stderrIsTTY: boolean;
+  /** how to read DXF and SVG drawings (--layer, --stroke, --snap), when the command line gave any */
+  drawing?: DrawingOptions;
 }
 
 /** Largest input file the command line reads (the readers' own limits apply too). */

@@ -28,7 +28,7 @@ every diagnostic (with the vertex, crease or field it concerns). Exit status 0 w
         io.stdout(JSON.stringify({ valid: false, messages: [{ severity: 'error', code: 'unreadable-file', text: read.error }] }, null, 2) + '\n');
         return EXIT.usage;
       }
-      const r = loadPatternText(read.text, path);
+      const r = loadPatternText(read.text, path, io.drawing);
       const valid = !!r.pattern && !r.messages.some((m) => m.severity === 'error');
       if (!valid || !r.pattern) {
         io.stdout(JSON.stringify({ valid: false, messages: r.messages.map(messageJson) }, null, 2) + '\n');
