@@ -90,10 +90,10 @@ describe('a drafted degree-4 vertex imports cleanly', () => {
     });
   }
 
-  it('the hand-written DXF snaps the overshooting and the short crease onto the outline', () => {
+  it('the hand-written DXF trims the overshooting crease and extends the short one onto the outline', () => {
     const r = files[0][1]();
-    expect(r.cleaning!.endsSnapped).toBeGreaterThanOrEqual(2);
-    expect(r.messages.some((m) => m.code === 'ends-snapped')).toBe(true);
+    expect(r.cleaning!.endsTrimmed).toBe(2);
+    expect(r.messages.some((m) => m.code === 'ends-trimmed')).toBe(true);
     // every rim vertex lies on the square (the snapped ends were moved onto it)
     for (const c of r.pattern!.creases.filter((k) => k.assignment === 'B')) {
       for (const v of c.vertices) {

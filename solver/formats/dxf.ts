@@ -311,7 +311,10 @@ export function parseDxf(text: string, fileName?: string): Drawing {
             const c = e.codes[g];
             if (c === 10) pts.push({ x: Number(e.values[g]), y: NaN, bulge: 0, line: e.lines[g] });
             else if (c === 20 && pts.length) pts[pts.length - 1].y = Number(e.values[g]);
-            else if (c === 42 && pts.length) pts[pts.length - 1].bulge = Number(e.values[g]);
+            else if (c === 42 && pts.length) {
+              pts[pts.length - 1].bulge = Number(e.values[g]);
+              pts[pts.length - 1].line = e.lines[g];
+            }
           }
           checkZ(num(e, 38) ?? 0, e.line);
           polyline(e, pts, (Number(groupValue(e, 70) ?? 0) & 1) === 1, compose(m, ocs), layer, colour, 'LWPOLYLINE');

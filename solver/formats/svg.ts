@@ -558,7 +558,7 @@ const DASHES: Record<Assignment, number[] | undefined> = { B: undefined, V: [4, 
 const ORDER: Assignment[] = ['B', 'M', 'V', 'F', 'U'];
 /** Units an SVG length can carry; other units are written as mm when they convert, else as plain numbers. */
 const SVG_UNITS = new Set(['mm', 'cm', 'in']);
-const TO_MM: Record<string, number> = { m: 1000, um: 0.001, nm: 1e-6, km: 1e6, dm: 100 };
+const TO_MM: Record<string, number> = { m: 1000, um: 0.001, nm: 1e-6, km: 1e6, dm: 100, ft: 304.8, yd: 914.4, mil: 0.0254, pt: 25.4 / 72 };
 
 const esc = (s: string) => s.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;').replace(/"/g, '&quot;');
 
@@ -573,16 +573,15 @@ export function writeSvg(project: Project): string {
   const W = Math.max(x1 - x0, 1e-9), H = Math.max(y1 - y0, 1e-9);
   const size = Math.hypot(W, H);
   const units = project.units;
-  let sizeAttr: (v: number) => string;
+  // width and height say the unit; without one (or with a unit SVG cannot say) they are left out, so a
+  // reader keeps the numbers as they are instead of taking them for pixels
+  let sizeAttrs = '';
   let unitNote = '';
-  if (units !== undefined && SVG_UNITS.has(units)) sizeAttr = (v) => `${coordinate(v)}${units}`;
+  if (units !== undefined && SVG_UNITS.has(units)) sizeAttrs = ` width="${coordinate(W)}${units}" height="${coordinate(H)}${units}"`;
   else if (units !== undefined && TO_MM[units] !== undefined) {
-    sizeAttr = (v) => `${coordinate(v * TO_MM[units])}mm`;
+    sizeAttrs = ` width="${coordinate(W * TO_MM[units])}mm" height="${coordinate(H * TO_MM[units])}mm"`;
     unitNote = ` One user unit is 1 ${units}.`;
-  } else {
-    sizeAttr = (v) => coordinate(v);
-    unitNote = units ? ` Lengths are in ${units}, which an SVG size cannot say.` : ' The pattern has no unit.';
-  }
+  } else unitNote = units ? ` Lengths are in ${units}, which an SVG size cannot say.` : ' The pattern has no unit.';
   // y up in the pattern, y down in SVG: mirrored about the middle of the viewBox
   const X = (x: number) => coordinate(x);
   const Y = (y: number) => coordinate(y0 + y1 - y);
@@ -590,7 +589,7 @@ export function writeSvg(project: Project): string {
   const used = new Set(src.assignments);
   const lines: string[] = [];
   lines.push('<?xml version="1.0" encoding="UTF-8"?>');
-  lines.push(`<svg xmlns="http://www.w3.org/2000/svg" width="${sizeAttr(W)}" height="${sizeAttr(H)}" viewBox="${X(x0)} ${coordinate(y0)} ${coordinate(W)} ${coordinate(H)}">`);
+  lines.push(`<svg xmlns="http://www.w3.org/2000/svg"${sizeAttrs} viewBox="${X(x0)} ${coordinate(y0)} ${coordinate(W)} ${coordinate(H)}">`);
   lines.push(`  <title>${esc(src.name)}</title>`);
   const meaning = ORDER.filter((a) => used.has(a)).map((a) => `group "${LAYER_NAMES[a]}": ${LAYER_MEANING[a]}`);
   lines.push(`  <desc>Hingeplan flat crease pattern, seen from the top side (valleys fold towards the viewer).${esc(unitNote)} ${esc(meaning.join('; '))}; group "${LABEL_LAYER}": crease labels, each at the middle of its crease. ${esc(CAUTIONS)}</desc>`);

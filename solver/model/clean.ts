@@ -11,8 +11,10 @@
 //  5. every line is split at the vertices found on it; pieces drawn more than once (duplicates and
 //     collinear overlaps) are kept once, and pieces of different assignments that coincide are resolved
 //     (B over a crease, a crease over U) or refused (M over V, say);
-//  6. dangling stubs no longer than the snap are removed;
-//  7. collinear pieces of one assignment meeting at a vertex of nothing else are joined into one edge.
+//  6. collinear pieces of one assignment meeting at a vertex of nothing else are joined into one edge.
+// A line that overshoots another by less than the snap is trimmed onto it in step 3, and one that stops
+// short of it is extended, so no dangling stub shorter than the snap survives; longer dangling lines are
+// left for the pattern checks, which refuse them with their place in the file.
 import type { Assignment, Message, Where } from '../types';
 import { DUPLICATE_TOLERANCE } from './pattern';
 
@@ -46,8 +48,8 @@ export interface CleanCounts {
   duplicates: number;
   /** collinear overlapping pieces of different lines merged into one */
   overlapsMerged: number;
-  /** dangling stubs no longer than the snap removed */
-  stubsRemoved: number;
+  /** line ends trimmed or extended (along their line) onto a line they overshoot or stop short of */
+  endsTrimmed: number;
   /** vertices of two collinear pieces (and nothing else) removed, joining the pieces */
   collinearJoined: number;
   /** edges of the cleaned graph */
@@ -191,7 +193,7 @@ function project(px: number, py: number, ax: number, ay: number, bx: number, by:
 export function cleanSegments(segments: DrawnSegment[], origins: Origin[], snapOption?: number): CleanResult {
   const messages: Message[] = [];
   const counts: CleanCounts = {
-    segments: segments.length, endsSnapped: 0, zeroLength: 0, tJunctions: 0, crossings: 0, duplicates: 0, overlapsMerged: 0, stubsRemoved: 0, collinearJoined: 0, edges: 0, vertices: 0,
+    segments: segments.length, endsSnapped: 0, zeroLength: 0, tJunctions: 0, crossings: 0, duplicates: 0, overlapsMerged: 0, endsTrimmed: 0, collinearJoined: 0, edges: 0, vertices: 0,
   };
   const empty = (snap: number): CleanResult => ({ vertices: [], edges: [], assignments: [], sources: [], counts, snap, messages });
   const originOf = (s: number) => origins[segments[s].origin];
@@ -311,6 +313,7 @@ export function cleanSegments(segments: DrawnSegment[], origins: Origin[], snapO
       onLines[v].push(s);
     }
   }
+  let trimmed = 0;
   for (let v = 0; v < vx.length; v++) {
     // on exactly one line: move onto it, so the line stays straight (on several: stay where it is). The end
     // of a single line moves along that line (trimmed or extended to meet the other), keeping its direction.
@@ -333,7 +336,8 @@ export function cleanSegments(segments: DrawnSegment[], origins: Origin[], snapO
         }
       }
       if (Math.hypot(nx - vx[v], ny - vy[v]) <= noise) continue;
-      counts.endsSnapped += members[v].length;
+      counts.endsTrimmed += members[v].length;
+      trimmed = Math.max(trimmed, Math.hypot(nx - vx[v], ny - vy[v]));
       vx[v] = nx;
       vy[v] = ny;
     }
@@ -507,7 +511,6 @@ export function cleanSegments(segments: DrawnSegment[], origins: Origin[], snapO
   if (conflictErrors > LISTED) messages.push({ severity: 'error', code: 'overlap-conflict', text: `… and ${conflictErrors - LISTED} more overlapping lines with different assignments.` });
   if (conflictErrors) return empty(snap);
 
-  // 6. dangling stubs no longer than the snap
   const pieceList = pieceOrder;
   const removed = new Uint8Array(pieceList.length);
   const incident: number[][] = vx.map(() => []);
@@ -515,23 +518,8 @@ export function cleanSegments(segments: DrawnSegment[], origins: Origin[], snapO
     incident[p.u].push(k);
     incident[p.v].push(k);
   });
-  const degree = (v: number) => incident[v].reduce((acc, k) => acc + (removed[k] ? 0 : 1), 0);
-  const lengthOf = (p: Piece) => Math.hypot(vx[p.u] - vx[p.v], vy[p.u] - vy[p.v]);
-  const queue: number[] = [];
-  for (let v = 0; v < vx.length; v++) if (degree(v) === 1) queue.push(v);
-  while (queue.length) {
-    const v = queue.pop()!;
-    if (degree(v) !== 1) continue;
-    const k = incident[v].find((i) => !removed[i])!;
-    const p = pieceList[k];
-    if (lengthOf(p) > snap) continue;
-    removed[k] = 1;
-    counts.stubsRemoved++;
-    const other = p.u === v ? p.v : p.u;
-    if (degree(other) === 1) queue.push(other);
-  }
 
-  // 7. join collinear pieces of one assignment at vertices of nothing else
+  // 6. join collinear pieces of one assignment at vertices of nothing else
   for (let v = 0; v < vx.length; v++) {
     const live = incident[v].filter((k) => !removed[k]);
     if (live.length !== 2) continue;
@@ -594,7 +582,7 @@ export function cleanSegments(segments: DrawnSegment[], origins: Origin[], snapO
   info('t-junctions-split', counts.tJunctions, `Split lines at ${counts.tJunctions} place${counts.tJunctions === 1 ? '' : 's'} where another line ends on them (T-junctions).`);
   info('duplicates-dropped', counts.duplicates, `Dropped ${counts.duplicates} line${counts.duplicates === 1 ? '' : 's'} drawn twice.`);
   info('overlaps-merged', counts.overlapsMerged, `Merged ${counts.overlapsMerged} collinear overlapping piece${counts.overlapsMerged === 1 ? '' : 's'} of different lines into one.`);
-  info('stubs-removed', counts.stubsRemoved, `Removed ${counts.stubsRemoved} dangling stub${counts.stubsRemoved === 1 ? '' : 's'} no longer than the snap.`);
+  info('ends-trimmed', counts.endsTrimmed, `Trimmed or extended ${counts.endsTrimmed} line end${counts.endsTrimmed === 1 ? '' : 's'} by at most ${fmt(trimmed)} onto the line ${counts.endsTrimmed === 1 ? 'it overshoots or stops short of' : 'they overshoot or stop short of'}.`);
   info('collinear-joined', counts.collinearJoined, `Joined ${counts.collinearJoined} pair${counts.collinearJoined === 1 ? '' : 's'} of collinear pieces of one crease or outline line into one edge.`);
   return { vertices, edges, assignments, sources, counts, snap, messages };
 }
