@@ -9,7 +9,7 @@ import { UsageError } from './args';
 
 export const DRAWING_OPTIONS_HELP = `
 Drawings (.dxf, .svg) are read directly: straight lines by layer (DXF) or group (SVG g id or label); a name
-containing mountain, valley, flat, or boundary/border/outline/cut (any case) gives M, V, F or B, anything
+containing mountain, valley, flat, or boundary/border/outline/cut/rim (any case) gives M, V, F or B, anything
 else U with a warning. The ends are snapped, lines split where they cross or end on each other, duplicates,
 zero-length lines and overlaps merged, each step reported; curves are refused with their place.
   --layer <name>=<M|V|F|B|U>   read the lines of this layer or group as that assignment; repeatable

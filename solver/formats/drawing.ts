@@ -58,7 +58,7 @@ const KEYWORDS: [RegExp, Assignment][] = [
   [/mountain/i, 'M'],
   [/valley/i, 'V'],
   [/flat/i, 'F'],
-  [/boundary|border|outline|cut/i, 'B'],
+  [/boundary|border|outline|cut|\brim\b/i, 'B'],
   [/unassigned/i, 'U'],
 ];
 
