@@ -96,15 +96,16 @@ class UnionFind {
   }
 }
 
+/** Cells of a grid as one number: columns and rows counted from the drawing's corner, so they stay small. */
+const KEY_ROWS = 1 << 24;
+const cellKey = (gx: number, gy: number) => (gx + 2) * KEY_ROWS + (gy + 2);
+
 /** A uniform hash grid over points, for "every point within r of this one" queries. */
 class PointGrid {
-  private cells = new Map<string, number[]>();
-  constructor(private readonly cell: number) {}
-  private key(x: number, y: number): string {
-    return `${Math.floor(x / this.cell)},${Math.floor(y / this.cell)}`;
-  }
+  private cells = new Map<number, number[]>();
+  constructor(private readonly cell: number, private readonly x0: number, private readonly y0: number) {}
   add(i: number, x: number, y: number): void {
-    const k = this.key(x, y);
+    const k = cellKey(Math.floor((x - this.x0) / this.cell), Math.floor((y - this.y0) / this.cell));
     const list = this.cells.get(k);
     if (list) list.push(i);
     else this.cells.set(k, [i]);
@@ -112,11 +113,11 @@ class PointGrid {
   /** indices of points in the cells that a disc of radius ≤ cell around (x, y) can touch */
   near(x: number, y: number, out: number[]): number[] {
     out.length = 0;
-    const gx = Math.floor(x / this.cell);
-    const gy = Math.floor(y / this.cell);
+    const gx = Math.floor((x - this.x0) / this.cell);
+    const gy = Math.floor((y - this.y0) / this.cell);
     for (let dx = -1; dx <= 1; dx++) {
       for (let dy = -1; dy <= 1; dy++) {
-        const list = this.cells.get(`${gx + dx},${gy + dy}`);
+        const list = this.cells.get(cellKey(gx + dx, gy + dy));
         if (list) for (const i of list) out.push(i);
       }
     }
@@ -126,13 +127,14 @@ class PointGrid {
 
 /** A uniform grid over segments' bounding boxes (grown by r), for candidate pairs and point-on-segment tests. */
 class SegmentGrid {
-  private cells = new Map<string, number[]>();
-  constructor(private readonly cell: number) {}
-  add(s: number, x0: number, y0: number, x1: number, y1: number, r: number): void {
+  private cells = new Map<number, number[]>();
+  constructor(private readonly cell: number, private readonly x0: number, private readonly y0: number) {}
+  add(s: number, ax: number, ay: number, bx: number, by: number, r: number): void {
     const c = this.cell;
-    for (let gx = Math.floor((Math.min(x0, x1) - r) / c); gx <= Math.floor((Math.max(x0, x1) + r) / c); gx++) {
-      for (let gy = Math.floor((Math.min(y0, y1) - r) / c); gy <= Math.floor((Math.max(y0, y1) + r) / c); gy++) {
-        const k = `${gx},${gy}`;
+    const gx1 = Math.floor((Math.max(ax, bx) + r - this.x0) / c), gy1 = Math.floor((Math.max(ay, by) + r - this.y0) / c);
+    for (let gx = Math.floor((Math.min(ax, bx) - r - this.x0) / c); gx <= gx1; gx++) {
+      for (let gy = Math.floor((Math.min(ay, by) - r - this.y0) / c); gy <= gy1; gy++) {
+        const k = cellKey(gx, gy);
         const list = this.cells.get(k);
         if (list) list.push(s);
         else this.cells.set(k, [s]);
@@ -140,7 +142,7 @@ class SegmentGrid {
     }
   }
   at(x: number, y: number): number[] {
-    return this.cells.get(`${Math.floor(x / this.cell)},${Math.floor(y / this.cell)}`) ?? [];
+    return this.cells.get(cellKey(Math.floor((x - this.x0) / this.cell), Math.floor((y - this.y0) / this.cell))) ?? [];
   }
   lists(): IterableIterator<number[]> {
     return this.cells.values();
@@ -151,7 +153,7 @@ class SegmentGrid {
  * A segment grid whose cells are about the mean segment length, coarsened until it holds at most ~16
  * entries per segment (long diagonal lines cover many cells), so the pair tests stay near linear.
  */
-function segmentGrid(list: number[], ends: (s: number) => number[], r: number, size: number): SegmentGrid {
+function segmentGrid(list: number[], ends: (s: number) => number[], r: number, size: number, x0: number, y0: number): SegmentGrid {
   let total = 0;
   for (const s of list) {
     const [ax, ay, bx, by] = ends(s);
@@ -167,7 +169,7 @@ function segmentGrid(list: number[], ends: (s: number) => number[], r: number, s
     if (entries <= 16 * list.length + 64) break;
     cell *= 2;
   }
-  const grid = new SegmentGrid(cell);
+  const grid = new SegmentGrid(cell, x0 - 2 * r, y0 - 2 * r);
   for (const s of list) {
     const [ax, ay, bx, by] = ends(s);
     grid.add(s, ax, ay, bx, by, r);
@@ -231,7 +233,7 @@ export function cleanSegments(segments: DrawnSegment[], origins: Origin[], snapO
     py[2 * i + 1] = s.b[1];
   });
   const uf = new UnionFind(2 * n);
-  const grid = new PointGrid(cell);
+  const grid = new PointGrid(cell, x0, y0);
   const scratch: number[] = [];
   for (let p = 0; p < 2 * n; p++) {
     for (const q of grid.near(px[p], py[p], scratch)) {
@@ -291,7 +293,7 @@ export function cleanSegments(segments: DrawnSegment[], origins: Origin[], snapO
   const sv = (s: number) => vertexOf[2 * s + 1];
 
   // 3. ends on other lines (T-junctions)
-  const segGrid = segmentGrid(alive, (s) => [vx[su(s)], vy[su(s)], vx[sv(s)], vy[sv(s)]], snap, size);
+  const segGrid = segmentGrid(alive, (s) => [vx[su(s)], vy[su(s)], vx[sv(s)], vy[sv(s)]], snap, size, x0, y0);
   const splits = new Map<number, Map<number, number>>(); // segment → vertex → t
   const addSplit = (s: number, v: number, t: number) => {
     let m = splits.get(s);
@@ -351,19 +353,19 @@ export function cleanSegments(segments: DrawnSegment[], origins: Origin[], snapO
   }
 
   // 4. crossings away from every end
-  const endGrid = new PointGrid(cell);
+  const endGrid = new PointGrid(cell, x0, y0);
   for (let v = 0; v < vx.length; v++) endGrid.add(v, vx[v], vy[v]);
   const crossX: number[] = [];
   const crossY: number[] = [];
   const crossPair: [number, number][] = [];
-  const tested = new Set<string>();
+  const tested = new Set<number>();
   for (const list of segGrid.lists()) {
     for (let i = 0; i < list.length; i++) {
       for (let j = i + 1; j < list.length; j++) {
         const e = Math.min(list[i], list[j]);
         const f = Math.max(list[i], list[j]);
         if (e === f) continue;
-        const key = `${e},${f}`;
+        const key = e * n + f;
         if (tested.has(key)) continue;
         tested.add(key);
         const a = su(e), b = sv(e), c = su(f), d = sv(f);
@@ -394,7 +396,7 @@ export function cleanSegments(segments: DrawnSegment[], origins: Origin[], snapO
   if (crossX.length) {
     // crossings within the snap of each other are one vertex (several lines through one point)
     const cu = new UnionFind(crossX.length);
-    const cg = new PointGrid(cell);
+    const cg = new PointGrid(cell, x0, y0);
     for (let k = 0; k < crossX.length; k++) {
       for (const q of cg.near(crossX[k], crossY[k], scratch)) if (Math.hypot(crossX[k] - crossX[q], crossY[k] - crossY[q]) <= snap) cu.union(k, q);
       cg.add(k, crossX[k], crossY[k]);
@@ -440,10 +442,11 @@ export function cleanSegments(segments: DrawnSegment[], origins: Origin[], snapO
 
   // 5. split every line at its vertices; keep each piece once
   interface Piece { u: number; v: number; from: number[]; assignment: Assignment }
-  const pieces = new Map<string, Piece>();
+  const pieces = new Map<number, Piece>();
   const pieceOrder: Piece[] = [];
-  const pairKey = (u: number, v: number) => (u < v ? `${u},${v}` : `${v},${u}`);
-  const drawnPairs = new Map<string, number>();
+  const nvx = vx.length;
+  const pairKey = (u: number, v: number) => (u < v ? u * nvx + v : v * nvx + u);
+  const drawnPairs = new Map<number, number>();
   for (const s of alive) {
     const a = su(s), b = sv(s);
     const k = pairKey(a, b);
@@ -543,15 +546,17 @@ export function cleanSegments(segments: DrawnSegment[], origins: Origin[], snapO
     counts.collinearJoined++;
   }
 
-  // compact: edges in drawing order (first source, then along it), vertices by first use
+  // compact: creases before the outline, each in drawing order (first source, then along it), so crease 0 is
+  // the first crease drawn; vertices by first use
   const kept = pieceList.map((p, k) => ({ p, k })).filter(({ k }) => !removed[k]);
+  const rimLast = (p: Piece) => (p.assignment === 'B' ? 1 : 0);
   const along = (p: Piece) => {
     const s = p.from[0];
     const a = su(s), b = sv(s);
     const mid = [(vx[p.u] + vx[p.v]) / 2, (vy[p.u] + vy[p.v]) / 2];
     return project(mid[0], mid[1], vx[a], vy[a], vx[b], vy[b]).t;
   };
-  kept.sort((x, y) => Math.min(...x.p.from) - Math.min(...y.p.from) || along(x.p) - along(y.p));
+  kept.sort((x, y) => rimLast(x.p) - rimLast(y.p) || Math.min(...x.p.from) - Math.min(...y.p.from) || along(x.p) - along(y.p));
   const newIndex = new Int32Array(vx.length).fill(-1);
   const vertices: [number, number][] = [];
   const edges: [number, number][] = [];
