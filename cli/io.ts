@@ -2,6 +2,7 @@
 import { readFileSync, renameSync, writeFileSync, statSync, unlinkSync } from 'node:fs';
 import { basename, dirname, join } from 'node:path';
 import type { DrawingOptions } from '../solver/formats/drawing';
+import { decodeDxf } from '../solver/formats/dxf-text';
 
 export interface Io {
   stdout(text: string): void;
@@ -30,6 +31,8 @@ export function nodeIo(): Io {
         const st = statSync(path);
         if (st.isDirectory()) return { error: `${path} is a folder, not a file` };
         if (st.size > MAX_INPUT_BYTES) return { error: `${path} is ${(st.size / 1048576).toFixed(1)} MiB; the limit is ${MAX_INPUT_BYTES / 1048576} MiB` };
+        // a DXF from before AutoCAD 2007 is in a Windows code page, not UTF-8
+        if (/\.dxf$/i.test(path)) return { text: decodeDxf(readFileSync(path)).text };
         return { text: readFileSync(path, 'utf8') };
       } catch (e) {
         const code = (e as NodeJS.ErrnoException).code;

@@ -10,6 +10,7 @@ export { analyzeState, NEAR_SINGULAR_CONDITION } from './closure/analysis';
 export { loadPatternText, drawingFormat, parseProject, writeProject, type Project, type PatternFormat } from './formats/project';
 export { parseFold, writeFold } from './formats/fold';
 export { parseDxf, writeDxf } from './formats/dxf';
+export { decodeDxf } from './formats/dxf-text';
 export { parseSvg, writeSvg } from './formats/svg';
 export { drawingToProject, assignmentFromName, type DrawingOptions, type Drawing } from './formats/drawing';
 export { cleanSegments, DEFAULT_SNAP_FRACTION, type CleanCounts, type DrawnSegment } from './model/clean';

@@ -4,6 +4,7 @@
 // checked against the DXF reference's $INSUNITS codes and CSS Values and Units (common practice).
 import { describe, expect, it } from 'vitest';
 import { loadPatternText } from '../solver/formats/project';
+import { decodeDxf } from '../solver/formats/dxf-text';
 import type { Pattern } from '../solver/types';
 
 const dxf = (groups: [number, string | number][]) => groups.map(([c, v]) => `${String(c).padStart(3)}\n${v}`).join('\n') + '\n';
@@ -67,6 +68,18 @@ describe('DXF beyond plain lines', () => {
     expect(a).toEqual(['M', 'M', 'V', 'V']);
     expect(r.messages.some((m) => m.code === 'dxf-units-missing')).toBe(true);
     expect(r.project!.units).toBeUndefined();
+  });
+});
+
+describe('DXF text encodings', () => {
+  // a file before AutoCAD 2007 is in the Windows code page its header names ($DWGCODEPAGE), e.g. 1252 or 1251
+  const bytes = (latin1: string) => Uint8Array.from(latin1, (ch) => ch.charCodeAt(0));
+  it('UTF-8 when the bytes are UTF-8; else the code page of $DWGCODEPAGE; else Windows-1252', () => {
+    expect(decodeDxf(new TextEncoder().encode('  8\nTäler\n'))).toEqual({ text: '  8\nTäler\n', encoding: 'utf-8' });
+    expect(decodeDxf(bytes('  8\nT\xe4ler\n'))).toEqual({ text: '  8\nTäler\n', encoding: 'windows-1252' });
+    const cyrillic = decodeDxf(bytes('  9\n$DWGCODEPAGE\n  3\nANSI_1251\n  8\n\xc4\xee\xeb\xe8\xed\xe0\n'));
+    expect(cyrillic.encoding).toBe('windows-1251');
+    expect(cyrillic.text).toContain('Долина');
   });
 });
 
