@@ -51,6 +51,8 @@ describe('hingeplan reads drawings', () => {
     expect(j.assignments).toEqual({ B: 8, V: 1, M: 3 });
     const codes = j.messages.map((m: { code: string }) => m.code);
     for (const c of ['drawing-read', 't-junctions-split', 'duplicates-dropped', 'zero-length-dropped', 'collinear-joined', 'ends-trimmed']) expect(codes).toContain(c);
+    expect(j.cleaning).toMatchObject({ segments: 11, duplicates: 1, zeroLength: 1, endsTrimmed: 2, collinearJoined: 1, crossings: 0, edges: 12, vertices: 9 });
+    expect(j.cleaning.snap).toBeCloseTo(1e-4 * Math.hypot(100, 100), 6); // the overshoot widens the box a little
     const text = await run(['check', couponDxf]);
     expect(text.code).toBe(0);
     expect(text.out).toMatch(/info\[duplicates-dropped\]: Dropped 1 line drawn twice/);
