@@ -94,7 +94,8 @@ function checkOptions(opts: DrawingOptions): { strokes: { colour: Colour; assign
 
 /**
  * A drawing (what a DXF or SVG reader found) as a project: assignments from names and colours, the
- * geometry cleaned, labels from texts. `pointName` names a point of the drawing for messages.
+ * geometry cleaned, labels from texts, and a function that points the pattern checks' messages at the
+ * drawing. Never throws.
  */
 export function drawingToProject(drawing: Drawing, opts: DrawingOptions = {}): DrawingLoad {
   const messages: Message[] = [...drawing.messages];
