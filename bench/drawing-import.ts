@@ -9,8 +9,8 @@
 // CPU time and peak memory: /usr/bin/time -v npx tsx bench/drawing-import.ts 40
 import { miura } from '../solver/model/generators';
 import { buildPattern } from '../solver/model/pattern';
-import { writeDxf } from '../solver/formats/dxf';
-import { writeSvg } from '../solver/formats/svg';
+import { writeDxf } from '../solver/formats/dxf-write';
+import { writeSvg } from '../solver/formats/svg-write';
 import { loadPatternText } from '../solver/formats/project';
 
 /** The sheet as a drafter might draw it: no labels, the outline's top and bottom as single long lines. */

@@ -4,8 +4,8 @@ import { formatMessage, loadFile } from '../load';
 import { EXIT } from '../exit-codes';
 import { writeProject } from '../../solver/formats/project';
 import { writeFold } from '../../solver/formats/fold';
-import { writeDxf } from '../../solver/formats/dxf';
-import { writeSvg } from '../../solver/formats/svg';
+import { writeDxf } from '../../solver/formats/dxf-write';
+import { writeSvg } from '../../solver/formats/svg-write';
 
 type Kind = 'fold' | 'project' | 'dxf' | 'svg';
 const KIND_NAMES: Record<Kind, string> = { fold: 'FOLD', project: 'project', dxf: 'DXF', svg: 'SVG' };
