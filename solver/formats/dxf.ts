@@ -52,225 +52,248 @@ interface Block {
   line: number;
 }
 
-/** Read a DXF text into the lines and texts it draws. Never throws. */
-export function parseDxf(text: string, fileName?: string): Drawing {
-  const messages: Message[] = [];
-  const stem = typeof fileName === 'string' ? fileName.replace(/^.*[\\/]/, '').replace(/\.[^.]*$/, '') : '';
-  const drawing: Drawing = { name: stem || 'untitled', lines: [], texts: [], messages };
-  const error = (code: string, msg: string, line?: number) => {
-    messages.push(line === undefined ? { severity: 'error', code, text: msg } : { severity: 'error', code, text: `Line ${line}: ${msg}`, where: { line } });
-  };
-  if (typeof text !== 'string') {
-    error('not-text', 'The DXF file is not text.');
-    return drawing;
-  }
-  if (utf8Length(text, MAX_TEXT_BYTES) > MAX_TEXT_BYTES) {
-    error('file-too-large', `The DXF file is larger than ${MAX_TEXT_BYTES / (1024 * 1024)} MiB, the most this program reads.`);
-    return drawing;
-  }
-  if (text.startsWith('AutoCAD Binary DXF')) {
-    error('dxf-binary', 'This is a binary DXF file; save the drawing as DXF text (ASCII) and open that.');
-    return drawing;
-  }
+/** A DXF text as groups: parallel lists of group codes, values and the line of each code. */
+interface Groups {
+  codes: number[];
+  values: string[];
+  lines: number[];
+}
 
-  // groups: a code line and a value line each
+/** What the sections hold: the header's variables and each other section's entities. */
+interface Sections {
+  header: Map<string, { value: string; line: number }>;
+  byName: Map<string, Entity[]>;
+  eof: boolean;
+}
+
+type Fail = { error: Message };
+const fail = (code: string, msg: string, line?: number): Fail => ({
+  error: line === undefined ? { severity: 'error', code, text: msg } : { severity: 'error', code, text: `Line ${line}: ${msg}`, where: { line } },
+});
+
+/** The text as groups: a code line and a value line each. */
+function readGroups(text: string): Groups | Fail {
   const raw = text.split(/\r\n|\r|\n/);
   if (raw.length && raw[raw.length - 1] === '') raw.pop();
-  const codes: number[] = [];
-  const values: string[] = [];
-  const lines: number[] = [];
+  const g: Groups = { codes: [], values: [], lines: [] };
   for (let i = 0; i + 1 < raw.length; i += 2) {
     const c = raw[i].trim();
     if (!/^-?\d+$/.test(c)) {
-      error('dxf-syntax', `expected a group code (a whole number) but found ${JSON.stringify(raw[i].slice(0, 40))}; this is not DXF text, or the file is damaged here.`, i + 1);
-      return drawing;
+      return fail('dxf-syntax', `expected a group code (a whole number) but found ${JSON.stringify(raw[i].slice(0, 40))}; this is not DXF text, or the file is damaged here.`, i + 1);
     }
-    codes.push(Number(c));
-    values.push(raw[i + 1]);
-    lines.push(i + 1);
+    g.codes.push(Number(c));
+    g.values.push(raw[i + 1]);
+    g.lines.push(i + 1);
   }
-  if (raw.length % 2 === 1) {
-    const last = raw.length;
-    if (raw[last - 1].trim() !== '') {
-      error('dxf-syntax', 'the file ends after a group code, without its value: it is cut short.', last);
-      return drawing;
-    }
-  }
-  if (codes.length === 0) {
-    error('dxf-empty', 'The DXF file is empty.');
-    return drawing;
-  }
-  const n = codes.length;
-  const str = (k: number) => values[k].trim();
+  if (raw.length % 2 === 1 && raw[raw.length - 1].trim() !== '') return fail('dxf-syntax', 'the file ends after a group code, without its value: it is cut short.', raw.length);
+  if (g.codes.length === 0) return fail('dxf-empty', 'The DXF file is empty.');
+  return g;
+}
 
-  // split into entities: each starts at a group with code 0
-  const entitiesIn = (from: number, to: number): Entity[] => {
-    const out: Entity[] = [];
-    let k = from;
-    while (k < to) {
-      if (codes[k] !== 0) {
-        k++;
-        continue;
-      }
-      const e: Entity = { type: str(k).toUpperCase(), line: lines[k], codes: [], values: [], lines: [] };
+/** The groups from..to as entities: each starts at a group with code 0. */
+function entitiesIn(g: Groups, from: number, to: number): Entity[] {
+  const out: Entity[] = [];
+  let k = from;
+  while (k < to) {
+    if (g.codes[k] !== 0) {
       k++;
-      while (k < to && codes[k] !== 0) {
-        e.codes.push(codes[k]);
-        e.values.push(values[k]);
-        e.lines.push(lines[k]);
-        k++;
-      }
-      out.push(e);
-    }
-    return out;
-  };
-
-  // sections
-  const sections = new Map<string, Entity[]>();
-  const headerVars = new Map<string, { value: string; line: number }>();
-  let sawEof = false;
-  let k = 0;
-  while (k < n) {
-    if (codes[k] === 0 && str(k).toUpperCase() === 'EOF') {
-      sawEof = true;
-      break;
-    }
-    if (codes[k] === 0 && str(k).toUpperCase() === 'SECTION') {
-      const startLine = lines[k];
-      if (k + 1 >= n || codes[k + 1] !== 2) {
-        error('dxf-syntax', 'a SECTION without its name (group code 2).', startLine);
-        return drawing;
-      }
-      const name = str(k + 1).toUpperCase();
-      let end = k + 2;
-      while (end < n && !(codes[end] === 0 && str(end).toUpperCase() === 'ENDSEC')) end++;
-      if (end >= n) {
-        error('dxf-syntax', `the ${name} section that starts here has no ENDSEC: the file is cut short or damaged.`, startLine);
-        return drawing;
-      }
-      if (name === 'HEADER') {
-        for (let h = k + 2; h < end; h++) {
-          if (codes[h] === 9 && h + 1 < end) headerVars.set(str(h).toUpperCase(), { value: str(h + 1), line: lines[h + 1] });
-        }
-      } else sections.set(name, entitiesIn(k + 2, end));
-      k = end + 1;
       continue;
     }
+    const e: Entity = { type: g.values[k].trim().toUpperCase(), line: g.lines[k], codes: [], values: [], lines: [] };
     k++;
+    while (k < to && g.codes[k] !== 0) {
+      e.codes.push(g.codes[k]);
+      e.values.push(g.values[k]);
+      e.lines.push(g.lines[k]);
+      k++;
+    }
+    out.push(e);
   }
-  if (!sawEof) messages.push({ severity: 'warning', code: 'dxf-no-eof', text: 'The DXF file has no EOF marker at its end: it may be cut short. What it holds is read.' });
-  if (!sections.has('ENTITIES')) {
-    error('dxf-no-entities', 'The DXF file has no ENTITIES section, so it draws nothing.');
-    return drawing;
+  return out;
+}
+
+/** SECTION … ENDSEC blocks up to EOF: HEADER as variables ($NAME → value), the others as entities. */
+function readSections(g: Groups): Sections | Fail {
+  const n = g.codes.length;
+  const word = (k: number) => g.values[k].trim().toUpperCase();
+  const out: Sections = { header: new Map(), byName: new Map(), eof: false };
+  let k = 0;
+  while (k < n) {
+    if (g.codes[k] === 0 && word(k) === 'EOF') {
+      out.eof = true;
+      break;
+    }
+    if (g.codes[k] !== 0 || word(k) !== 'SECTION') {
+      k++;
+      continue;
+    }
+    if (k + 1 >= n || g.codes[k + 1] !== 2) return fail('dxf-syntax', 'a SECTION without its name (group code 2).', g.lines[k]);
+    const name = word(k + 1);
+    let end = k + 2;
+    while (end < n && !(g.codes[end] === 0 && word(end) === 'ENDSEC')) end++;
+    if (end >= n) return fail('dxf-syntax', `the ${name} section that starts here has no ENDSEC: the file is cut short or damaged.`, g.lines[k]);
+    if (name === 'HEADER') {
+      for (let h = k + 2; h < end; h++) {
+        if (g.codes[h] === 9 && h + 1 < end) out.header.set(word(h), { value: g.values[h + 1].trim(), line: g.lines[h + 1] });
+      }
+    } else out.byName.set(name, entitiesIn(g, k + 2, end));
+    k = end + 1;
   }
+  return out;
+}
 
-  // units
-  const ins = headerVars.get('$INSUNITS');
-  if (ins !== undefined) {
-    const code = Number(ins.value);
-    if (INSUNITS[code]) drawing.units = INSUNITS[code];
-    else if (code === 0) messages.push({ severity: 'info', code: 'dxf-units-unitless', text: 'The drawing says it has no units ($INSUNITS 0); lengths are kept as drawn, without a unit.', where: { line: ins.line } });
-    else messages.push({ severity: 'warning', code: 'dxf-units-unknown', text: `Line ${ins.line}: $INSUNITS ${ins.value} is not a unit this reader knows; lengths are kept as drawn, without a unit.`, where: { line: ins.line } });
-  } else messages.push({ severity: 'info', code: 'dxf-units-missing', text: 'The drawing does not say its units ($INSUNITS); lengths are kept as drawn, without a unit.' });
+/** The drawing's units from $INSUNITS, with a message when it says none or one this reader does not know. */
+function unitsOf(header: Sections['header'], messages: Message[]): string | undefined {
+  const ins = header.get('$INSUNITS');
+  if (ins === undefined) {
+    messages.push({ severity: 'info', code: 'dxf-units-missing', text: 'The drawing does not say its units ($INSUNITS); lengths are kept as drawn, without a unit.' });
+    return undefined;
+  }
+  const code = Number(ins.value);
+  if (INSUNITS[code]) return INSUNITS[code];
+  if (code === 0) messages.push({ severity: 'info', code: 'dxf-units-unitless', text: 'The drawing says it has no units ($INSUNITS 0); lengths are kept as drawn, without a unit.', where: { line: ins.line } });
+  else messages.push({ severity: 'warning', code: 'dxf-units-unknown', text: `Line ${ins.line}: $INSUNITS ${ins.value} is not a unit this reader knows; lengths are kept as drawn, without a unit.`, where: { line: ins.line } });
+  return undefined;
+}
 
-  // layers: colour and whether they are shown
+/** Layers of the TABLES section: their colour, and whether they are off or frozen. */
+function readLayers(tables: Entity[]): Map<string, Layer> {
   const layers = new Map<string, Layer>();
-  for (const e of sections.get('TABLES') ?? []) {
+  for (const e of tables) {
     if (e.type !== 'LAYER') continue;
     const name = groupValue(e, 2);
     if (name === undefined) continue;
     const layer: Layer = {};
     const flags = Number(groupValue(e, 70) ?? 0);
     const aci = Number(groupValue(e, 62) ?? 7);
-    const tc = groupValue(e, 420);
     if (flags & 1) layer.hidden = 'frozen';
     else if (aci < 0) layer.hidden = 'off';
-    layer.colour = colourOf(Math.abs(aci), tc);
+    layer.colour = colourOf(Math.abs(aci), groupValue(e, 420));
     layers.set(name.trim().toLowerCase(), layer);
   }
+  return layers;
+}
 
-  // blocks
+/** Blocks of the BLOCKS section by lower-case name: base point and entities. */
+function readBlocks(list: Entity[]): Map<string, Block> {
   const blocks = new Map<string, Block>();
-  {
-    const list = sections.get('BLOCKS') ?? [];
-    for (let b = 0; b < list.length; b++) {
-      if (list[b].type !== 'BLOCK') continue;
-      const head = list[b];
-      const name = groupValue(head, 2) ?? groupValue(head, 3) ?? '';
-      const block: Block = { name, base: [num(head, 10) ?? 0, num(head, 20) ?? 0], entities: [], line: head.line };
-      b++;
-      while (b < list.length && list[b].type !== 'ENDBLK') block.entities.push(list[b++]);
-      blocks.set(name.toLowerCase(), block);
+  for (let b = 0; b < list.length; b++) {
+    if (list[b].type !== 'BLOCK') continue;
+    const head = list[b];
+    const name = groupValue(head, 2) ?? groupValue(head, 3) ?? '';
+    const block: Block = { name, base: [num(head, 10) ?? 0, num(head, 20) ?? 0], entities: [], line: head.line };
+    b++;
+    while (b < list.length && list[b].type !== 'ENDBLK') block.entities.push(list[b++]);
+    blocks.set(name.toLowerCase(), block);
+  }
+  return blocks;
+}
+
+/** Read a DXF text into the lines and texts it draws. Never throws. */
+export function parseDxf(text: string, fileName?: string): Drawing {
+  const messages: Message[] = [];
+  const stem = typeof fileName === 'string' ? fileName.replace(/^.*[\\/]/, '').replace(/\.[^.]*$/, '') : '';
+  const drawing: Drawing = { name: stem || 'untitled', lines: [], texts: [], messages };
+  const refused = (f: Fail) => {
+    messages.push(f.error);
+    return drawing;
+  };
+  if (typeof text !== 'string') return refused(fail('not-text', 'The DXF file is not text.'));
+  if (utf8Length(text, MAX_TEXT_BYTES) > MAX_TEXT_BYTES) return refused(fail('file-too-large', `The DXF file is larger than ${MAX_TEXT_BYTES / (1024 * 1024)} MiB, the most this program reads.`));
+  if (text.startsWith('AutoCAD Binary DXF')) return refused(fail('dxf-binary', 'This is a binary DXF file; save the drawing as DXF text (ASCII) and open that.'));
+  const groups = readGroups(text);
+  if ('error' in groups) return refused(groups);
+  const sections = readSections(groups);
+  if ('error' in sections) return refused(sections);
+  if (!sections.eof) messages.push({ severity: 'warning', code: 'dxf-no-eof', text: 'The DXF file has no EOF marker at its end: it may be cut short. What it holds is read.' });
+  const entities = sections.byName.get('ENTITIES');
+  if (!entities) return refused(fail('dxf-no-entities', 'The DXF file has no ENTITIES section, so it draws nothing.'));
+  const units = unitsOf(sections.header, messages);
+  if (units !== undefined) drawing.units = units;
+  const reader = new EntityReader(drawing, readLayers(sections.byName.get('TABLES') ?? []), readBlocks(sections.byName.get('BLOCKS') ?? []));
+  reader.read(entities, IDENTITY, undefined, 0, []);
+  reader.finish();
+  return drawing;
+}
+
+interface Point {
+  x: number;
+  y: number;
+  bulge: number;
+  line: number;
+}
+
+/** Where an entity is drawn: through a map (a block insertion's), with the inserting layer and colour. */
+interface Placement {
+  m: Affine;
+  layer: string;
+  colour?: Colour;
+  ocs: Affine;
+}
+
+/** Turns entities into the drawing's lines and texts; refusals and skipped entities are collected, then reported. */
+class EntityReader {
+  private skipped = new Map<string, { count: number; line: number }>();
+  private refusals: Message[] = [];
+  private zRef: { z: number; line: number } | undefined;
+  private notFlat = false;
+  private produced = 0;
+
+  constructor(
+    private readonly drawing: Drawing,
+    private readonly layers: Map<string, Layer>,
+    private readonly blocks: Map<string, Block>,
+  ) {}
+
+  private skip(what: string, line: number): void {
+    const s = this.skipped.get(what);
+    if (s) s.count++;
+    else this.skipped.set(what, { count: 1, line });
+  }
+
+  private refuse(code: string, msg: string, where: Where): void {
+    this.refusals.push({ severity: 'error', code, text: msg, where });
+  }
+
+  private checkZ(z: number, line: number): void {
+    if (this.notFlat) return;
+    if (this.zRef === undefined) this.zRef = { z, line };
+    else if (Math.abs(z - this.zRef.z) > 1e-9 * (1 + Math.abs(this.zRef.z))) {
+      this.notFlat = true;
+      this.refuse('dxf-not-flat', `Line ${line}: this entity lies at z = ${z}, while the one at line ${this.zRef.line} lies at z = ${this.zRef.z}: the drawing is not flat, and a crease pattern is drawn in one plane.`, { line });
     }
   }
 
-  // entities → lines and texts
-  const skipped = new Map<string, { count: number; line: number }>();
-  const skip = (what: string, line: number) => {
-    const s = skipped.get(what);
-    if (s) s.count++;
-    else skipped.set(what, { count: 1, line });
-  };
-  const refusals: Message[] = [];
-  const refuse = (code: string, msg: string, where: Where) => {
-    refusals.push({ severity: 'error', code, text: msg, where });
-  };
-  let zRef: number | undefined;
-  let zRefLine = 0;
-  let notFlat = false;
-  const checkZ = (z: number, line: number) => {
-    if (notFlat) return;
-    if (zRef === undefined) {
-      zRef = z;
-      zRefLine = line;
-    } else if (Math.abs(z - zRef) > 1e-9 * (1 + Math.abs(zRef))) {
-      notFlat = true;
-      refuse('dxf-not-flat', `Line ${line}: this entity lies at z = ${z}, while the one at line ${zRefLine} lies at z = ${zRef}: the drawing is not flat, and a crease pattern is drawn in one plane.`, { line });
-    }
-  };
-  let produced = 0;
-
-  const emit = (
-    e: Entity,
-    m: Affine,
-    layer: string,
-    colour: Colour | undefined,
-    a: [number, number],
-    b: [number, number],
-    what: string,
-  ) => {
-    if (++produced > MAX_CREASES) return;
+  private emit(e: Entity, p: Placement, m: Affine, a: [number, number], b: [number, number]): void {
+    if (++this.produced > MAX_CREASES) return;
     const line: DrawnLine = {
       a: apply(m, a[0], a[1]),
       b: apply(m, b[0], b[1]),
-      names: [layer],
-      origin: { text: `${what} at line ${e.line} on layer "${layer}"`, where: { line: e.line, field: `layer ${layer}` } },
+      names: [p.layer],
+      origin: { text: `${e.type} at line ${e.line} on layer "${p.layer}"`, where: { line: e.line, field: `layer ${p.layer}` } },
     };
-    if (colour) line.colour = colour;
-    drawing.lines.push(line);
-  };
+    if (p.colour) line.colour = p.colour;
+    this.drawing.lines.push(line);
+  }
 
   /** Read a list of entities drawn through map m (a block's), with the inserting entity's layer and colour. */
-  const readEntities = (list: Entity[], m: Affine, outer: { layer: string; colour?: Colour } | undefined, depth: number, inBlocks: string[]) => {
+  read(list: Entity[], m: Affine, outer: { layer: string; colour?: Colour } | undefined, depth: number, inBlocks: string[]): void {
     for (let i = 0; i < list.length; i++) {
       const e = list[i];
       if (e.type === 'SEQEND' || e.type === 'ATTRIB' || e.type === 'VERTEX') continue;
-      const rawLayer = groupValue(e, 8) ?? '0';
-      const layer = outer && rawLayer.trim() === '0' ? outer.layer : rawLayer.trim();
-      const info = layers.get(layer.toLowerCase());
-      if (Number(groupValue(e, 67) ?? 0) === 1) {
-        skip('in paper space (layout sheets, title blocks)', e.line);
-        if (e.type === 'POLYLINE') i = skipVertices(list, i);
-        continue;
-      }
-      if (Number(groupValue(e, 60) ?? 0) === 1) {
-        skip('invisible', e.line);
-        if (e.type === 'POLYLINE') i = skipVertices(list, i);
-        continue;
-      }
-      if (info?.hidden) {
-        skip(`on layer "${layer}", which is ${info.hidden}`, e.line);
-        if (e.type === 'POLYLINE') i = skipVertices(list, i);
+      // a POLYLINE's vertices follow it as entities of their own, up to its SEQEND
+      const next = e.type === 'POLYLINE' ? skipVertices(list, i) : i;
+      const rawLayer = (groupValue(e, 8) ?? '0').trim();
+      const layer = outer && rawLayer === '0' ? outer.layer : rawLayer;
+      const info = this.layers.get(layer.toLowerCase());
+      const why =
+        Number(groupValue(e, 67) ?? 0) === 1 ? 'in paper space (layout sheets, title blocks)'
+        : Number(groupValue(e, 60) ?? 0) === 1 ? 'invisible'
+        : info?.hidden ? `on layer "${layer}", which is ${info.hidden}`
+        : undefined;
+      if (why) {
+        this.skip(why, e.line);
+        i = next;
         continue;
       }
       const aci = Number(groupValue(e, 62) ?? 256);
@@ -280,163 +303,172 @@ export function parseDxf(text: string, fileName?: string): Drawing {
       const planar = e.type === 'LWPOLYLINE' || e.type === 'INSERT' || e.type === 'TEXT' || (e.type === 'POLYLINE' && !(Number(groupValue(e, 70) ?? 0) & 8));
       const ocs = planar ? ocsMap(e) : IDENTITY;
       if (ocs === 'tilted') {
-        refuse('dxf-not-flat', `Line ${e.line}: this ${e.type} is drawn in a plane tilted against the drawing's plane (its extrusion direction is not ±z).`, { line: e.line });
-        if (e.type === 'POLYLINE') i = skipVertices(list, i);
+        this.refuse('dxf-not-flat', `Line ${e.line}: this ${e.type} is drawn in a plane tilted against the drawing's plane (its extrusion direction is not ±z).`, { line: e.line });
+        i = next;
         continue;
       }
+      const p: Placement = { m, layer, ocs, ...(colour ? { colour } : {}) };
       switch (e.type) {
-        case 'LINE': {
-          const p = [num(e, 10), num(e, 20), num(e, 11), num(e, 21)];
-          if (p.some((v) => v === undefined || !Number.isFinite(v))) {
-            refuse('dxf-bad-entity', `Line ${e.line}: this LINE lacks a finite start or end point (group codes 10, 20, 11, 21).`, { line: e.line });
-            break;
-          }
-          checkZ(num(e, 30) ?? 0, e.line);
-          checkZ(num(e, 31) ?? 0, e.line);
-          emit(e, m, layer, colour, [p[0]!, p[1]!], [p[2]!, p[3]!], 'LINE');
+        case 'LINE':
+          this.line(e, p);
           break;
-        }
-        case 'LWPOLYLINE': {
-          const pts: { x: number; y: number; bulge: number; line: number }[] = [];
-          for (let g = 0; g < e.codes.length; g++) {
-            const c = e.codes[g];
-            if (c === 10) pts.push({ x: Number(e.values[g]), y: NaN, bulge: 0, line: e.lines[g] });
-            else if (c === 20 && pts.length) pts[pts.length - 1].y = Number(e.values[g]);
-            else if (c === 42 && pts.length) {
-              pts[pts.length - 1].bulge = Number(e.values[g]);
-              pts[pts.length - 1].line = e.lines[g];
-            }
-          }
-          checkZ(num(e, 38) ?? 0, e.line);
-          polyline(e, pts, (Number(groupValue(e, 70) ?? 0) & 1) === 1, compose(m, ocs), layer, colour, 'LWPOLYLINE');
+        case 'LWPOLYLINE':
+          this.lwpolyline(e, p);
           break;
-        }
-        case 'POLYLINE': {
-          const flags = Number(groupValue(e, 70) ?? 0);
-          const pts: { x: number; y: number; bulge: number; line: number }[] = [];
-          let j = i + 1;
-          for (; j < list.length && list[j].type === 'VERTEX'; j++) {
-            const v = list[j];
-            const vflags = Number(groupValue(v, 70) ?? 0);
-            if (vflags & 16) continue; // a spline frame's control point: not on the curve
-            pts.push({ x: num(v, 10) ?? NaN, y: num(v, 20) ?? NaN, bulge: num(v, 42) ?? 0, line: v.line });
-            checkZ(flags & 8 ? num(v, 30) ?? 0 : num(e, 30) ?? 0, v.line);
-          }
-          if (j < list.length && list[j].type === 'SEQEND') i = j;
-          else i = j - 1;
-          if (flags & (16 | 64)) {
-            refuse('dxf-mesh', `Line ${e.line}: this POLYLINE is a ${flags & 64 ? 'polyface' : 'polygon'} mesh, a surface, not lines.`, { line: e.line });
-            break;
-          }
-          if (flags & (2 | 4)) {
-            refuse('dxf-curve', `Line ${e.line}: this POLYLINE is curve-fitted or spline-fitted; a crease is straight. Remove the fit (make it straight segments) and save again.`, { line: e.line });
-            break;
-          }
-          polyline(e, pts, (flags & 1) === 1, compose(m, ocs), layer, colour, 'POLYLINE');
+        case 'POLYLINE':
+          this.polylineWithVertices(e, list.slice(i + 1, next + 1), p);
+          i = next;
           break;
-        }
         case 'ARC':
         case 'CIRCLE':
         case 'ELLIPSE':
         case 'SPLINE':
         case 'HELIX':
-          refuse('dxf-curve', `Line ${e.line}: ${e.type === 'ARC' ? 'an ARC' : `a ${e.type}`} on layer "${layer}" is a curve; creases and the outline are straight. Replace it with lines (or a polyline without bulges).`, { line: e.line, field: `layer ${layer}` });
+          this.refuse('dxf-curve', `Line ${e.line}: ${e.type === 'ARC' ? 'an ARC' : `a ${e.type}`} on layer "${layer}" is a curve; creases and the outline are straight. Replace it with lines (or a polyline without bulges).`, { line: e.line, field: `layer ${layer}` });
           break;
-        case 'INSERT': {
-          const name = groupValue(e, 2) ?? '';
-          const block = blocks.get(name.toLowerCase());
-          if (!block) {
-            refuse('dxf-missing-block', `Line ${e.line}: this INSERT places the block "${name}", which the file does not define.`, { line: e.line });
-            break;
-          }
-          if (inBlocks.includes(name.toLowerCase()) || depth >= MAX_BLOCK_DEPTH) {
-            refuse('dxf-block-loop', `Line ${e.line}: the block "${name}" is inserted inside itself${depth >= MAX_BLOCK_DEPTH ? ` or nested more than ${MAX_BLOCK_DEPTH} deep` : ''}.`, { line: e.line });
-            break;
-          }
-          const sx = num(e, 41) ?? 1, sy = num(e, 42) ?? 1;
-          const rot = ((num(e, 50) ?? 0) * Math.PI) / 180;
-          const cols = Math.max(1, Math.floor(num(e, 70) ?? 1)), rows = Math.max(1, Math.floor(num(e, 71) ?? 1));
-          const dc = num(e, 44) ?? 0, dr = num(e, 45) ?? 0;
-          if (cols * rows * block.entities.length > MAX_CREASES) {
-            refuse('too-many-lines', `Line ${e.line}: this INSERT places ${cols} × ${rows} copies of the block "${name}", more than this program reads.`, { line: e.line });
-            break;
-          }
-          checkZ(num(e, 30) ?? 0, e.line);
-          const c = Math.cos(rot), s = Math.sin(rot);
-          for (let r = 0; r < rows; r++) {
-            for (let q = 0; q < cols; q++) {
-              // insertion point · rotation · array offset · scale · minus the block's base point
-              let t: Affine = [1, 0, 0, 1, num(e, 10) ?? 0, num(e, 20) ?? 0];
-              t = compose(t, [c, s, -s, c, 0, 0]);
-              t = compose(t, [1, 0, 0, 1, q * dc, r * dr]);
-              t = compose(t, [sx, 0, 0, sy, 0, 0]);
-              t = compose(t, [1, 0, 0, 1, -block.base[0], -block.base[1]]);
-              readEntities(block.entities, compose(m, compose(ocs, t)), { layer, colour }, depth + 1, [...inBlocks, name.toLowerCase()]);
-            }
-          }
+        case 'INSERT':
+          this.insert(e, p, depth, inBlocks);
           break;
-        }
         case 'TEXT':
-        case 'MTEXT': {
-          const h = Number(groupValue(e, 72) ?? 0), v = Number(groupValue(e, 73) ?? 0);
-          const aligned = e.type === 'TEXT' && (h !== 0 || v !== 0) && num(e, 11) !== undefined;
-          const x = aligned ? num(e, 11) : num(e, 10);
-          const y = aligned ? num(e, 21) : num(e, 20);
-          if (x === undefined || y === undefined || !Number.isFinite(x) || !Number.isFinite(y)) break;
-          const body = e.type === 'TEXT' ? groupValue(e, 1) ?? '' : [...e.codes.map((c, g) => (c === 3 ? e.values[g] : '')), groupValue(e, 1) ?? ''].join('');
-          const t: DrawnText = {
-            at: apply(compose(m, ocs), x, y),
-            text: e.type === 'TEXT' ? decodeText(body) : decodeText(plainMText(body)),
-            names: [layer],
-            origin: { text: `${e.type} at line ${e.line} on layer "${layer}"`, where: { line: e.line, field: `layer ${layer}` } },
-          };
-          drawing.texts.push(t);
+        case 'MTEXT':
+          this.text(e, p);
           break;
-        }
         default:
-          skip(`${e.type} entities (not lines)`, e.line);
+          this.skip(`${e.type} entities (not lines)`, e.line);
       }
     }
-  };
+  }
 
-  const polyline = (
-    e: Entity,
-    pts: { x: number; y: number; bulge: number; line: number }[],
-    closed: boolean,
-    m: Affine,
-    layer: string,
-    colour: Colour | undefined,
-    what: string,
-  ) => {
-    const bad = pts.find((p) => !Number.isFinite(p.x) || !Number.isFinite(p.y) || !Number.isFinite(p.bulge));
+  private line(e: Entity, p: Placement): void {
+    const c = [num(e, 10), num(e, 20), num(e, 11), num(e, 21)];
+    if (c.some((v) => v === undefined || !Number.isFinite(v))) {
+      this.refuse('dxf-bad-entity', `Line ${e.line}: this LINE lacks a finite start or end point (group codes 10, 20, 11, 21).`, { line: e.line });
+      return;
+    }
+    this.checkZ(num(e, 30) ?? 0, e.line);
+    this.checkZ(num(e, 31) ?? 0, e.line);
+    this.emit(e, p, p.m, [c[0]!, c[1]!], [c[2]!, c[3]!]);
+  }
+
+  private lwpolyline(e: Entity, p: Placement): void {
+    const pts: Point[] = [];
+    for (let g = 0; g < e.codes.length; g++) {
+      const c = e.codes[g];
+      if (c === 10) pts.push({ x: Number(e.values[g]), y: NaN, bulge: 0, line: e.lines[g] });
+      else if (c === 20 && pts.length) pts[pts.length - 1].y = Number(e.values[g]);
+      else if (c === 42 && pts.length) {
+        pts[pts.length - 1].bulge = Number(e.values[g]);
+        pts[pts.length - 1].line = e.lines[g];
+      }
+    }
+    this.checkZ(num(e, 38) ?? 0, e.line);
+    this.segments(e, pts, (Number(groupValue(e, 70) ?? 0) & 1) === 1, p);
+  }
+
+  private polylineWithVertices(e: Entity, following: Entity[], p: Placement): void {
+    const flags = Number(groupValue(e, 70) ?? 0);
+    const pts: Point[] = [];
+    for (const v of following) {
+      if (v.type !== 'VERTEX') continue;
+      if (Number(groupValue(v, 70) ?? 0) & 16) continue; // a spline frame's control point: not on the curve
+      pts.push({ x: num(v, 10) ?? NaN, y: num(v, 20) ?? NaN, bulge: num(v, 42) ?? 0, line: v.line });
+      this.checkZ(flags & 8 ? num(v, 30) ?? 0 : num(e, 30) ?? 0, v.line);
+    }
+    if (flags & (16 | 64)) {
+      this.refuse('dxf-mesh', `Line ${e.line}: this POLYLINE is a ${flags & 64 ? 'polyface' : 'polygon'} mesh, a surface, not lines.`, { line: e.line });
+      return;
+    }
+    if (flags & (2 | 4)) {
+      this.refuse('dxf-curve', `Line ${e.line}: this POLYLINE is curve-fitted or spline-fitted; a crease is straight. Remove the fit (make it straight segments) and save again.`, { line: e.line });
+      return;
+    }
+    this.segments(e, pts, (flags & 1) === 1, p);
+  }
+
+  /** A polyline's straight segments; a bulge (an arc) refuses the whole polyline. */
+  private segments(e: Entity, pts: Point[], closed: boolean, p: Placement): void {
+    const bad = pts.find((q) => !Number.isFinite(q.x) || !Number.isFinite(q.y) || !Number.isFinite(q.bulge));
     if (bad) {
-      refuse('dxf-bad-entity', `Line ${bad.line}: a vertex of this ${what} (from line ${e.line}) lacks a finite x, y or bulge.`, { line: bad.line });
+      this.refuse('dxf-bad-entity', `Line ${bad.line}: a vertex of this ${e.type} (from line ${e.line}) lacks a finite x, y or bulge.`, { line: bad.line });
       return;
     }
     const count = closed ? pts.length : pts.length - 1;
     for (let s = 0; s < count; s++) {
       if (pts[s].bulge !== 0) {
-        refuse('dxf-curve', `Line ${pts[s].line}: segment ${s + 1} of the ${what} at line ${e.line} on layer "${layer}" has a bulge (it is an arc); creases and the outline are straight.`, { line: pts[s].line, field: `layer ${layer}` });
+        this.refuse('dxf-curve', `Line ${pts[s].line}: segment ${s + 1} of the ${e.type} at line ${e.line} on layer "${p.layer}" has a bulge (it is an arc); creases and the outline are straight.`, { line: pts[s].line, field: `layer ${p.layer}` });
         return;
       }
     }
+    const m = compose(p.m, p.ocs);
     for (let s = 0; s < count; s++) {
-      const p = pts[s], q = pts[(s + 1) % pts.length];
-      emit(e, m, layer, colour, [p.x, p.y], [q.x, q.y], what);
+      const a = pts[s], b = pts[(s + 1) % pts.length];
+      this.emit(e, p, m, [a.x, a.y], [b.x, b.y]);
     }
-  };
+  }
 
-  readEntities(sections.get('ENTITIES')!, IDENTITY, undefined, 0, []);
-  if (produced > MAX_CREASES) {
-    messages.push({ severity: 'error', code: 'too-many-lines', text: `The drawing has more than ${MAX_CREASES} straight pieces; at most ${MAX_CREASES} are read.` });
+  private insert(e: Entity, p: Placement, depth: number, inBlocks: string[]): void {
+    const name = groupValue(e, 2) ?? '';
+    const block = this.blocks.get(name.toLowerCase());
+    if (!block) {
+      this.refuse('dxf-missing-block', `Line ${e.line}: this INSERT places the block "${name}", which the file does not define.`, { line: e.line });
+      return;
+    }
+    if (inBlocks.includes(name.toLowerCase()) || depth >= MAX_BLOCK_DEPTH) {
+      this.refuse('dxf-block-loop', `Line ${e.line}: the block "${name}" is inserted inside itself${depth >= MAX_BLOCK_DEPTH ? ` or nested more than ${MAX_BLOCK_DEPTH} deep` : ''}.`, { line: e.line });
+      return;
+    }
+    const sx = num(e, 41) ?? 1, sy = num(e, 42) ?? 1;
+    const rot = ((num(e, 50) ?? 0) * Math.PI) / 180;
+    const cols = Math.max(1, Math.floor(num(e, 70) ?? 1)), rows = Math.max(1, Math.floor(num(e, 71) ?? 1));
+    const dc = num(e, 44) ?? 0, dr = num(e, 45) ?? 0;
+    if (cols * rows * block.entities.length > MAX_CREASES) {
+      this.refuse('too-many-lines', `Line ${e.line}: this INSERT places ${cols} × ${rows} copies of the block "${name}", more than this program reads.`, { line: e.line });
+      return;
+    }
+    this.checkZ(num(e, 30) ?? 0, e.line);
+    const c = Math.cos(rot), s = Math.sin(rot);
+    for (let r = 0; r < rows; r++) {
+      for (let q = 0; q < cols; q++) {
+        // insertion point · rotation · array offset · scale · minus the block's base point
+        let t: Affine = [1, 0, 0, 1, num(e, 10) ?? 0, num(e, 20) ?? 0];
+        t = compose(t, [c, s, -s, c, 0, 0]);
+        t = compose(t, [1, 0, 0, 1, q * dc, r * dr]);
+        t = compose(t, [sx, 0, 0, sy, 0, 0]);
+        t = compose(t, [1, 0, 0, 1, -block.base[0], -block.base[1]]);
+        this.read(block.entities, compose(p.m, compose(p.ocs, t)), { layer: p.layer, colour: p.colour }, depth + 1, [...inBlocks, name.toLowerCase()]);
+      }
+    }
   }
-  const listed = refusals.slice(0, MAX_LISTED);
-  messages.push(...listed);
-  if (refusals.length > MAX_LISTED) messages.push({ severity: 'error', code: refusals[MAX_LISTED].code, text: `… and ${refusals.length - MAX_LISTED} more entities that cannot be read.` });
-  for (const [what, s] of skipped) {
-    messages.push({ severity: what.startsWith('on layer') ? 'warning' : 'info', code: 'dxf-not-read', text: `${s.count} entit${s.count === 1 ? 'y' : 'ies'} ${what} ${s.count === 1 ? 'was' : 'were'} not read (the first at line ${s.line}).`, where: { line: s.line } });
+
+  private text(e: Entity, p: Placement): void {
+    const h = Number(groupValue(e, 72) ?? 0), v = Number(groupValue(e, 73) ?? 0);
+    // a TEXT aligned other than left/baseline is placed by its second point (11, 21)
+    const aligned = e.type === 'TEXT' && (h !== 0 || v !== 0) && num(e, 11) !== undefined;
+    const x = aligned ? num(e, 11) : num(e, 10);
+    const y = aligned ? num(e, 21) : num(e, 20);
+    if (x === undefined || y === undefined || !Number.isFinite(x) || !Number.isFinite(y)) return;
+    const body = e.type === 'TEXT' ? groupValue(e, 1) ?? '' : [...e.codes.map((c, g) => (c === 3 ? e.values[g] : '')), groupValue(e, 1) ?? ''].join('');
+    const t: DrawnText = {
+      at: apply(compose(p.m, p.ocs), x, y),
+      text: e.type === 'TEXT' ? decodeText(body) : decodeText(plainMText(body)),
+      names: [p.layer],
+      origin: { text: `${e.type} at line ${e.line} on layer "${p.layer}"`, where: { line: e.line, field: `layer ${p.layer}` } },
+    };
+    this.drawing.texts.push(t);
   }
-  return drawing;
+
+  /** The refusals and what was not read, as the drawing's messages. */
+  finish(): void {
+    const messages = this.drawing.messages;
+    if (this.produced > MAX_CREASES) {
+      messages.push({ severity: 'error', code: 'too-many-lines', text: `The drawing has more than ${MAX_CREASES} straight pieces; at most ${MAX_CREASES} are read.` });
+    }
+    messages.push(...this.refusals.slice(0, MAX_LISTED));
+    if (this.refusals.length > MAX_LISTED) messages.push({ severity: 'error', code: this.refusals[MAX_LISTED].code, text: `… and ${this.refusals.length - MAX_LISTED} more entities that cannot be read.` });
+    for (const [what, s] of this.skipped) {
+      messages.push({ severity: what.startsWith('on layer') ? 'warning' : 'info', code: 'dxf-not-read', text: `${s.count} entit${s.count === 1 ? 'y' : 'ies'} ${what} ${s.count === 1 ? 'was' : 'were'} not read (the first at line ${s.line}).`, where: { line: s.line } });
+    }
+  }
 }
 
 function skipVertices(list: Entity[], i: number): number {
