@@ -13,7 +13,7 @@ import { DOMParser } from '@xmldom/xmldom';
 import type { Message, Where } from '../types';
 import { MAX_CREASES, MAX_TEXT_BYTES, utf8Length } from './limits';
 import type { Drawing } from './drawing';
-import { cssColour, type Colour } from './colour';
+import { cssColour } from './colour';
 
 const SVG_NS = 'http://www.w3.org/2000/svg';
 const XLINK_NS = 'http://www.w3.org/1999/xlink';
@@ -219,20 +219,61 @@ interface Inherited {
   visibility?: string;
 }
 
+/** How user units of the root become the pattern's: scale, y mirrored, and the size of the viewport. */
+interface Viewport {
+  map: Affine;
+  unit?: string;
+  w: number;
+  h: number;
+}
+
+type Fail = { error: Message };
+
+/** The root's width/height and viewBox: the pattern's unit and the map from user units (y mirrored). */
+function viewportOf(root: El, messages: Message[]): Viewport | Fail {
+  const vb = parseViewBox(root.getAttribute('viewBox'));
+  if (root.getAttribute('viewBox') !== null && !vb) {
+    return { error: { severity: 'error', code: 'svg-bad-viewbox', text: `The root <svg> has a viewBox "${root.getAttribute('viewBox')}" that is not four numbers with a positive width and height.`, where: { field: 'viewBox', ...(root.lineNumber ? { line: root.lineNumber } : {}) } } };
+  }
+  const physical = (s: { value: number; unit: string } | undefined) => (s && s.unit !== '%' ? s : undefined);
+  const w = physical(parseSize(root.getAttribute('width'))), h = physical(parseSize(root.getAttribute('height')));
+  let unit: string | undefined;
+  let sx = 1, sy = 1;
+  if (w || h) {
+    const keep = [w?.unit, h?.unit].find((u) => u === 'mm' || u === 'cm' || u === 'in');
+    const out = keep ?? 'mm';
+    unit = out;
+    const toUnit = (s: { value: number; unit: string }) => (s.value * PX_PER[s.unit]) / PX_PER[out];
+    if (vb) {
+      sx = w ? toUnit(w) / vb[2] : toUnit(h!) / vb[3];
+      sy = h ? toUnit(h) / vb[3] : sx;
+      if (!w) sx = sy;
+      const par = (root.getAttribute('preserveAspectRatio') ?? '').trim();
+      if (!/^none\b/.test(par) && Math.abs(sx - sy) > 1e-12 * Math.max(sx, sy)) sx = sy = /\bslice\b/.test(par) ? Math.max(sx, sy) : Math.min(sx, sy);
+    } else sx = sy = PX_PER.px / PX_PER[out];
+    if (!keep) messages.push({ severity: 'info', code: 'svg-units-px', text: `The drawing gives its size in ${w?.unit || h?.unit || 'plain numbers (px)'}; lengths are converted to mm at 96 px per inch (the CSS definition).`, where: { field: 'width' } });
+  } else {
+    messages.push({ severity: 'info', code: 'svg-units-missing', text: 'The drawing gives no width and height in a unit, so lengths are kept as drawn (user units), without a unit.', where: { field: 'width' } });
+  }
+  const viewH = vb ? vb[3] : h ? h.value * PX_PER[h.unit] : 0;
+  const mirror = vb ? 2 * vb[1] + vb[3] : viewH;
+  // pattern = scale · mirror(user), about the middle of the viewBox
+  const out: Viewport = { map: [sx, 0, 0, -sy, 0, sy * mirror], w: vb ? vb[2] : w ? w.value * PX_PER[w.unit] : 0, h: viewH };
+  if (unit) out.unit = unit;
+  return out;
+}
+
 /** Read an SVG text into the lines and texts it draws. Never throws. */
 export function parseSvg(text: string, fileName?: string): Drawing {
   const messages: Message[] = [];
   const stem = typeof fileName === 'string' ? fileName.replace(/^.*[\\/]/, '').replace(/\.[^.]*$/, '') : '';
   const drawing: Drawing = { name: stem || 'untitled', lines: [], texts: [], messages };
-  const error = (code: string, msg: string, where?: Where) => messages.push(where ? { severity: 'error', code, text: msg, where } : { severity: 'error', code, text: msg });
-  if (typeof text !== 'string') {
-    error('not-text', 'The SVG file is not text.');
+  const error = (code: string, msg: string, where?: Where) => {
+    messages.push(where ? { severity: 'error', code, text: msg, where } : { severity: 'error', code, text: msg });
     return drawing;
-  }
-  if (utf8Length(text, MAX_TEXT_BYTES) > MAX_TEXT_BYTES) {
-    error('file-too-large', `The SVG file is larger than ${MAX_TEXT_BYTES / (1024 * 1024)} MiB, the most this program reads.`);
-    return drawing;
-  }
+  };
+  if (typeof text !== 'string') return error('not-text', 'The SVG file is not text.');
+  if (utf8Length(text, MAX_TEXT_BYTES) > MAX_TEXT_BYTES) return error('file-too-large', `The SVG file is larger than ${MAX_TEXT_BYTES / (1024 * 1024)} MiB, the most this program reads.`);
 
   let doc: { documentElement: El | null; getElementsByTagName(n: string): ArrayLike<El> };
   const xmlWarnings: string[] = [];
@@ -246,17 +287,13 @@ export function parseSvg(text: string, fileName?: string): Drawing {
     const loc = (e as { locator?: { lineNumber?: number; columnNumber?: number } }).locator;
     const line = loc?.lineNumber && loc.lineNumber > 0 ? loc.lineNumber : undefined;
     const msg = String((e as Error).message ?? e).split('\n')[0];
-    error('not-xml', `The SVG file is not well-formed XML${line ? ` at line ${line}${loc?.columnNumber ? `, column ${loc.columnNumber}` : ''}` : ''}: ${msg}.`, line ? { line } : undefined);
-    return drawing;
+    return error('not-xml', `The SVG file is not well-formed XML${line ? ` at line ${line}${loc?.columnNumber ? `, column ${loc.columnNumber}` : ''}` : ''}: ${msg}.`, line ? { line } : undefined);
   }
   if (xmlWarnings.length) {
     messages.push({ severity: 'warning', code: 'xml-problem', text: `The XML has ${xmlWarnings.length} problem${xmlWarnings.length === 1 ? '' : 's'} the reader went past: ${xmlWarnings.slice(0, 3).join('; ')}${xmlWarnings.length > 3 ? '; …' : ''}.` });
   }
   const root = doc.documentElement;
-  if (!root || root.localName !== 'svg') {
-    error('not-svg', `The file is XML but not SVG (its root element is <${root?.localName ?? 'none'}>, not <svg>).`);
-    return drawing;
-  }
+  if (!root || root.localName !== 'svg') return error('not-svg', `The file is XML but not SVG (its root element is <${root?.localName ?? 'none'}>, not <svg>).`);
 
   // ids for <use>, styles from <style>
   const byId = new Map<string, El>();
@@ -270,149 +307,119 @@ export function parseSvg(text: string, fileName?: string): Drawing {
     if (el.localName === 'style') skippedSelectors += parseRules(el.textContent ?? '', rules);
   }
   if (skippedSelectors) messages.push({ severity: 'info', code: 'svg-css-skipped', text: `${skippedSelectors} CSS selector${skippedSelectors === 1 ? '' : 's'} of the <style> element${skippedSelectors === 1 ? ' is' : 's are'} more than a tag, class or id and ${skippedSelectors === 1 ? 'was' : 'were'} not applied.` });
-  const titleEl = [...Array.from(root.childNodes)].find((c) => (c as unknown as El).localName === 'title') as El | undefined;
+  const titleEl = Array.from(root.childNodes).find((c) => (c as unknown as El).localName === 'title') as El | undefined;
   const title = titleEl?.textContent?.trim();
   if (title) drawing.name = title;
 
-  const describe = (el: El): Origin => {
+  const viewport = viewportOf(root, messages);
+  if ('error' in viewport) {
+    messages.push(viewport.error);
+    return drawing;
+  }
+  if (viewport.unit) drawing.units = viewport.unit;
+  const walker = new SvgWalker(drawing, root, byId, rules, viewport);
+  try {
+    walker.walk(root, IDENTITY, {}, [], 0, false);
+  } catch (e) {
+    return error('internal-error', `The SVG could not be read because of a fault in this program (${String(e)}).`);
+  }
+  walker.finish();
+  return drawing;
+}
+
+/** Elements that draw nothing by themselves (their content is drawn only through <use>, if at all). */
+const NOT_DRAWN = new Set(['defs', 'clipPath', 'mask', 'marker', 'pattern', 'linearGradient', 'radialGradient', 'filter', 'metadata', 'title', 'desc', 'style', 'script', 'foreignObject']);
+
+/** Walks the element tree with the current transform, the inherited style and the names of the groups around. */
+class SvgWalker {
+  private refusals: Message[] = [];
+  private notRead = new Map<string, { count: number; first: El }>();
+  private produced = 0;
+
+  constructor(
+    private readonly drawing: Drawing,
+    private readonly root: El,
+    private readonly byId: Map<string, El>,
+    private readonly rules: Rule[],
+    private readonly viewport: Viewport,
+  ) {}
+
+  private describe(el: El): Origin {
     const id = el.getAttribute('id');
     const line = el.lineNumber;
     const where: Where = { field: id ? `#${id}` : `<${el.localName}>` };
     if (line) where.line = line;
     return { text: id ? `<${el.localName} id="${id}">${line ? ` (line ${line})` : ''}` : `the <${el.localName}> at line ${line ?? '?'}`, where };
-  };
-  const fail = (el: El, code: string, what: string) => {
-    const o = describe(el);
-    refusals.push({ severity: 'error', code, text: `${cap(o.text)} ${what}.`, where: o.where });
-  };
-  const refusals: Message[] = [];
-  const notRead = new Map<string, { count: number; first: El }>();
-  const skip = (why: string, el: El) => {
-    const s = notRead.get(why);
+  }
+
+  private fail(el: El, code: string, what: string): void {
+    const o = this.describe(el);
+    this.refusals.push({ severity: 'error', code, text: `${cap(o.text)} ${what}.`, where: o.where });
+  }
+
+  private skip(why: string, el: El): void {
+    const s = this.notRead.get(why);
     if (s) s.count++;
-    else notRead.set(why, { count: 1, first: el });
-  };
-
-  // the viewport: user units → the pattern's units, and the mirror line
-  const vb = parseViewBox(root.getAttribute('viewBox'));
-  if (root.getAttribute('viewBox') !== null && !vb) {
-    error('svg-bad-viewbox', `The root <svg> has a viewBox "${root.getAttribute('viewBox')}" that is not four numbers with a positive width and height.`, { field: 'viewBox', line: root.lineNumber });
-    return drawing;
+    else this.notRead.set(why, { count: 1, first: el });
   }
-  const width = parseSize(root.getAttribute('width'));
-  const height = parseSize(root.getAttribute('height'));
-  let unit: string | undefined;
-  let sx = 1, sy = 1;
-  const physical = (s: { value: number; unit: string } | undefined) => (s && s.unit !== '%' ? s : undefined);
-  const w = physical(width), h = physical(height);
-  if (w || h) {
-    const keep = [w?.unit, h?.unit].find((u) => u === 'mm' || u === 'cm' || u === 'in');
-    unit = keep ?? 'mm';
-    const toUnit = (s: { value: number; unit: string }) => (s.value * PX_PER[s.unit]) / PX_PER[unit!];
-    if (vb) {
-      sx = w ? toUnit(w) / vb[2] : toUnit(h!) / vb[3];
-      sy = h ? toUnit(h) / vb[3] : sx;
-      if (!w) sx = sy;
-      const par = (root.getAttribute('preserveAspectRatio') ?? '').trim();
-      if (!/^none\b/.test(par) && Math.abs(sx - sy) > 1e-12 * Math.max(sx, sy)) {
-        const s = /\bslice\b/.test(par) ? Math.max(sx, sy) : Math.min(sx, sy);
-        sx = sy = s;
-      }
-    } else sx = sy = PX_PER.px / PX_PER[unit];
-    if (!keep) messages.push({ severity: 'info', code: 'svg-units-px', text: `The drawing gives its size in ${w?.unit || h?.unit || 'plain numbers (px)'}; lengths are converted to mm at 96 px per inch (the CSS definition).`, where: { field: 'width' } });
-  } else {
-    messages.push({ severity: 'info', code: 'svg-units-missing', text: 'The drawing gives no width and height in a unit, so lengths are kept as drawn (user units), without a unit.', where: { field: 'width' } });
-  }
-  if (unit) drawing.units = unit;
-  const viewH = vb ? vb[3] : h ? (h.value * PX_PER[h.unit]) : 0;
-  const mirror = vb ? 2 * vb[1] + vb[3] : viewH;
-  // pattern = scale · mirror(user)
-  const rootMap: Affine = [sx, 0, 0, -sy, 0, sy * mirror];
 
-  const viewport = { w: vb ? vb[2] : w ? w.value * PX_PER[w.unit] : 0, h: vb ? vb[3] : viewH };
-  const length = (el: El, name: string, axis: 'x' | 'y' | 'd', fallback = 0): number => {
+  /** A length attribute in user units (CSS units allowed; % of the viewport); throws SvgError when it is not one. */
+  private length(el: El, name: string, axis: 'x' | 'y' | 'd', fallback = 0): number {
     const raw = el.getAttribute(name);
     if (raw === null || raw.trim() === '') return fallback;
     const m = /^\s*([+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?)\s*(px|mm|cm|in|pt|pc|q|%)?\s*$/i.exec(raw);
     if (!m) throw new SvgError(`has ${name}="${raw}", which is not a length`);
     const v = Number(m[1]);
     const u = (m[2] ?? '').toLowerCase();
-    if (u === '%') {
-      const ref = axis === 'x' ? viewport.w : axis === 'y' ? viewport.h : Math.hypot(viewport.w, viewport.h) / Math.SQRT2;
-      return (v / 100) * ref;
-    }
-    return v * PX_PER[u];
-  };
-  const numbers = (s: string | null): number[] => (s ?? '').trim().split(/[\s,]+/).filter((t) => t !== '').map(Number);
+    if (u !== '%') return v * PX_PER[u];
+    const { w, h } = this.viewport;
+    return (v / 100) * (axis === 'x' ? w : axis === 'y' ? h : Math.hypot(w, h) / Math.SQRT2);
+  }
 
-  const cssFor = (el: El, prop: string): string | undefined => {
+  /** A property as specified for the element: style="…", then the <style> rules, then the attribute. */
+  private css(el: El, prop: string): string | undefined {
     const inline = el.getAttribute('style');
     if (inline) {
       const v = parseDeclarations(inline).get(prop);
       if (v !== undefined) return v;
     }
-    if (rules.length) {
+    if (this.rules.length) {
       const classes = (el.getAttribute('class') ?? '').split(/\s+/).filter(Boolean);
       const id = el.getAttribute('id');
       let best: Rule | undefined;
-      for (const r of rules) {
-        if (!r.decls.has(prop)) continue;
-        if (r.tag && r.tag !== el.localName) continue;
-        if (r.cls && !classes.includes(r.cls)) continue;
-        if (r.id && r.id !== id) continue;
+      for (const r of this.rules) {
+        if (!r.decls.has(prop) || (r.tag && r.tag !== el.localName) || (r.cls && !classes.includes(r.cls)) || (r.id && r.id !== id)) continue;
         if (!best || r.specificity > best.specificity || (r.specificity === best.specificity && r.order > best.order)) best = r;
       }
       if (best) return best.decls.get(prop);
     }
     const attr = el.getAttribute(prop);
     return attr === null ? undefined : attr.trim();
-  };
-  const styleOf = (el: El, parent: Inherited): Inherited => {
+  }
+
+  private styleOf(el: El, parent: Inherited): Inherited {
     const out: Inherited = { ...parent };
     for (const p of ['stroke', 'fill', 'visibility'] as const) {
-      const v = cssFor(el, p);
+      const v = this.css(el, p);
       if (v !== undefined && v !== 'inherit') out[p] = v;
     }
     return out;
-  };
-  const groupName = (el: El): string | undefined => {
-    for (const a of Array.from(el.attributes)) if (a.localName === 'label' && a.value.trim() !== '') return a.value.trim();
-    const id = el.getAttribute('id');
-    return id && id.trim() !== '' ? id.trim() : undefined;
-  };
+  }
 
-  let produced = 0;
-  const addLine = (el: El, m: Affine, style: Inherited, names: string[], p: [number, number], q: [number, number]) => {
-    if (++produced > MAX_CREASES) return;
-    const colour: Colour | undefined = style.stroke ? (cssColour(style.stroke) ? { rgb: cssColour(style.stroke)! } : undefined) : undefined;
-    const line = { a: apply(m, p[0], p[1]), b: apply(m, q[0], q[1]), names, origin: describe(el) } as Drawing['lines'][number];
-    if (colour) line.colour = colour;
-    drawing.lines.push(line);
-  };
-  const drawn = (style: Inherited): boolean => {
-    if (style.stroke !== undefined) return style.stroke !== 'none' && style.stroke !== 'transparent';
-    return style.fill === undefined || style.fill === 'none';
-  };
-
-  const walk = (el: El, ctm: Affine, parentStyle: Inherited, names: string[], useDepth: number, viaUse: boolean) => {
+  walk(el: El, ctm: Affine, parentStyle: Inherited, names: string[], useDepth: number, viaUse: boolean): void {
     if (el.namespaceURI !== SVG_NS && el.namespaceURI !== null) return; // another program's own elements
     const tag = el.localName;
-    if (['defs', 'clipPath', 'mask', 'marker', 'pattern', 'linearGradient', 'radialGradient', 'filter', 'metadata', 'title', 'desc', 'style', 'script', 'foreignObject'].includes(tag)) return;
-    if (tag === 'symbol' && !viaUse) return;
-    const display = cssFor(el, 'display');
-    if (display === 'none') {
-      skip('hidden (display: none), with everything in them', el);
+    if (NOT_DRAWN.has(tag) || (tag === 'symbol' && !viaUse)) return;
+    if (this.css(el, 'display') === 'none') {
+      this.skip('hidden (display: none), with everything in them', el);
       return;
     }
-    const style = styleOf(el, parentStyle);
+    const style = this.styleOf(el, parentStyle);
     let m = ctm;
     const tr = el.getAttribute('transform');
     if (tr !== null && tr.trim() !== '') {
       const t = parseTransform(tr);
-      if (!t) {
-        fail(el, 'svg-bad-transform', `has a transform "${tr.slice(0, 60)}" that cannot be read`);
-        return;
-      }
+      if (!t) return this.fail(el, 'svg-bad-transform', `has a transform "${tr.slice(0, 60)}" that cannot be read`);
       m = compose(m, t);
     }
     try {
@@ -421,108 +428,115 @@ export function parseSvg(text: string, fileName?: string): Drawing {
         case 'symbol':
         case 'g':
         case 'a':
-        case 'switch': {
-          if (el !== root && (tag === 'svg' || tag === 'symbol')) {
-            const x = length(el, 'x', 'x'), y = length(el, 'y', 'y');
-            m = compose(m, [1, 0, 0, 1, x, y]);
-            const inner = parseViewBox(el.getAttribute('viewBox'));
-            if (inner) {
-              const ww = length(el, 'width', 'x', inner[2]), hh = length(el, 'height', 'y', inner[3]);
-              const s = Math.min(ww / inner[2], hh / inner[3]);
-              m = compose(m, [s, 0, 0, s, -inner[0] * s, -inner[1] * s]);
-            }
-          }
-          const name = tag === 'g' || tag === 'svg' || tag === 'symbol' ? (el === root ? undefined : groupName(el)) : undefined;
-          const inner = name ? [name, ...names] : names;
-          for (const c of Array.from(el.childNodes)) if (c.nodeType === 1) walk(c as unknown as El, m, style, inner, useDepth, false);
-          return;
-        }
-        case 'use': {
-          const href = el.getAttributeNS(XLINK_NS, 'href') ?? el.getAttribute('href') ?? el.getAttribute('xlink:href');
-          const target = href && href.startsWith('#') ? byId.get(href.slice(1)) : undefined;
-          if (!target) {
-            fail(el, 'svg-bad-use', `refers to ${href ? `"${href}", which is not an element of this file` : 'nothing (no href)'}`);
-            return;
-          }
-          if (useDepth >= MAX_USE_DEPTH) {
-            fail(el, 'svg-use-loop', `refers to elements that refer back to it (or nests <use> more than ${MAX_USE_DEPTH} deep)`);
-            return;
-          }
-          m = compose(m, [1, 0, 0, 1, length(el, 'x', 'x'), length(el, 'y', 'y')]);
-          walk(target, m, style, names, useDepth + 1, true);
-          return;
-        }
+        case 'switch':
+          return this.container(el, m, style, names, useDepth);
+        case 'use':
+          return this.use(el, m, style, names, useDepth);
         case 'line':
         case 'polyline':
         case 'polygon':
         case 'rect':
-        case 'path': {
-          if (!drawn(style) || style.visibility === 'hidden' || style.visibility === 'collapse') {
-            skip(style.visibility === 'hidden' || style.visibility === 'collapse' ? 'hidden (visibility)' : 'filled without a stroke (not lines)', el);
-            return;
-          }
-          const full = compose(rootMap, m);
-          const chains: [number, number][][] = [];
-          if (tag === 'line') chains.push([[length(el, 'x1', 'x'), length(el, 'y1', 'y')], [length(el, 'x2', 'x'), length(el, 'y2', 'y')]]);
-          else if (tag === 'polyline' || tag === 'polygon') {
-            const v = numbers(el.getAttribute('points'));
-            if (v.some((x) => !Number.isFinite(x))) throw new SvgError('has points that are not numbers');
-            const pts: [number, number][] = [];
-            for (let i = 0; i + 1 < v.length; i += 2) pts.push([v[i], v[i + 1]]);
-            if (tag === 'polygon' && pts.length > 2) pts.push(pts[0]);
-            chains.push(pts);
-          } else if (tag === 'rect') {
-            const rx = length(el, 'rx', 'x'), ry = length(el, 'ry', 'y');
-            if (rx > 0 || ry > 0) throw new SvgError('has rounded corners (rx, ry), which are arcs; creases and the outline are straight');
-            const x = length(el, 'x', 'x'), y = length(el, 'y', 'y'), ww = length(el, 'width', 'x'), hh = length(el, 'height', 'y');
-            if (!(ww > 0 && hh > 0)) return;
-            chains.push([[x, y], [x + ww, y], [x + ww, y + hh], [x, y + hh], [x, y]]);
-          } else chains.push(...pathSubpaths(el.getAttribute('d') ?? ''));
-          for (const c of chains) {
-            for (let i = 0; i + 1 < c.length; i++) {
-              if (c[i].some((x) => !Number.isFinite(x)) || c[i + 1].some((x) => !Number.isFinite(x))) throw new SvgError('has a coordinate that is not a finite number');
-              addLine(el, full, style, names, c[i], c[i + 1]);
-            }
-          }
-          return;
-        }
+        case 'path':
+          return this.shape(el, m, style, names);
         case 'circle':
         case 'ellipse':
-          fail(el, 'svg-curve', `is a ${tag}, a curve; creases and the outline are straight`);
-          return;
+          return this.fail(el, 'svg-curve', `is a ${tag}, a curve; creases and the outline are straight`);
         case 'text': {
           const x = numbers(el.getAttribute('x'))[0] ?? 0;
           const y = numbers(el.getAttribute('y'))[0] ?? 0;
-          const at = apply(compose(rootMap, m), x, y);
-          drawing.texts.push({ at, text: el.textContent ?? '', names, origin: describe(el) });
+          this.drawing.texts.push({ at: apply(compose(this.viewport.map, m), x, y), text: el.textContent ?? '', names, origin: this.describe(el) });
           return;
         }
         case 'image':
-          skip('images', el);
-          return;
+          return this.skip('images', el);
         default:
-          skip(`<${tag}> elements (not lines)`, el);
+          return this.skip(`<${tag}> elements (not lines)`, el);
       }
     } catch (e) {
-      if (e instanceof SvgError) fail(el, tag === 'path' && /curve/.test(e.message) ? 'svg-curve' : 'svg-bad-element', e.message);
+      if (e instanceof SvgError) this.fail(el, tag === 'path' && /curve/.test(e.message) ? 'svg-curve' : 'svg-bad-element', e.message);
       else throw e;
     }
-  };
-  try {
-    walk(root, IDENTITY, {}, [], 0, false);
-  } catch (e) {
-    error('internal-error', `The SVG could not be read because of a fault in this program (${String(e)}).`);
-    return drawing;
   }
-  if (produced > MAX_CREASES) error('too-many-lines', `The drawing has more than ${MAX_CREASES} straight pieces; at most ${MAX_CREASES} are read.`);
-  messages.push(...refusals.slice(0, MAX_LISTED));
-  if (refusals.length > MAX_LISTED) messages.push({ severity: 'error', code: refusals[MAX_LISTED].code, text: `… and ${refusals.length - MAX_LISTED} more elements that cannot be read.` });
-  for (const [why, s] of notRead) {
-    const o = describe(s.first);
-    messages.push({ severity: 'info', code: 'svg-not-read', text: `${s.count} element${s.count === 1 ? '' : 's'} ${why} ${s.count === 1 ? 'was' : 'were'} not read (the first: ${o.text}).`, where: o.where });
+
+  /** g, a, switch, and svg or symbol (with their own position and viewBox): children with the group's name. */
+  private container(el: El, m: Affine, style: Inherited, names: string[], useDepth: number): void {
+    const tag = el.localName;
+    if (el !== this.root && (tag === 'svg' || tag === 'symbol')) {
+      m = compose(m, [1, 0, 0, 1, this.length(el, 'x', 'x'), this.length(el, 'y', 'y')]);
+      const inner = parseViewBox(el.getAttribute('viewBox'));
+      if (inner) {
+        const s = Math.min(this.length(el, 'width', 'x', inner[2]) / inner[2], this.length(el, 'height', 'y', inner[3]) / inner[3]);
+        m = compose(m, [s, 0, 0, s, -inner[0] * s, -inner[1] * s]);
+      }
+    }
+    const name = (tag === 'g' || tag === 'svg' || tag === 'symbol') && el !== this.root ? groupName(el) : undefined;
+    const inner = name ? [name, ...names] : names;
+    for (const c of Array.from(el.childNodes)) if (c.nodeType === 1) this.walk(c as unknown as El, m, style, inner, useDepth, false);
   }
-  return drawing;
+
+  private use(el: El, m: Affine, style: Inherited, names: string[], useDepth: number): void {
+    const href = el.getAttributeNS(XLINK_NS, 'href') ?? el.getAttribute('href') ?? el.getAttribute('xlink:href');
+    const target = href && href.startsWith('#') ? this.byId.get(href.slice(1)) : undefined;
+    if (!target) return this.fail(el, 'svg-bad-use', `refers to ${href ? `"${href}", which is not an element of this file` : 'nothing (no href)'}`);
+    if (useDepth >= MAX_USE_DEPTH) return this.fail(el, 'svg-use-loop', `refers to elements that refer back to it (or nests <use> more than ${MAX_USE_DEPTH} deep)`);
+    this.walk(target, compose(m, [1, 0, 0, 1, this.length(el, 'x', 'x'), this.length(el, 'y', 'y')]), style, names, useDepth + 1, true);
+  }
+
+  /** line, polyline, polygon, rect, path: their straight pieces, when the shape is drawn with a stroke. */
+  private shape(el: El, m: Affine, style: Inherited, names: string[]): void {
+    const hidden = style.visibility === 'hidden' || style.visibility === 'collapse';
+    const stroked = style.stroke !== undefined ? style.stroke !== 'none' && style.stroke !== 'transparent' : style.fill === undefined || style.fill === 'none';
+    if (hidden || !stroked) return this.skip(hidden ? 'hidden (visibility)' : 'filled without a stroke (not lines)', el);
+    const tag = el.localName;
+    const chains: [number, number][][] = [];
+    if (tag === 'line') chains.push([[this.length(el, 'x1', 'x'), this.length(el, 'y1', 'y')], [this.length(el, 'x2', 'x'), this.length(el, 'y2', 'y')]]);
+    else if (tag === 'polyline' || tag === 'polygon') {
+      const v = numbers(el.getAttribute('points'));
+      if (v.some((x) => !Number.isFinite(x))) throw new SvgError('has points that are not numbers');
+      const pts: [number, number][] = [];
+      for (let i = 0; i + 1 < v.length; i += 2) pts.push([v[i], v[i + 1]]);
+      if (tag === 'polygon' && pts.length > 2) pts.push(pts[0]);
+      chains.push(pts);
+    } else if (tag === 'rect') {
+      if (this.length(el, 'rx', 'x') > 0 || this.length(el, 'ry', 'y') > 0) throw new SvgError('has rounded corners (rx, ry), which are arcs; creases and the outline are straight');
+      const x = this.length(el, 'x', 'x'), y = this.length(el, 'y', 'y'), w = this.length(el, 'width', 'x'), h = this.length(el, 'height', 'y');
+      if (!(w > 0 && h > 0)) return;
+      chains.push([[x, y], [x + w, y], [x + w, y + h], [x, y + h], [x, y]]);
+    } else chains.push(...pathSubpaths(el.getAttribute('d') ?? ''));
+    const full = compose(this.viewport.map, m);
+    const rgb = style.stroke ? cssColour(style.stroke) : undefined;
+    for (const c of chains) {
+      for (let i = 0; i + 1 < c.length; i++) {
+        if (c[i].some((x) => !Number.isFinite(x)) || c[i + 1].some((x) => !Number.isFinite(x))) throw new SvgError('has a coordinate that is not a finite number');
+        if (++this.produced > MAX_CREASES) return;
+        const line: Drawing['lines'][number] = { a: apply(full, c[i][0], c[i][1]), b: apply(full, c[i + 1][0], c[i + 1][1]), names, origin: this.describe(el) };
+        if (rgb) line.colour = { rgb };
+        this.drawing.lines.push(line);
+      }
+    }
+  }
+
+  /** The refusals and what was not read, as the drawing's messages. */
+  finish(): void {
+    const messages = this.drawing.messages;
+    if (this.produced > MAX_CREASES) messages.push({ severity: 'error', code: 'too-many-lines', text: `The drawing has more than ${MAX_CREASES} straight pieces; at most ${MAX_CREASES} are read.` });
+    messages.push(...this.refusals.slice(0, MAX_LISTED));
+    if (this.refusals.length > MAX_LISTED) messages.push({ severity: 'error', code: this.refusals[MAX_LISTED].code, text: `… and ${this.refusals.length - MAX_LISTED} more elements that cannot be read.` });
+    for (const [why, s] of this.notRead) {
+      const o = this.describe(s.first);
+      messages.push({ severity: 'info', code: 'svg-not-read', text: `${s.count} element${s.count === 1 ? '' : 's'} ${why} ${s.count === 1 ? 'was' : 'were'} not read (the first: ${o.text}).`, where: o.where });
+    }
+  }
 }
+
+/** A group's name: its label attribute in any namespace, else its id. */
+function groupName(el: El): string | undefined {
+  for (const a of Array.from(el.attributes)) if (a.localName === 'label' && a.value.trim() !== '') return a.value.trim();
+  const id = el.getAttribute('id');
+  return id && id.trim() !== '' ? id.trim() : undefined;
+}
+
+const numbers = (s: string | null): number[] => (s ?? '').trim().split(/[\s,]+/).filter((t) => t !== '').map(Number);
 
 type Origin = Drawing['lines'][number]['origin'];
 
