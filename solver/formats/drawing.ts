@@ -108,7 +108,36 @@ export function drawingToProject(drawing: Drawing, opts: DrawingOptions = {}): D
     return { messages };
   }
 
-  // assignments: --layer names, then --stroke colours, then the names' own words, else U
+  const { segments, origins } = assignLines(drawing, checked, messages);
+
+  const cleaned = cleanSegments(segments, origins, opts.snap);
+  messages.push(...cleaned.messages);
+  if (cleaned.messages.some((m) => m.severity === 'error')) return { messages, cleaning: { ...cleaned.counts, snap: cleaned.snap } };
+
+  const edgeOrigin = (e: number) => origins[segments[cleaned.sources[e][0]].origin];
+  const labels = labelsFromTexts(drawing.texts, cleaned.vertices, cleaned.edges, cleaned.snap, messages);
+  const source: PatternSource = {
+    name: drawing.name,
+    vertices: cleaned.vertices,
+    edges: cleaned.edges,
+    assignments: cleaned.assignments,
+    labels,
+    limits: cleaned.edges.map(() => undefined),
+  };
+  const project: Project = { source, drives: [] };
+  if (drawing.units !== undefined) project.units = drawing.units;
+
+  const locate = locator(cleaned.vertices, cleaned.edges, edgeOrigin);
+  return { project, messages, cleaning: { ...cleaned.counts, snap: cleaned.snap }, locate };
+}
+
+type Checked = ReturnType<typeof checkOptions>;
+
+/**
+ * Each line's assignment: a --layer name, then a --stroke colour, then the names' own words, else U (a
+ * warning per layer). Messages summarise which layer or colour gave what, and options that matched nothing.
+ */
+function assignLines(drawing: Drawing, checked: Checked, messages: Message[]): { segments: DrawnSegment[]; origins: Origin[] } {
   /** how each group of lines got its assignment, for the summary: one entry per (layer, rule) */
   const groups = new Map<string, { layer: string; how: 'layer' | 'stroke' | 'name' | 'none'; stroke?: string; assignment: Assignment; count: number; first: Origin }>();
   const strokeUsed = new Set<string>();
@@ -174,44 +203,30 @@ export function drawingToProject(drawing: Drawing, opts: DrawingOptions = {}): D
     }
   }
   messages.push({ severity: 'info', code: 'drawing-read', text: `Read ${drawing.lines.length} straight piece${drawing.lines.length === 1 ? '' : 's'}: ${summary.join(', ')}.` });
+  return { segments, origins };
+}
 
-  const cleaned = cleanSegments(segments, origins, opts.snap);
-  messages.push(...cleaned.messages);
-  if (cleaned.messages.some((m) => m.severity === 'error')) return { messages, cleaning: { ...cleaned.counts, snap: cleaned.snap } };
-
-  const edgeOrigin = (e: number) => origins[segments[cleaned.sources[e][0]].origin];
-  const labels = labelsFromTexts(drawing.texts, cleaned.vertices, cleaned.edges, cleaned.snap, messages);
-  const source: PatternSource = {
-    name: drawing.name,
-    vertices: cleaned.vertices,
-    edges: cleaned.edges,
-    assignments: cleaned.assignments,
-    labels,
-    limits: cleaned.edges.map(() => undefined),
-  };
-  const project: Project = { source, drives: [] };
-  if (drawing.units !== undefined) project.units = drawing.units;
-
-  const incident: number[] = new Array(cleaned.vertices.length).fill(-1);
-  cleaned.edges.forEach(([a, b], e) => {
+/** Point a message of the pattern checks (a crease, or a vertex) at where the drawing drew it. */
+function locator(vertices: [number, number][], edges: [number, number][], edgeOrigin: (e: number) => Origin): (m: Message) => Message {
+  const incident: number[] = new Array(vertices.length).fill(-1);
+  edges.forEach(([a, b], e) => {
     if (incident[a] < 0) incident[a] = e;
     if (incident[b] < 0) incident[b] = e;
   });
-  const locate = (m: Message): Message => {
+  return (m: Message): Message => {
     const w = m.where;
     if (!w) return m;
-    if (w.crease !== undefined && w.crease >= 0 && w.crease < cleaned.edges.length) {
+    if (w.crease !== undefined && w.crease >= 0 && w.crease < edges.length) {
       const o = edgeOrigin(w.crease);
       return { ...m, text: `${m.text} (Drawn as ${o.text}.)`, where: { ...w, ...o.where } as Where };
     }
-    if (w.vertex !== undefined && w.vertex >= 0 && w.vertex < cleaned.vertices.length && incident[w.vertex] >= 0) {
+    if (w.vertex !== undefined && w.vertex >= 0 && w.vertex < vertices.length && incident[w.vertex] >= 0) {
       const o = edgeOrigin(incident[w.vertex]);
-      const [x, y] = cleaned.vertices[w.vertex];
+      const [x, y] = vertices[w.vertex];
       return { ...m, text: `${m.text} (Vertex ${w.vertex} is at (${fmt(x)}, ${fmt(y)}) in the pattern, an end of ${o.text}.)`, where: { ...w, ...o.where } as Where };
     }
     return m;
   };
-  return { project, messages, cleaning: { ...cleaned.counts, snap: cleaned.snap }, locate };
 }
 
 /**
