@@ -171,8 +171,8 @@ describe('a Miura-ori sheet drawn in mm in SVG', () => {
     const driveGen = genPattern.labelIndex.get(gen.drives[0].crease)!;
     const drive = p.creases.find((c) => mid(p, c.index, margin) === mid(genPattern, driveGen, 0))!.index;
     const rz = 70 * D * Math.sign(gen.drives[0].angleDeg);
-    const mine = solveDrives(p, [{ crease: drive, value: rz }], { multistart: 0 }).solutions.find((s) => s.matchesAssignment)!;
-    const theirs = solveDrives(genPattern, [{ crease: driveGen, value: rz }], { multistart: 0 }).solutions.find((s) => s.matchesAssignment)!;
+    const mine = solveDrives(p, [{ crease: drive, value: rz }], { starts: 0 }).solutions.find((s) => s.matchesAssignment)!;
+    const theirs = solveDrives(genPattern, [{ crease: driveGen, value: rz }], { starts: 0 }).solutions.find((s) => s.matchesAssignment)!;
     expect(mine.maxResidual).toBeLessThanOrEqual(1e-10);
     for (const c of p.creases) {
       const g = genByMid.get(mid(p, c.index, margin))!;
