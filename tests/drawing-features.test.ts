@@ -95,6 +95,17 @@ describe('SVG beyond plain lines', () => {
     expect(r.messages.some((m) => m.code === 'svg-units-px')).toBe(true);
   });
 
+  it('a group is named by its label (any namespace), its data-name or its id; --layer takes any of them', () => {
+    const body = (g: string) =>
+      `<svg xmlns="http://www.w3.org/2000/svg" xmlns:ed="http://example.org/editor" width="10mm" height="10mm" viewBox="0 0 10 10"><g id="rim"><rect width="10" height="10" stroke="#000" fill="none"/></g>${g}<line x1="0" y1="0" x2="10" y2="10" stroke="#000"/></g></svg>`;
+    const assignment = (g: string, layers?: { name: string; assignment: 'M' | 'V' }[]) =>
+      loadPatternText(body(g), 'g.svg', layers ? { layers } : {}).pattern!.creases.find((c) => c.assignment !== 'B')!.assignment;
+    expect(assignment('<g id="layer1" ed:label="Valley folds">')).toBe('V');
+    expect(assignment('<g id="Mountain_1_" data-name="fold set 1">')).toBe('M');
+    expect(assignment('<g id="layer1" ed:label="set A">', [{ name: 'layer1', assignment: 'M' }])).toBe('M');
+    expect(assignment('<g id="layer1" data-name="set A">', [{ name: 'set a', assignment: 'V' }])).toBe('V');
+  });
+
   it('inches are kept; a viewBox scales user units to the width', () => {
     const r = loadPatternText(
       '<svg xmlns="http://www.w3.org/2000/svg" width="4in" height="2in" viewBox="0 0 400 200"><g id="border"><polygon points="0,0 400,0 400,200 0,200" stroke="black" fill="none"/></g><g id="Mountain"><line x1="200" y1="0" x2="200" y2="200" stroke="black"/></g></svg>',

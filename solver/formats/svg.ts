@@ -469,8 +469,8 @@ class SvgWalker {
         m = compose(m, [s, 0, 0, s, -inner[0] * s, -inner[1] * s]);
       }
     }
-    const name = (tag === 'g' || tag === 'svg' || tag === 'symbol') && el !== this.root ? groupName(el) : undefined;
-    const inner = name ? [name, ...names] : names;
+    const own = (tag === 'g' || tag === 'svg' || tag === 'symbol') && el !== this.root ? groupNames(el) : [];
+    const inner = own.length ? [...own, ...names] : names;
     for (const c of Array.from(el.childNodes)) if (c.nodeType === 1) this.walk(c as unknown as El, m, style, inner, useDepth, false);
   }
 
@@ -529,11 +529,17 @@ class SvgWalker {
   }
 }
 
-/** A group's name: its label attribute in any namespace, else its id. */
-function groupName(el: El): string | undefined {
-  for (const a of Array.from(el.attributes)) if (a.localName === 'label' && a.value.trim() !== '') return a.value.trim();
-  const id = el.getAttribute('id');
-  return id && id.trim() !== '' ? id.trim() : undefined;
+/** A group's names, the one shown first: its label attribute in any namespace, its data-name, its id. */
+function groupNames(el: El): string[] {
+  const out: string[] = [];
+  const add = (v: string | null | undefined) => {
+    const t = v?.trim();
+    if (t && !out.includes(t)) out.push(t);
+  };
+  for (const a of Array.from(el.attributes)) if (a.localName === 'label') add(a.value);
+  add(el.getAttribute('data-name'));
+  add(el.getAttribute('id'));
+  return out;
 }
 
 const numbers = (s: string | null): number[] => (s ?? '').trim().split(/[\s,]+/).filter((t) => t !== '').map(Number);
