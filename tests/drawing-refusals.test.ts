@@ -75,13 +75,16 @@ describe('DXF refusals name the line', () => {
     expect(m.text).toMatch(/z = 5/);
     refusal(dxfFile([...square(), [0, 'LWPOLYLINE'], [8, 'valley'], [90, 2], [10, 0], [20, 0], [10, 1], [20, 1], [210, 0], [220, 1], [230, 0]]), 'dxf-not-flat');
   });
-  it('a LINE without its end point, an INSERT of a missing block, a block that inserts itself', () => {
+  it('a LINE without its end point, an INSERT of a missing block, a block that inserts itself, an external block', () => {
     const m = refusal(dxfFile([...square(), [0, 'LINE'], [8, 'valley'], [10, 0], [20, 0]]), 'dxf-bad-entity');
     expect(m.where?.line).toBeGreaterThan(0);
     refusal(dxfFile([...square(), [0, 'INSERT'], [8, '0'], [2, 'nowhere'], [10, 0], [20, 0]]), 'dxf-missing-block');
     const loop = dxf([...header, [0, 'SECTION'], [2, 'BLOCKS'], [0, 'BLOCK'], [2, 'me'], [10, 0], [20, 0], [0, 'INSERT'], [8, '0'], [2, 'me'], [10, 1], [20, 1], [0, 'ENDBLK'], [0, 'ENDSEC'],
       [0, 'SECTION'], [2, 'ENTITIES'], ...square(), [0, 'INSERT'], [8, '0'], [2, 'me'], [10, 0], [20, 0], [0, 'ENDSEC'], [0, 'EOF']]);
     refusal(loadPatternText(loop, 'x.dxf'), 'dxf-block-loop');
+    const xref = dxf([...header, [0, 'SECTION'], [2, 'BLOCKS'], [0, 'BLOCK'], [2, 'elsewhere'], [70, 4], [10, 0], [20, 0], [1, 'other.dwg'], [0, 'ENDBLK'], [0, 'ENDSEC'],
+      [0, 'SECTION'], [2, 'ENTITIES'], ...square(), [0, 'INSERT'], [8, '0'], [2, 'elsewhere'], [10, 0], [20, 0], [0, 'ENDSEC'], [0, 'EOF']]);
+    expect(refusal(loadPatternText(xref, 'x.dxf'), 'dxf-external-block').text).toMatch(/external reference/);
   });
   it('lines of different assignments on top of each other: both named with their lines', () => {
     const entities = [...square(), ...line('mountain', 0, 0, 100, 100), ...line('valley', 100, 100, 0, 0)];

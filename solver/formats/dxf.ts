@@ -47,6 +47,8 @@ interface Layer {
 
 interface Block {
   name: string;
+  /** an external reference: its entities are in another file */
+  external: boolean;
   base: [number, number];
   entities: Entity[];
   line: number;
@@ -181,7 +183,7 @@ function readBlocks(list: Entity[]): Map<string, Block> {
     if (list[b].type !== 'BLOCK') continue;
     const head = list[b];
     const name = groupValue(head, 2) ?? groupValue(head, 3) ?? '';
-    const block: Block = { name, base: [num(head, 10) ?? 0, num(head, 20) ?? 0], entities: [], line: head.line };
+    const block: Block = { name, external: (Number(groupValue(head, 70) ?? 0) & 4) !== 0, base: [num(head, 10) ?? 0, num(head, 20) ?? 0], entities: [], line: head.line };
     b++;
     while (b < list.length && list[b].type !== 'ENDBLK') block.entities.push(list[b++]);
     blocks.set(name.toLowerCase(), block);
@@ -411,6 +413,10 @@ class EntityReader {
     const block = this.blocks.get(name.toLowerCase());
     if (!block) {
       this.refuse('dxf-missing-block', `Line ${e.line}: this INSERT places the block "${name}", which the file does not define.`, { line: e.line });
+      return;
+    }
+    if (block.external) {
+      this.refuse('dxf-external-block', `Line ${e.line}: this INSERT places the block "${name}", an external reference: its lines are in another file. Bind or insert it into this drawing and save again.`, { line: e.line });
       return;
     }
     if (inBlocks.includes(name.toLowerCase()) || depth >= MAX_BLOCK_DEPTH) {
