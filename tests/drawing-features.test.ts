@@ -71,6 +71,34 @@ describe('DXF beyond plain lines', () => {
   });
 });
 
+describe('crease labels from texts on a label layer', () => {
+  const text = (layer: string, x: number, y: number, label: string): [number, string | number][] => [[0, 'TEXT'], [8, layer], [10, x], [20, y], [40, 2], [1, label]];
+  const sheet = (texts: [number, string | number][]) =>
+    loadPatternText(dxf(section('ENTITIES', [
+      [0, 'LWPOLYLINE'], [8, 'outline'], [90, 4], [70, 1], [10, 0], [20, 0], [10, 100], [20, 0], [10, 100], [20, 100], [10, 0], [20, 100],
+      [0, 'LINE'], [8, 'valley'], [10, 0], [20, 50], [11, 100], [21, 50],
+      [0, 'LINE'], [8, 'mountain'], [10, 50], [20, 0], [11, 50], [21, 50],
+      ...texts,
+    ])), 'labels.dxf');
+  it('a text at the middle of a crease names it; texts elsewhere, twice or off the label layer are reported', () => {
+    const r = sheet([
+      ...text('crease labels', 25, 50, 'hinge-A'), // the middle of the valley's left piece
+      ...text('crease labels', 50, 25, 'drive'), // the middle of the mountain
+      ...text('crease labels', 25, 50.4, 'again'), // a second label on the same crease
+      ...text('crease labels', 80, 80, 'nowhere'), // in a panel, far from any middle
+      ...text('crease labels', 75, 50, 'drive'), // a label already taken
+      ...text('notes', 10, 10, 'a note'), // not on a label layer
+    ]);
+    expect(r.messages.filter((m) => m.severity === 'error')).toEqual([]);
+    const labels = new Map(r.pattern!.creases.map((c) => [c.label, c]));
+    expect(labels.get('hinge-A')!.assignment).toBe('V');
+    expect(labels.get('drive')!.assignment).toBe('M');
+    const codes = r.messages.map((m) => m.code);
+    for (const c of ['label-twice', 'label-unmatched', 'label-duplicate', 'texts-ignored', 'labels-read']) expect(codes, c).toContain(c);
+    expect(r.messages.find((m) => m.code === 'label-unmatched')!.where?.line).toBeGreaterThan(0);
+  });
+});
+
 describe('DXF text encodings', () => {
   // a file before AutoCAD 2007 is in the Windows code page its header names ($DWGCODEPAGE), e.g. 1252 or 1251
   const bytes = (latin1: string) => Uint8Array.from(latin1, (ch) => ch.charCodeAt(0));
