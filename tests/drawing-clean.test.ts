@@ -90,6 +90,20 @@ describe('cleaning drawn lines', () => {
     expect(build(long).messages.some((m) => m.code === 'dangling-crease')).toBe(true);
   });
 
+  it('removes the stub a crease leaves when it overshoots a corner; keeps the rest of the crease', () => {
+    // a diagonal from (50, 50) passing 0.004 from the corner (100, 100) and ending 0.012 beyond it: not within
+    // the 0.01 snap of the corner, its free end lies past both rim lines, so only the corner splits it
+    const d = [Math.SQRT1_2, Math.SQRT1_2];
+    const n = [-Math.SQRT1_2, Math.SQRT1_2];
+    const end = [100 + 0.012 * d[0] + 0.004 * n[0], 100 + 0.012 * d[1] + 0.004 * n[1]];
+    const r = clean([...square(), [50 + 0.004 * n[0], 50 + 0.004 * n[1], end[0], end[1], 'V'], [0, 100, 50 + 0.004 * n[0], 50 + 0.004 * n[1], 'M'], [100, 0, 50 + 0.004 * n[0], 50 + 0.004 * n[1], 'M'], [0, 0, 50 + 0.004 * n[0], 50 + 0.004 * n[1], 'M']], 0.01);
+    expect(r.counts.stubsRemoved).toBe(1);
+    expect(r.messages.find((m) => m.code === 'stub-removed')!.where?.line).toBe(5);
+    const p = build(r).pattern!;
+    expect(p.panels).toHaveLength(4);
+    expect(p.interiorVertices).toHaveLength(1);
+  });
+
   it('the default snap is a fixed fraction of the drawing\'s diagonal', () => {
     const r = clean(square(300));
     expect(r.snap).toBeCloseTo(DEFAULT_SNAP_FRACTION * Math.hypot(300, 300), 12);

@@ -11,10 +11,11 @@
 //  5. every line is split at the vertices found on it; pieces drawn more than once (duplicates and
 //     collinear overlaps) are kept once, and pieces of different assignments that coincide are resolved
 //     (B over a crease, a crease over U) or refused (M over V, say);
-//  6. collinear pieces of one assignment meeting at a vertex of nothing else are joined into one edge.
-// A line that overshoots another by less than the snap is trimmed onto it in step 3, and one that stops
-// short of it is extended, so no dangling stub shorter than the snap survives; longer dangling lines are
-// left for the pattern checks, which refuse them with their place in the file.
+//  6. dangling stubs no longer than twice the snap are removed: a line that overshoots another by less than
+//     the snap is already trimmed in step 3, but one that overshoots a corner can leave a stub of up to
+//     about √2 times the snap between the corner and its free end; longer dangling lines are left for the
+//     pattern checks, which refuse them with their place in the file;
+//  7. collinear pieces of one assignment meeting at a vertex of nothing else are joined into one edge.
 import type { Assignment, Message, Where } from '../types';
 import { DUPLICATE_TOLERANCE } from './pattern';
 import { PointGrid, project, segmentGrid, type SegmentGrid, UnionFind } from './grids';
@@ -51,6 +52,8 @@ export interface CleanCounts {
   overlapsMerged: number;
   /** line ends trimmed or extended (along their line) onto a line they overshoot or stop short of */
   endsTrimmed: number;
+  /** dangling stubs (a free end) no longer than twice the snap removed */
+  stubsRemoved: number;
   /** vertices of two collinear pieces (and nothing else) removed, joining the pieces */
   collinearJoined: number;
   /** edges of the cleaned graph */
@@ -131,7 +134,7 @@ function addSplit(w: Work, s: number, v: number): void {
 export function cleanSegments(segments: DrawnSegment[], origins: Origin[], snapOption?: number): CleanResult {
   const messages: Message[] = [];
   const counts: CleanCounts = {
-    segments: segments.length, endsSnapped: 0, zeroLength: 0, tJunctions: 0, crossings: 0, duplicates: 0, overlapsMerged: 0, endsTrimmed: 0, collinearJoined: 0, edges: 0, vertices: 0,
+    segments: segments.length, endsSnapped: 0, zeroLength: 0, tJunctions: 0, crossings: 0, duplicates: 0, overlapsMerged: 0, endsTrimmed: 0, stubsRemoved: 0, collinearJoined: 0, edges: 0, vertices: 0,
   };
   const empty = (snap: number): CleanResult => ({ vertices: [], edges: [], assignments: [], sources: [], counts, snap, messages });
   let x0 = Infinity, y0 = Infinity, x1 = -Infinity, y1 = -Infinity;
@@ -170,7 +173,7 @@ export function cleanSegments(segments: DrawnSegment[], origins: Origin[], snapO
   splitAtCrossings(w, lines);
   const pieces = keepPiecesOnce(w);
   if (!pieces) return empty(snap);
-  const kept = joinCollinear(w, pieces);
+  const kept = joinCollinear(w, removeStubs(w, pieces));
   const result = compact(w, kept);
   report(w, snapOption === undefined);
   return { ...result, counts, snap, messages };
@@ -438,7 +441,36 @@ function keepPiecesOnce(w: Work): Piece[] | undefined {
   return errors ? undefined : order;
 }
 
-/** 6. Collinear pieces of one assignment meeting at a vertex of nothing else become one piece. */
+/** 6. Pieces with a free end, no longer than twice the snap, are removed (again at the end they leave free). */
+function removeStubs(w: Work, pieces: Piece[]): Piece[] {
+  const { vx, vy } = w;
+  const removed = new Uint8Array(pieces.length);
+  const incident: number[][] = vx.map(() => []);
+  pieces.forEach((p, k) => {
+    incident[p.u].push(k);
+    incident[p.v].push(k);
+  });
+  const live = (v: number) => incident[v].filter((k) => !removed[k]);
+  const queue: number[] = [];
+  for (let v = 0; v < vx.length; v++) if (incident[v].length === 1) queue.push(v);
+  while (queue.length) {
+    const v = queue.pop()!;
+    const here = live(v);
+    if (here.length !== 1) continue;
+    const p = pieces[here[0]];
+    if (Math.hypot(vx[p.u] - vx[p.v], vy[p.u] - vy[p.v]) > 2 * w.snap) continue;
+    removed[here[0]] = 1;
+    w.counts.stubsRemoved++;
+    if (w.counts.stubsRemoved <= LISTED) {
+      w.messages.push({ severity: 'info', code: 'stub-removed', text: `Removed a dangling stub of ${fmt(Math.hypot(vx[p.u] - vx[p.v], vy[p.u] - vy[p.v]))} at the end of ${w.textOf(p.from[0])}, no longer than twice the snap.`, where: w.whereOf(p.from[0]) });
+    }
+    const other = p.u === v ? p.v : p.u;
+    if (live(other).length === 1) queue.push(other);
+  }
+  return pieces.filter((_, k) => !removed[k]);
+}
+
+/** 7. Collinear pieces of one assignment meeting at a vertex of nothing else become one piece. */
 function joinCollinear(w: Work, pieces: Piece[]): Piece[] {
   const { vx, vy } = w;
   const removed = new Uint8Array(pieces.length);
@@ -514,6 +546,7 @@ function report(w: Work, defaultSnap: boolean): void {
   info('t-junctions-split', c.tJunctions, `Split lines at ${c.tJunctions} ${s(c.tJunctions, 'place')} where another line ends on them (T-junctions).`);
   info('duplicates-dropped', c.duplicates, `Dropped ${c.duplicates} ${s(c.duplicates, 'line')} drawn twice.`);
   info('overlaps-merged', c.overlapsMerged, `Merged ${c.overlapsMerged} collinear overlapping ${s(c.overlapsMerged, 'piece')} of different lines into one.`);
+  if (c.stubsRemoved > LISTED) info('stub-removed', c.stubsRemoved - LISTED, `… and ${c.stubsRemoved - LISTED} more dangling stubs removed.`);
   info('collinear-joined', c.collinearJoined, `Joined ${c.collinearJoined} ${s(c.collinearJoined, 'pair')} of collinear pieces of one crease or outline line into one edge.`);
 }
 
