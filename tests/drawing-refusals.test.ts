@@ -143,6 +143,10 @@ describe('SVG refusals name the element', () => {
     refusal(loadPatternText(svg('<use id="u" href="#missing"/>'), 'x.svg'), 'svg-bad-use');
     refusal(loadPatternText(svg('<g id="a"><use id="u" href="#a"/></g>'), 'x.svg'), 'svg-use-loop');
   });
+  it('groups nested deeper than any drawing needs are refused, not followed', () => {
+    const deep = '<g>'.repeat(600) + '<line x1="0" y1="0" x2="100" y2="100"/>' + '</g>'.repeat(600);
+    refusal(loadPatternText(svg(deep), 'x.svg'), 'svg-too-deep');
+  });
   it('lines of different assignments on top of each other: both elements named', () => {
     const m = refusal(loadPatternText(svg('<g id="mountain"><line id="m1" x1="0" y1="0" x2="100" y2="100"/></g><g id="valley"><line id="v1" x1="0" y1="0" x2="100" y2="100"/></g>'), 'x.svg'), 'overlap-conflict');
     expect(m.text).toMatch(/<line id="m1">.*\(M\) and <line id="v1">.*\(V\)/);

@@ -11,7 +11,7 @@
 // top side and its coordinates stay in the viewBox's range.
 import { DOMParser } from '@xmldom/xmldom';
 import type { Message, Where } from '../types';
-import { MAX_CREASES, MAX_TEXT_BYTES, utf8Length } from './limits';
+import { MAX_CREASES, MAX_NESTING, MAX_TEXT_BYTES, utf8Length } from './limits';
 import type { Drawing } from './drawing';
 import { cssColour } from './colour';
 
@@ -335,6 +335,8 @@ class SvgWalker {
   private refusals: Message[] = [];
   private notRead = new Map<string, { count: number; first: El }>();
   private produced = 0;
+  /** groups open around the element being read; deeper than MAX_NESTING is refused, not followed */
+  private depth = 0;
 
   constructor(
     private readonly drawing: Drawing,
@@ -471,7 +473,13 @@ class SvgWalker {
     }
     const own = (tag === 'g' || tag === 'svg' || tag === 'symbol') && el !== this.root ? groupNames(el) : [];
     const inner = own.length ? [...own, ...names] : names;
-    for (const c of Array.from(el.childNodes)) if (c.nodeType === 1) this.walk(c as unknown as El, m, style, inner, useDepth, false);
+    if (this.depth >= MAX_NESTING) return this.fail(el, 'svg-too-deep', `is nested more than ${MAX_NESTING} groups deep; no drawing needs that`);
+    this.depth++;
+    try {
+      for (const c of Array.from(el.childNodes)) if (c.nodeType === 1) this.walk(c as unknown as El, m, style, inner, useDepth, false);
+    } finally {
+      this.depth--;
+    }
   }
 
   private use(el: El, m: Affine, style: Inherited, names: string[], useDepth: number): void {
