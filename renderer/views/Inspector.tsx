@@ -12,12 +12,14 @@ export interface InspectorProps {
   crease: number;
   angleDeg: number;
   rate: number | null;
+  /** the drive the rate is against */
+  rateDrive?: string;
   onToggleDrive(index: number): void;
   onBasePanel(panel: number): void;
   onClose(): void;
 }
 
-export function Inspector({ pattern, project, crease, angleDeg, rate, onToggleDrive, onBasePanel, onClose }: InspectorProps) {
+export function Inspector({ pattern, project, crease, angleDeg, rate, rateDrive, onToggleDrive, onBasePanel, onClose }: InspectorProps) {
   const c = pattern.creases[crease];
   if (!c) return null;
   const label = creaseLabel(project, crease);
@@ -41,7 +43,7 @@ export function Inspector({ pattern, project, crease, angleDeg, rate, onToggleDr
         <dt>fold angle</dt>
         <dd data-testid="inspector-angle">{formatAngle(angleDeg, 3)}</dd>
         <dt>rate</dt>
-        <dd>{rate === null ? '–' : `${rate.toFixed(4)} °/°`}</dd>
+        <dd>{rate === null ? '–' : `${rate.toFixed(4)} °/°${rateDrive ? ` of ${rateDrive}` : ''}`}</dd>
         <dt>limits</dt>
         <dd>{minDeg === undefined && maxDeg === undefined ? 'none' : `${minDeg !== undefined ? formatAngle(minDeg, 1) : '−∞'} … ${maxDeg !== undefined ? formatAngle(maxDeg, 1) : '+∞'}`}</dd>
         <dt>length</dt>
