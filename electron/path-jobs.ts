@@ -9,6 +9,7 @@ import { flatBranches, type Branch, type BranchAnalysis } from '../solver/paths/
 import { DriveSpecSchema, SweepOptionsSchema, finiteOrNull, type BranchDto, type BranchesResultDto, type PathResultDto } from './contract';
 import { JobFailure, type JobContext } from './worker-protocol';
 import { patternFor, resolveOrFail, type JobState } from './jobs';
+import { matchesAssignment } from '../solver/search/solve';
 
 const DEG = 180 / Math.PI;
 const RAD = Math.PI / 180;
@@ -144,6 +145,30 @@ export function branchOfState(pattern: Pattern, drive: number, start: Float64Arr
   return b && Math.sign(b.tangent[drive]) === Math.sign(v) ? b : undefined;
 }
 
+/**
+ * The path passes through the state: a sample at the state's drive value holds the state's angles (every
+ * sample is an exact solve, so the two agree to the solver's tolerance when they are one branch).
+ */
+export function passesThrough(path: SweepResult, state: Float64Array): boolean {
+  const v = state[path.drive];
+  const at = path.samples.find((s) => Math.abs(s.drive - v) < 1e-12);
+  if (!at) {
+    // the state's value is not a sample: the nearest two bracket it, and the state lies between them
+    const k = path.samples.findIndex((s, i) => i > 0 && (s.drive - v) * (path.samples[i - 1].drive - v) < 0);
+    if (k < 0) return false;
+    const [a, b] = [path.samples[k - 1], path.samples[k]];
+    const t = (v - a.drive) / (b.drive - a.drive);
+    let worst = 0;
+    for (let c = 0; c < state.length; c++) worst = Math.max(worst, Math.abs(a.angles[c] + t * (b.angles[c] - a.angles[c]) - state[c]));
+    // a chord between neighbours is off the curve by about a tenth of their spread at most
+    let spread = 0;
+    for (let c = 0; c < state.length; c++) spread = Math.max(spread, Math.abs(b.angles[c] - a.angles[c]));
+    return worst <= 0.1 * spread + 1e-6;
+  }
+  for (let c = 0; c < state.length; c++) if (Math.abs(at.angles[c] - state[c]) > 1e-6) return false;
+  return true;
+}
+
 export function sweepJob(state: JobState, payload: unknown, ctx: JobContext): PathResultDto {
   const r = SweepRequest.safeParse(payload);
   if (!r.success) throw new JobFailure('bad-request', 'sweep: malformed request');
@@ -156,27 +181,41 @@ export function sweepJob(state: JobState, payload: unknown, ctx: JobContext): Pa
   }
   const samples = degreeSamples(o.fromDeg, o.toDeg, o.stepDeg);
   // a solution on a branch through flat, with the range on its side of flat: follow that branch from flat
-  let request = o;
-  if (o.startAnglesDeg && o.viaFlatBranch && held.drives.every((h) => h.value === 0)) {
-    const start = Float64Array.from(o.startAnglesDeg, (a) => a * RAD);
-    const d = drive.drives[0].crease;
-    const side = Math.sign(start[d]);
-    // the whole range on the state's side of flat (the flat state itself included)
-    if (side !== 0 && o.fromDeg * side >= 0 && o.toDeg * side >= 0) {
-      const b = branchOfState(pattern, d, start, new Set(held.drives.map((h) => h.crease)));
-      if (b) request = { ...o, startAnglesDeg: undefined, viaFlatBranch: undefined, branchId: String(b.id) };
-    }
-  }
-  const options: SweepOptions = {
+  // (found by the rays at flat on sheets small enough for the full analysis, else the branch that follows
+  // the assignment), and keep that path only if it passes through the solution
+  const hooks = { onProgress: (done: number, total: number) => ctx.progress(done, total), shouldStop: () => ctx.shouldStop() };
+  const base: SweepOptions = {
     drive: drive.drives[0].crease,
     from: o.fromDeg * RAD,
     to: o.toDeg * RAD,
     ...(samples ? { samples: samples.map((d) => d * RAD) } : { step: o.stepDeg * RAD }),
     holds: held.drives,
+  };
+  let request = o;
+  let result: SweepResult | undefined;
+  if (o.startAnglesDeg && o.viaFlatBranch && held.drives.every((h) => h.value === 0)) {
+    const start = Float64Array.from(o.startAnglesDeg, (a) => a * RAD);
+    const d = base.drive;
+    const side = Math.sign(start[d]);
+    // the whole range on the state's side of flat (the flat state itself included)
+    if (side !== 0 && o.fromDeg * side >= 0 && o.toDeg * side >= 0) {
+      const b = branchOfState(pattern, d, start, new Set(held.drives.map((h) => h.crease)));
+      if (b || matchesAssignment(pattern, start)) {
+        const flat = sweep(pattern, { ...base, ...(b ? { branch: b.id } : {}) }, hooks);
+        // a path stopped by the person stays stopped; one that misses the solution is not the solution's path
+        if (flat.status === 'stopped' || passesThrough(flat, start)) {
+          result = flat;
+          request = { ...o, startAnglesDeg: undefined, viaFlatBranch: undefined, ...(b ? { branchId: String(b.id) } : {}) };
+        }
+      }
+    }
+  }
+  const options: SweepOptions = {
+    ...base,
     ...(request.branchId !== undefined && /^\d+$/.test(request.branchId) ? { branch: Number(request.branchId) } : {}),
     ...(request.startAnglesDeg ? { start: Float64Array.from(request.startAnglesDeg, (a) => a * RAD) } : {}),
   };
-  const result = sweep(pattern, options, { onProgress: (done, total) => ctx.progress(done, total), shouldStop: () => ctx.shouldStop() });
+  result ??= sweep(pattern, options, hooks);
   if (result.status !== 'failed' && result.samples.length) state.paths.set(pathId, { key, driveCrease: result.drive, raw: result, request });
   const startKind = request.startAnglesDeg ? 'state' : held.drives.some((h) => h.value !== 0) ? 'solution' : 'flat';
   // a path from a given state is named by the flat ray it runs along, when it passes through flat

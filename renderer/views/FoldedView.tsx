@@ -103,9 +103,16 @@ export function FoldedView(props: FoldedViewProps) {
         {failed && <div className="scene-failed">{failed}</div>}
       </div>
       <div className="scene-key">
-        <span className="key-swatch key-base" /> base panel (held)
-        <span className={`key-swatch key-violating${violatingPanels.size ? ' is-used' : ''}`} /> <span className={violatingPanels.size ? 'key-used' : ''} data-testid="key-past-limit">past a hinge stop{violatingPanels.size ? ` (${violatingPanels.size} panels)` : ''}</span>
-        <span className="key-swatch key-under" /> underside
+        <span className="key-item">
+          <span className="key-swatch key-base" /> base panel (held)
+        </span>
+        <span className="key-item">
+          <span className="key-swatch key-violating" />
+          <span className={violatingPanels.size ? 'key-used' : ''} data-testid="key-past-limit">past a hinge stop{violatingPanels.size ? ` (${violatingPanels.size} panels)` : ''}</span>
+        </span>
+        <span className="key-item">
+          <span className="key-swatch key-under" /> underside
+        </span>
         {props.maxMismatch !== undefined && props.maxMismatch > 1e-6 && (
           <span className="mismatch" data-testid="mismatch" title="The panels do not close up: the largest distance between two placements of one vertex, reached through different panels">
             closure gap {props.maxMismatch.toPrecision(2)}{project.units ? ` ${project.units}` : ' (file units)'}

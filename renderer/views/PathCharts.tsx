@@ -69,20 +69,32 @@ export function clipMarks(values: number[], domain: [number, number]): { index: 
   return out;
 }
 
-/** End labels spread so they do not overlap: y positions pushed apart by at least `gap`. */
+/**
+ * End labels spread so they do not overlap: y positions in the same order, at least `gap` apart, within
+ * [lo, hi] (the gap shrinks when there are too many to fit).
+ */
 export function spreadLabels(ys: number[], gap: number, lo: number, hi: number): number[] {
   const order = ys.map((y, i) => ({ y, i })).sort((a, b) => a.y - b.y);
-  const placed: number[] = new Array(ys.length);
-  let last = -Infinity;
-  for (const o of order) {
-    const y = Math.max(o.y, last + gap, lo);
-    placed[o.i] = y;
-    last = y;
-  }
-  // pushed past the bottom: shift the run back up
-  const over = Math.max(0, last - hi);
-  if (over > 0) for (const o of order) placed[o.i] = Math.max(lo, placed[o.i] - over);
+  const n = order.length;
+  const g = n > 1 ? Math.min(gap, (hi - lo) / (n - 1)) : gap;
+  const p = order.map((o) => Math.max(lo, Math.min(hi, o.y)));
+  for (let k = 1; k < n; k++) p[k] = Math.max(p[k], p[k - 1] + g);
+  if (n) p[n - 1] = Math.min(p[n - 1], hi);
+  for (let k = n - 2; k >= 0; k--) p[k] = Math.min(p[k], p[k + 1] - g);
+  const placed: number[] = new Array(n);
+  order.forEach((o, k) => (placed[o.i] = p[k]));
   return placed;
+}
+
+/** A curve's value at its right end, on the side it arrives from (±180° are one rotation). */
+export function endValue(values: number[]): { i: number; v: number } | null {
+  for (let i = values.length - 1; i >= 0; i--) {
+    if (!Number.isFinite(values[i])) continue;
+    const prev = values.slice(0, i).reverse().find(Number.isFinite);
+    const v = prev !== undefined && Math.abs(values[i] - prev) > 180 ? Math.sign(prev) * Math.abs(values[i]) : values[i];
+    return { i, v };
+  }
+  return null;
 }
 
 interface ChartProps {
@@ -131,10 +143,7 @@ const ChartBody = memo(function ChartBody(p: ChartProps) {
         creases: g.creases,
         color: p.colors[k],
         label: p.labels[k],
-        end: (() => {
-          for (let i = g.values.length - 1; i >= 0; i--) if (Number.isFinite(g.values[i])) return { i, v: g.values[i] };
-          return null;
-        })(),
+        end: endValue(g.values),
       })),
     // xs and y follow from the path and the size
     [groups, width, height, dom[0], dom[1], p.colors, p.labels],
@@ -362,7 +371,8 @@ export function PathCharts({ path, project, selectedCrease, current, width, heig
   const rateGroups = useMemo(() => groupCurves(path, creases, 'rate'), [path, creases]);
   const rDomain = useMemo(() => rateDomain(rateGroups), [rateGroups]);
   const aDomain = useMemo(() => angleDomain(angleGroups), [angleGroups]);
-  const name = (g: CurveGroup) => `${creaseLabel(project, g.creases[0])}${g.creases.length > 1 ? ` +${g.creases.length - 1}` : ''}`;
+  const name = (g: CurveGroup) =>
+    g.creases.length === 2 ? `${creaseLabel(project, g.creases[0])}, ${creaseLabel(project, g.creases[1])}` : `${creaseLabel(project, g.creases[0])}${g.creases.length > 2 ? ` +${g.creases.length - 1}` : ''}`;
   const aLabels = useMemo(() => angleGroups.map(name), [angleGroups, project]);
   const rLabels = useMemo(() => rateGroups.map(name), [rateGroups, project]);
   const aColors = useMemo(() => angleGroups.map((g) => curveColor(project.source.assignments[g.creases[0]], g.values, 'angle')), [angleGroups, project]);
@@ -389,7 +399,7 @@ export function PathCharts({ path, project, selectedCrease, current, width, heig
     <div className="charts" ref={holder}>
       <div className="chart-caption">
         <span>
-          Hinge angles against drive {path.driveLabel}: {angleGroups.length} distinct {angleGroups.length === 1 ? 'curve' : 'curves'} for {creases.length} creases
+          Hinge angles (°) against drive {path.driveLabel}: {angleGroups.length} distinct {angleGroups.length === 1 ? 'curve' : 'curves'}, {creases.length} creases
         </span>
         {onExport && (
           <span className="chart-export">
@@ -404,14 +414,15 @@ export function PathCharts({ path, project, selectedCrease, current, width, heig
         hover={hover?.chart === 'angle' ? hover.h : null} onHover={(h) => setHover(h ? { chart: 'angle', h } : null)} readout={readout(angleGroups, aLabels)}
       />
       <div className="chart-caption">
-        <span>
-          Hinge rates, ° per ° of drive {path.driveLabel}; <span className="near-singular-key">shaded</span>: near-singular
-          {clipped.count > 0 && (
-            <span className="clipped-note" data-testid="clipped-note">
-              {' '}· ▲▼ {clipped.count} {clipped.count === 1 ? 'curve leaves' : 'curves leave'} the plot (|rate| up to {clipped.peak.toPrecision(3)} °/°)
-            </span>
-          )}
+        <span>Hinge rates (° per ° of {path.driveLabel})</span>
+        <span className="chip">
+          <span className="near-singular-key">shaded</span>: near-singular
         </span>
+        {clipped.count > 0 && (
+          <span className="clipped-note" data-testid="clipped-note" title="These curves leave the plot where the triangles are; their largest rate is given">
+            ▲▼ {clipped.count} off the plot, |rate| to {clipped.peak.toPrecision(3)}
+          </span>
+        )}
       </div>
       <Chart
         path={path} groups={rateGroups} labels={rLabels} colors={rColors} selectedCrease={selectedCrease} hovered={null} current={current} width={width} height={hR}

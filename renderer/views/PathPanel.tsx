@@ -101,8 +101,9 @@ function Summary({ result, origin }: { result: PathResultDto; origin: string }) 
 }
 
 function Outcome({ outcome, onFix }: { outcome: PathOutcome; onFix(id: PathFixId): void }) {
+  // a path that ended early keeps its charts: one line; one with no samples gets the room
   return (
-    <div className={`path-outcome tone-${outcome.tone}`} data-testid="path-outcome" role="status">
+    <div className={`path-outcome tone-${outcome.tone}${outcome.tone === 'note' ? ' is-compact' : ''}`} data-testid="path-outcome" role="status">
       <div>
         <strong>{outcome.headline}.</strong> <span data-testid="path-reason">{outcome.reason}</span>
       </div>

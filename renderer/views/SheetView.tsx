@@ -132,11 +132,13 @@ function LineKey({ dash, color, width = 2 }: { dash?: string; color: string; wid
 
 export function Legend() {
   const stops = [-180, -150, -120, -90, -60, -30, -15, 0, 15, 30, 60, 90, 120, 150, 180];
-  const W = 200;
+  const W = 196;
+  // room for the half of "−180°" that hangs past each end of the ramp
+  const PAD = 18;
   return (
     <div className="legend" aria-label="Colour code">
       <div className="legend-scale">
-        <svg width={W + 28} height="30" viewBox={`0 0 ${W + 28} 30`} role="img" aria-label="fold angle scale from mountain −180° through flat 0° to valley +180°">
+        <svg width={W + 2 * PAD} height="30" viewBox={`0 0 ${W + 2 * PAD} 30`} role="img" aria-label="fold angle scale from mountain −180° through flat 0° to valley +180°">
           <defs>
             <linearGradient id="tint-ramp" x1="0" x2="1" y1="0" y2="0">
               {stops.map((s) => (
@@ -144,9 +146,9 @@ export function Legend() {
               ))}
             </linearGradient>
           </defs>
-          <rect x="14" y="3" width={W} height="9" fill="url(#tint-ramp)" stroke="#77736a" strokeWidth="0.5" />
+          <rect x={PAD} y="3" width={W} height="9" fill="url(#tint-ramp)" stroke="#77736a" strokeWidth="0.5" />
           {[-180, -90, 0, 90, 180].map((s) => (
-            <g key={s} transform={`translate(${14 + ((s + 180) / 360) * W} 0)`}>
+            <g key={s} transform={`translate(${PAD + ((s + 180) / 360) * W} 0)`}>
               <line y1="12" y2="16" stroke="#55524b" />
               <text y="26" textAnchor="middle" className="legend-tick">
                 {s > 0 ? `+${s}` : s < 0 ? `−${-s}` : '0'}°
