@@ -97,7 +97,7 @@ export function statusInWords(result: SolveResultDto | undefined, driveCount: nu
       };
     case 'invalid': {
       const stop = result.messages.find((m) => m.code === 'drive-outside-limit');
-      if (stop) return { headline: 'Past a hinge stop', detail: `${stop.text} The last state within the stops stays on screen.`, tone: 'bad' };
+      if (stop) return { headline: 'Past a hinge stop', detail: `${stop.text} The last solved state stays on screen.`, tone: 'bad' };
       return { headline: 'Cannot solve', detail: firstError ?? 'The pattern or the drives have errors; see the messages.', tone: 'bad' };
     }
   }
@@ -133,12 +133,16 @@ export function shownState(state: AppState, creaseCount: number): ShownState {
   if (result && result.solutions.length && fits(result.solutions[0])) {
     const i = Math.min(state.selectedSolution, result.solutions.length - 1);
     const sol = result.solutions[i];
+    // a state on a continuum has no sensitivities: its rates are not defined there
+    if (sol.localDof > 0) return { anglesDeg: sol.anglesDeg, rates: null, source: 'solution', caption: `state ${i + 1} of ${result.solutions.length} found, on a family (${plural(sol.localDof, 'degree')} of freedom)`, solution: sol };
     return { anglesDeg: sol.anglesDeg, rates: ratesOf(sol, project, creaseCount, rateDrive), rateDrive, source: 'solution', caption: `solution ${i + 1} of ${result.solutions.length}`, solution: sol };
   }
   const last = state.solve.lastValid;
   if (last && last.result.solutions.length && fits(last.result.solutions[0])) {
     const sol = last.result.solutions[Math.min(last.selected, last.result.solutions.length - 1)];
-    return { anglesDeg: sol.anglesDeg, rates: ratesOf(sol, project, creaseCount, rateDrive), rateDrive, source: 'last-valid', caption: 'last state within the hinge stops', solution: sol };
+    const driveStop = !!result?.messages.some((m) => m.code === 'drive-outside-limit');
+    const caption = driveStop ? 'last solved state (a drive is now past its stop)' : 'last solved state (it is now past a hinge stop)';
+    return { anglesDeg: sol.anglesDeg, rates: ratesOf(sol, project, creaseCount, rateDrive), rateDrive, source: 'last-valid', caption, solution: sol };
   }
   if (result?.excluded?.length && fits(result.excluded[0])) {
     return { anglesDeg: result.excluded[0].anglesDeg, rates: null, source: 'excluded', caption: 'a state past a hinge stop (not a solution)', solution: result.excluded[0] };

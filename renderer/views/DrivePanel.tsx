@@ -165,7 +165,7 @@ export function DrivePanel(props: DrivePanelProps) {
           <dd data-testid="condition">{sol ? fmt(sol.condition, 1) : '–'}</dd>
         </div>
       </dl>
-      {result?.messages.filter((m) => m.severity !== 'info' && m.code !== 'drive-outside-limit' && m.code !== 'overspecified').slice(0, 4).map((m, i) => (
+      {result?.messages.filter((m) => m.severity !== 'info' && !['drive-outside-limit', 'overspecified', 'outside-hinge-limits', 'underspecified'].includes(m.code)).slice(0, 4).map((m, i) => (
         <p key={i} className={`message message-${m.severity}`}>
           {m.text}
         </p>

@@ -185,6 +185,24 @@ export function SolutionCards({ pattern, project, solutions, families = [], sear
           <input type="checkbox" checked={onlyMatching} onChange={(e) => setOnlyMatching(e.target.checked)} /> only the {matching} that follow the mountain/valley assignment
         </label>
       )}
+      {onFamilies > 0 && (
+        <p className="loose-states" data-testid="loose-states">
+          {onFamilies} {onFamilies === 1 ? 'state lies' : 'states lie'} on continua (local DOF above 0): members of families, not isolated solutions.
+          {suggestedDrives?.length && onAddDrive ? (
+            <>
+              {' '}Pin them down with a drive:{' '}
+              {suggestedDrives.slice(0, 3).map((l) => (
+                <button key={l} onClick={() => onAddDrive(l)}>
+                  drive {l}
+                </button>
+              ))}
+            </>
+          ) : null}{' '}
+          <button className="link-button" onClick={() => setShowLoose(!showLoose)}>
+            {showLoose ? 'hide them' : 'show them'}
+          </button>
+        </p>
+      )}
       <div className="cards" role="listbox" aria-label="Solutions for these drives">
         {families.map((f, k) => (
           <FamilyCard
@@ -216,24 +234,6 @@ export function SolutionCards({ pattern, project, solutions, families = [], sear
           </button>
         ))}
       </div>
-      {onFamilies > 0 && (
-        <p className="loose-states" data-testid="loose-states">
-          {onFamilies} {onFamilies === 1 ? 'state lies' : 'states lie'} on continua (local DOF above 0): members of families, not isolated solutions.
-          {suggestedDrives?.length && onAddDrive ? (
-            <>
-              {' '}Pin them down with a drive:{' '}
-              {suggestedDrives.slice(0, 3).map((l) => (
-                <button key={l} onClick={() => onAddDrive(l)}>
-                  drive {l}
-                </button>
-              ))}
-            </>
-          ) : null}{' '}
-          <button className="link-button" onClick={() => setShowLoose(!showLoose)}>
-            {showLoose ? 'hide them' : 'show them'}
-          </button>
-        </p>
-      )}
     </section>
   );
 }

@@ -378,7 +378,7 @@ export const workflowTests: E2ETest[] = [
         // the solver refuses the drive, naming its stops
         assert.equal(resolveDrives(pattern, [{ crease: 'c0', angleDeg: 175 }]).messages[0].code, 'drive-outside-limit');
         assert.match((await page.textContent('[data-crease=c0] [data-testid=drive-stops]')) ?? '', /past its stop/);
-        assert.match((await page.textContent('[data-testid=shape-caption]')) ?? '', /last state within the hinge stops/);
+        assert.match((await page.textContent('[data-testid=shape-caption]')) ?? '', /last solved state \(a drive is now past its stop\)/);
         await assertTableMatches(page, pattern, reference.solutions[k].angles, 'the last valid state');
         assert.equal(await page.textContent('[data-testid=sheet-dof]'), '1');
         await screenshot(page, 'past-stop-drive');

@@ -23,7 +23,7 @@ describe('status in words', () => {
     // a drive past its hinge stop says so and keeps the last state on screen
     const stop = statusInWords({ ...base, status: 'invalid', messages: [{ severity: 'error', code: 'drive-outside-limit', text: 'Drive 1: 175° for crease c0 (index 0) is outside its hinge limits 0° … 170°.' }] }, 1);
     expect(stop.headline).toBe('Past a hinge stop');
-    expect(stop.detail).toContain('last state within the stops');
+    expect(stop.detail).toContain('last solved state stays on screen');
     expect(statusInWords({ ...base, status: 'underspecified', patternDof: 3, suggestedDrives: ['d0'] }, 0).detail).toContain('No drive is set; the pattern has 3 degrees of freedom');
     const inc = statusInWords({ ...base, status: 'inconsistent', conflictingDrives: ['a', 'b'], worstVertices: [[7, Math.PI / 180]] }, 2);
     expect(inc.headline).toBe('Inconsistent');
