@@ -251,6 +251,7 @@ export function App({ controller }: { controller: Controller }) {
                 void controller.followRay(e, b);
               }}
               onExportChart={(format, svg, size) => void controller.exportChart(format, svg, size)}
+              onPickCrease={(i) => dispatch({ type: 'select-crease', index: i })}
             />
           </section>
           <aside className="right">

@@ -112,6 +112,8 @@ interface ChartProps {
   kind: 'angle' | 'rate';
   shadeNearSingular?: boolean;
   testId: string;
+  /** a click on a curve's end label picks its (first) crease */
+  onPick?(crease: number): void;
 }
 
 function xScale(path: PathResultDto, width: number) {
@@ -223,7 +225,12 @@ const ChartBody = memo(function ChartBody(p: ChartProps) {
       {labelled &&
         curves.map((c, i) =>
           c.end ? (
-            <text key={`l${i}`} x={width - MARGIN.r + 4} y={endYs[i] + 3} fontSize={9.5} fill={c.color === PALETTE.valley ? '#8a6200' : c.color} className="curve-label" fontWeight={i === emphasis ? 700 : 400}>
+            <text
+              key={`l${i}`} x={width - MARGIN.r + 4} y={endYs[i] + 3} fontSize={9.5} fill={c.color === PALETTE.valley ? '#8a6200' : c.color} className="curve-label" fontWeight={i === emphasis ? 700 : 400}
+              onPointerDown={(e) => e.stopPropagation()}
+              onClick={() => p.onPick?.(c.creases[0])}
+            >
+              <title>{`${c.label}: click to pick the crease`}</title>
               {c.label.length > 11 ? `${c.label.slice(0, 10)}…` : c.label}
             </text>
           ) : null,
@@ -358,11 +365,13 @@ export interface PathChartsProps {
   /** heights of the angle and rate charts (the panel fits them to its room) */
   heights?: { angle: number; rate: number };
   onScrub(index: number, done: boolean): void;
+  /** a curve's label was clicked: pick its crease */
+  onPickCrease?(crease: number): void;
   /** the charts as one stand-alone SVG, for the export buttons */
   onExport?(format: 'svg' | 'png', svg: string, size: { width: number; height: number }): void;
 }
 
-export function PathCharts({ path, project, selectedCrease, current, width, heights, onScrub, onExport }: PathChartsProps) {
+export function PathCharts({ path, project, selectedCrease, current, width, heights, onScrub, onPickCrease, onExport }: PathChartsProps) {
   const creases = useMemo(
     () => project.source.assignments.map((a, i) => (a === 'B' ? -1 : i)).filter((i) => i >= 0),
     [project.source.assignments],
@@ -410,7 +419,7 @@ export function PathCharts({ path, project, selectedCrease, current, width, heig
       </div>
       <Chart
         path={path} groups={angleGroups} labels={aLabels} colors={aColors} selectedCrease={selectedCrease} hovered={null} current={current} width={width} height={hA}
-        kind="angle" yLabel="fold angle (°)" xLabel={`drive ${path.driveLabel} (°)`} yDomain={aDomain} onScrub={onScrub} testId="angle-chart"
+        kind="angle" yLabel="fold angle (°)" xLabel={`drive ${path.driveLabel} (°)`} yDomain={aDomain} onScrub={onScrub} testId="angle-chart" onPick={onPickCrease}
         hover={hover?.chart === 'angle' ? hover.h : null} onHover={(h) => setHover(h ? { chart: 'angle', h } : null)} readout={readout(angleGroups, aLabels)}
       />
       <div className="chart-caption">
@@ -426,7 +435,7 @@ export function PathCharts({ path, project, selectedCrease, current, width, heig
       </div>
       <Chart
         path={path} groups={rateGroups} labels={rLabels} colors={rColors} selectedCrease={selectedCrease} hovered={null} current={current} width={width} height={hR}
-        kind="rate" yLabel="rate (°/°)" xLabel={`drive ${path.driveLabel} (°)`} yDomain={rDomain} shadeNearSingular onScrub={onScrub} testId="rate-chart"
+        kind="rate" yLabel="rate (°/°)" xLabel={`drive ${path.driveLabel} (°)`} yDomain={rDomain} shadeNearSingular onScrub={onScrub} testId="rate-chart" onPick={onPickCrease}
         hover={hover?.chart === 'rate' ? hover.h : null} onHover={(h) => setHover(h ? { chart: 'rate', h } : null)} readout={readout(rateGroups, rLabels)}
       />
     </div>

@@ -32,6 +32,7 @@ export interface PathPanelProps {
   onPickBranch(id: string): void;
   onFollowRay(event: PathEventDto, branch: BranchDto): void;
   onExportChart?(format: 'svg' | 'png', svg: string, size: { width: number; height: number }): void;
+  onPickCrease?(crease: number): void;
 }
 
 /** Size of an element, followed as it changes. */
@@ -186,7 +187,7 @@ export function PathPanel(props: PathPanelProps) {
   } else {
     body = result && result.samples.length ? (
       <>
-        <PathCharts path={result} project={project} selectedCrease={props.selectedCrease} current={current} width={size.width} heights={heights} onScrub={(i, done) => props.onScrub(i, done)} onExport={props.onExportChart} />
+        <PathCharts path={result} project={project} selectedCrease={props.selectedCrease} current={current} width={size.width} heights={heights} onScrub={(i, done) => props.onScrub(i, done)} onPickCrease={props.onPickCrease} onExport={props.onExportChart} />
         <div className="scrub">
           <input
             type="range"
