@@ -41,6 +41,8 @@ export const PatternSourceSchema = z.object({
   limits: z.array(optionalLimit).max(MAX_EDGES),
   faces: z.array(z.array(z.number().int().nonnegative())).max(MAX_EDGES).optional(),
   basePanel: z.number().int().nonnegative().optional(),
+  /** a name per panel, in panel order (undefined: known by its index) */
+  panelNames: z.array(optionalString).max(MAX_EDGES).optional(),
 });
 export type PatternSourceDto = z.output<typeof PatternSourceSchema>;
 

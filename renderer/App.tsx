@@ -10,7 +10,7 @@ import { canRedo, canUndo } from './state/history';
 import { isDirty } from './state/app';
 import { hingeRows, hingeTableCsv, shownState } from './state/display';
 import { pathOutcome } from './state/path-words';
-import { renameCrease, setBasePanel, setCreaseLimit, removeDrive, creaseIndexByLabel, limitDeg } from './state/document';
+import { renameCrease, setBasePanel, setCreaseLimit, setPanelName, removeDrive, creaseIndexByLabel, limitDeg, panelName } from './state/document';
 import { derivePattern, limitViolations, shapeFor } from './geometry';
 import { shortcutFor } from './shortcuts';
 import { SheetView, Legend } from './views/SheetView';
@@ -175,6 +175,7 @@ export function App({ controller }: { controller: Controller }) {
                 rateDrive={shown.rateDrive}
                 onToggleDrive={(i) => controller.toggleDrive(i)}
                 onBasePanel={(p) => controller.edit((pr) => setBasePanel(pr, p))}
+                onPanelName={(p, name) => controller.edit((pr) => setPanelName(pr, p, name))}
                 onClose={() => dispatch({ type: 'select-crease', index: null })}
               />
             )}
@@ -210,6 +211,7 @@ export function App({ controller }: { controller: Controller }) {
                   labels={state.view.labels}
                   fitRequest={state.view.fitRequest}
                   maxMismatch={mismatch}
+                  baseName={panelName(project, basePanel)}
                   onToggleGhost={() => dispatch({ type: 'toggle-ghost' })}
                   onToggleLabels={() => dispatch({ type: 'toggle-labels' })}
                   onFit={() => dispatch({ type: 'fit-view' })}

@@ -20,6 +20,8 @@ export interface FoldedViewProps {
   labels: boolean;
   fitRequest: number;
   maxMismatch?: number;
+  /** the base panel's name (or "panel k") */
+  baseName?: string;
   onToggleGhost(): void;
   onToggleLabels(): void;
   onFit(): void;
@@ -104,7 +106,7 @@ export function FoldedView(props: FoldedViewProps) {
       </div>
       <div className="scene-key">
         <span className="key-item">
-          <span className="key-swatch key-base" /> base panel (held)
+          <span className="key-swatch key-base" /> <span data-testid="key-base">base: {props.baseName ?? 'panel'} (held)</span>
         </span>
         <span className="key-item">
           <span className="key-swatch key-violating" />

@@ -467,3 +467,31 @@ export const workflowTests: E2ETest[] = [
     },
   },
 ];
+
+workflowTests.push({
+  name: 'a panel is named beside a crease, held as the base panel by its name, and saved with the project',
+  timeoutMs: 90_000,
+  async run(h) {
+    const { pattern } = loadSample('hinge-coupon.hingeplan.json');
+    await withSession(h, 'panel-names', { openSample: 'hinge-coupon.hingeplan.json' }, async ({ page, host, tmp }) => {
+      await waitSolved(page);
+      await page.click('.table-body .row[data-label=c1]');
+      const c1 = pattern.creases[pattern.labelIndex.get('c1')!];
+      const other = [c1.leftPanel, c1.rightPanel].find((p) => p >= 0 && p !== pattern.basePanel)!;
+      const field = page.getByLabel(`name of panel ${other}`);
+      await field.click();
+      await field.fill('mirror plate');
+      await field.press('Enter');
+      await page.click('button:has-text("Hold mirror plate")');
+      await page.waitForSelector('[data-testid=key-base]:has-text("mirror plate")');
+      const target = path.join(tmp, 'named.hingeplan.json');
+      host.saveAnswers.push(target);
+      await page.click('button:has-text("Save as…")');
+      await page.waitForFunction(() => !document.querySelector('[data-testid=doc-title]')?.textContent?.includes('edited'));
+      const saved = loadPatternText(await fs.readFile(target, 'utf8'), 'named.hingeplan.json');
+      assert.equal(saved.project!.source.basePanel, other);
+      assert.equal(saved.pattern!.panels[other].name, 'mirror plate');
+      await screenshot(page, 'panel-names');
+    });
+  },
+});
