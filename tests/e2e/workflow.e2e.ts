@@ -43,7 +43,8 @@ async function waitSolved(page: Page, timeout = 60_000): Promise<string> {
 async function waitPath(page: Page, timeout = 90_000): Promise<{ summary: string; outcome: string }> {
   await page.waitForFunction(() => !document.querySelector('[data-testid=path-progress]') && (document.querySelector('[data-testid=path-summary]') || document.querySelector('[data-testid=path-outcome]')), null, { timeout });
   return {
-    summary: (await page.locator('[data-testid=path-summary]').textContent().catch(() => '')) ?? '',
+    // (a path with no samples has no summary: do not wait for one)
+    summary: (await page.locator('[data-testid=path-summary]').count()) ? ((await page.textContent('[data-testid=path-summary]')) ?? '') : '',
     outcome: (await page.locator('[data-testid=path-outcome]').count()) ? ((await page.textContent('[data-testid=path-outcome]')) ?? '') : '',
   };
 }
