@@ -72,10 +72,10 @@ export function App({ controller }: { controller: Controller }) {
   const solutionOnScreen = useMemo(() => {
     const r = state.solve.result;
     if (!r) return null;
-    if (state.selectedFamily !== null && r.families[state.selectedFamily]) return `of family ${state.selectedFamily + 1}`;
+    if (state.selectedFamily !== null && r.families[state.selectedFamily]) return `the state of family ${state.selectedFamily + 1}`;
     if (!r.solutions.length) return null;
     const k = Math.min(state.selectedSolution, r.solutions.length - 1);
-    return `#${k + 1}${r.solutions[k].matchesAssignment ? ' (M/V)' : ''}`;
+    return `solution #${k + 1}${r.solutions[k].matchesAssignment ? ' (M/V)' : ''}`;
   }, [state.solve.result, state.selectedSolution, state.selectedFamily]);
   const [pathProblem, setPathProblem] = useState<string | null>(null);
   const addDriveAt = (label: string) => {

@@ -264,7 +264,7 @@ export function PathPanel(props: PathPanelProps) {
               else props.onForm({ start: 'flat', branchId: v.slice(5) || undefined });
             }}
           >
-            <option value="solution">{props.solutionOnScreen ? `solution ${props.solutionOnScreen}` : 'solution on screen (none)'}</option>
+            <option value="solution">{props.solutionOnScreen ?? 'solution on screen (none)'}</option>
             <option value="flat:">flat sheet, branch by M/V</option>
             {branches.result?.branches.map((b) => (
               <option key={b.id} value={`flat:${b.id}`}>

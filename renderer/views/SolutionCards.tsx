@@ -100,16 +100,20 @@ export interface SolutionCardsProps {
 /** Whether the list is proven to hold every state, in a few words and the solver's own note. */
 function SearchLine({ search, shown }: { search: SearchSummaryDto; shown: number }) {
   const capped = search.limit !== undefined && search.found >= search.limit;
+  // the verdict on one line; the solver's method and note (which can be long) open below it
   return (
-    <p className={`search-line ${search.complete ? 'is-complete' : 'is-open'}`} data-testid="search-summary" title={`${search.method}: ${search.note}`}>
-      {search.complete ? '✓ complete list' : capped ? `⚠ stopped at ${search.limit} states` : '⚠ not proven complete'}
+    <details className={`search-line ${search.complete ? 'is-complete' : 'is-open'}`} data-testid="search-summary">
+      <summary title={`${search.method}: ${search.note}`}>
+        {search.complete ? '✓ complete list' : capped ? `⚠ stopped at ${search.limit} states` : '⚠ not proven complete'}
+        <span className="search-note">
+          {shown !== search.found ? ` · ${search.found} states found` : ''} · how
+        </span>
+      </summary>
       <span className="search-note">
-        {' '}
-        · {search.method}
+        {search.method}
         {search.note ? `: ${search.note}` : ''}
-        {shown !== search.found ? ` (${search.found} states found)` : ''}
       </span>
-    </p>
+    </details>
   );
 }
 
@@ -122,37 +126,23 @@ export function directionWords(project: ProjectDto, direction: [number, number][
   return parts.length > max ? `${parts.slice(0, max).join(', ')} and ${parts.length - max} more` : parts.join(', ');
 }
 
-function FamilyCard({ family, index, project, pattern, basePanel, current, suggested, onSelect, onAddDrive }: {
-  family: FamilyDto; index: number; project: ProjectDto; pattern: Pattern; basePanel: number; current: boolean; suggested?: string[];
-  onSelect(i: number): void; onAddDrive?(label: string): void;
+function FamilyCard({ family, index, project, pattern, basePanel, current, onSelect }: {
+  family: FamilyDto; index: number; project: ProjectDto; pattern: Pattern; basePanel: number; current: boolean; onSelect(i: number): void;
 }) {
   return (
-    <div className={`card family${current ? ' is-current' : ''}`} data-testid="family-card" data-index={index}>
-      <button className="card-main" role="option" aria-selected={current} onClick={() => onSelect(index)}>
-        <Thumbnail pattern={pattern} anglesDeg={family.representative.anglesDeg} basePanel={basePanel} />
-        <span className="card-body">
-          <span className="card-title">
-            Family {index + 1} · {family.dof} DOF {family.matchesAssignment ? <span className="badge good">follows M/V</span> : <span className="badge">differs from M/V</span>}
+    <button className={`card family${current ? ' is-current' : ''}`} data-testid="family-card" data-index={index} role="option" aria-selected={current} onClick={() => onSelect(index)}>
+      <Thumbnail pattern={pattern} anglesDeg={family.representative.anglesDeg} basePanel={basePanel} />
+      <span className="card-body">
+        <span className="card-title">
+          Family {index + 1} · {family.dof} DOF {family.matchesAssignment ? <span className="badge good">follows M/V</span> : <span className="badge">differs from M/V</span>}
+        </span>
+        {family.directions.slice(0, 2).map((d, k) => (
+          <span key={k} className="card-numbers family-direction" title={directionWords(project, d, 1000)}>
+            moves along {directionWords(project, d, 3)}
           </span>
-          {family.directions.slice(0, 2).map((d, k) => (
-            <span key={k} className="card-numbers family-direction">
-              moves along {directionWords(project, d)}
-            </span>
-          ))}
-          <span className="card-numbers">a continuum, not one state: one of its states is drawn</span>
-        </span>
-      </button>
-      {suggested?.length && onAddDrive ? (
-        <span className="family-fix">
-          pin it down:
-          {suggested.slice(0, 3).map((l) => (
-            <button key={l} onClick={() => onAddDrive(l)} title={`Make ${l} a drive at its angle in this state`}>
-              drive {l}
-            </button>
-          ))}
-        </span>
-      ) : null}
-    </div>
+        ))}
+      </span>
+    </button>
   );
 }
 
@@ -203,11 +193,26 @@ export function SolutionCards({ pattern, project, solutions, families = [], sear
           </button>
         </p>
       )}
+      {families.length > 0 && (
+        <p className="family-note" data-testid="family-note">
+          {families.length === 1 ? 'A family is a continuum through the drive values, not one state; one of its states is drawn.' : 'Families are continua through the drive values, not single states; one state of each is drawn.'}
+          {suggestedDrives?.length && onAddDrive ? (
+            <>
+              {' '}Pin {families.length === 1 ? 'it' : 'them'} down:{' '}
+              {suggestedDrives.slice(0, 3).map((l) => (
+                <button key={l} onClick={() => onAddDrive(l)} title={`Make ${l} a drive at its angle in the state on screen`}>
+                  drive {l}
+                </button>
+              ))}
+            </>
+          ) : null}
+        </p>
+      )}
       <div className="cards" role="listbox" aria-label="Solutions for these drives">
         {families.map((f, k) => (
           <FamilyCard
             key={`f${k}`} family={f} index={k} project={project} pattern={pattern} basePanel={basePanel} current={active && selectedFamily === k}
-            suggested={suggestedDrives} onSelect={(i) => onSelectFamily?.(i)} onAddDrive={onAddDrive}
+            onSelect={(i) => onSelectFamily?.(i)}
           />
         ))}
         {order.map(({ s, i }) => (

@@ -45,16 +45,19 @@ describe('solutions panel', () => {
     expect(card.textContent).toContain('Family 1 · 1 DOF');
     expect(card.textContent).toContain('moves along c1 +0.71, c3 −0.70, c4 +0.05');
     expect(screen.queryAllByTestId('solution-card')).toHaveLength(0);
-    fireEvent.click(card.querySelector('.card-main')!);
+    fireEvent.click(card);
     expect(onFamily).toHaveBeenCalledWith(0);
     fireEvent.click(screen.getByText('drive c3'));
     expect(onAdd).toHaveBeenCalledWith('c3');
-    expect(screen.getByTestId('search-summary').textContent).toMatch(/not proven complete · homotopy/);
+    expect(screen.getByTestId('search-summary').querySelector('summary')!.textContent).toMatch(/^⚠ not proven complete/);
+    expect(screen.getByTestId('search-summary').textContent).toContain('homotopy from flat rays and multistart: a numerical search');
+    expect(screen.getByTestId('family-note').textContent).toContain('continuum through the drive values');
   });
 
   it('says when the list is complete, and when a cap stopped it', () => {
     const { rerender } = render(<SolutionCards pattern={pattern} project={project} solutions={[state(angles)]} search={{ complete: true, method: 'closed form (spherical four-bar)', found: 1, note: 'every state of a degree-4 vertex' }} selected={0} active basePanel={0} onSelect={() => {}} />);
-    expect(screen.getByTestId('search-summary').textContent).toMatch(/^✓ complete list · closed form/);
+    expect(screen.getByTestId('search-summary').querySelector('summary')!.textContent).toMatch(/^✓ complete list/);
+    expect(screen.getByTestId('search-summary').textContent).toContain('closed form (spherical four-bar): every state of a degree-4 vertex');
     rerender(<SolutionCards pattern={pattern} project={project} solutions={[state(angles)]} search={{ complete: false, method: 'vertex-by-vertex enumeration', found: 500, limit: 500, note: 'stopped at the cap' }} selected={0} active basePanel={0} onSelect={() => {}} />);
     expect(screen.getByTestId('search-summary').textContent).toMatch(/stopped at 500 states/);
   });
