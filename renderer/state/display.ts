@@ -58,7 +58,11 @@ export function statusInWords(result: SolveResultDto | undefined, driveCount: nu
         implied.length && implied.length < drives.length
           ? ` ${listLabels(implied)} ${implied.length === 1 ? 'follows' : 'follow'} from ${listLabels(free)}; remove ${implied.length === 1 ? 'it' : 'them'} or let ${implied.length === 1 ? 'it' : 'them'} follow.`
           : implied.length
-            ? ` Any ${plural(drives.length - result.patternDof, 'drive')} of ${listLabels(implied)} follows from the others; remove one.`
+            ? (() => {
+                const extra = Math.max(1, drives.length - result.patternDof);
+                const others = implied.length - extra === 1 ? 'the other' : 'the others';
+                return extra === 1 ? ` One of ${listLabels(implied)} follows from ${others}; remove one.` : ` ${extra} of ${listLabels(implied)} follow from ${others}; remove ${extra}.`;
+              })()
             : ' Remove a drive.';
       return {
         headline: 'Overspecified, consistent',

@@ -7,7 +7,7 @@ import { promises as fs, readFileSync } from 'node:fs';
 import path from 'node:path';
 import type { Page } from 'playwright-core';
 import { PNG } from 'pngjs';
-import { CAUTIONS, buildPattern, flatBranches, loadPatternText, miura, resolveDrives, solveDrives, sweep, waterbomb, type Pattern } from '../../solver';
+import { CAUTIONS, buildPattern, flatBranches, foldedShape, loadPatternText, miura, resolveDrives, solveDrives, sweep, waterbomb, type Pattern } from '../../solver';
 import { screenshot, SAMPLES, type AppSession, type Harness, type SessionOptions } from './harness';
 import type { E2ETest } from './app.e2e';
 
@@ -189,6 +189,9 @@ export const workflowTests: E2ETest[] = [
           await assertVisible(page, '[data-testid=compute-path]', `Compute path at ${size}`);
           await assertVisible(page, 'button[title^="Export tables"]', `Export at ${size}`);
           await assertFits(page, size);
+          // the 3D view's axis triad and a scale bar in the document's unit
+          assert.deepEqual(await page.$$eval('[data-testid=scene] .scene-overlay text', (ts) => ts.map((t) => t.textContent).slice(0, 3)), ['x', 'y', 'z']);
+          assert.match((await page.textContent('[data-testid=scene] .scale-text')) ?? '', /^\d+(\.\d+)? mm$/);
           await screenshot(page, `layout-${w}x${hgt}`);
         }
         // opening the branches does not push the charts away: they are a tab of the same area
@@ -267,6 +270,8 @@ export const workflowTests: E2ETest[] = [
         await newFromGenerator(page, host, 'Miura-ori sheet', { 'rows of cells': '3', 'columns of cells': '3' });
         await waitSolved(page);
         shown = await waitPath(page);
+        // the New dialog's unit of length (mm by default) is the document's
+        assert.match((await page.textContent('[data-testid=doc-title]')) ?? '', /, mm/);
         const drive = await page.getAttribute('[data-testid=drive-row]', 'data-crease');
         assert.equal(Number(await page.getByLabel(`angle of drive ${drive} in degrees`).inputValue()), -60);
         assert.equal(await page.getByLabel('path to, degrees').inputValue(), '-180');
@@ -302,6 +307,9 @@ export const workflowTests: E2ETest[] = [
         await newFromGenerator(page, host, 'waterbomb base', {});
         await waitSolved(page);
         const wb = waterbomb({}).project!;
+        // the midline halves are x0, x1, y0, y1: no label that reads as mountain on a crease held flat
+        const labels = await page.$$eval('[data-testid=hinge-table] .row', (els) => els.map((e) => e.getAttribute('data-label')));
+        assert.deepEqual(labels.filter((l) => /^[xy]/.test(l!)).sort(), ['x0', 'x1', 'y0', 'y1']);
         const wp = buildPattern(wb.source).pattern!;
         const wref = referenceSolve(wp, wb.drives);
         shown = await computeAndWait(page, () => page.click('[data-testid=compute-path]'));
@@ -357,6 +365,16 @@ export const workflowTests: E2ETest[] = [
         }
         await page.waitForSelector('[data-testid=shape-caption]:has-text("path sample 46")');
         await assertTableMatches(page, pattern, reference.solutions[1].angles, 'path sample at 45° from solution 2');
+        // hovering a curve reads out its crease, angle and rate at that drive value
+        const at = await page.evaluate(() => {
+          const curve = document.querySelector('[data-testid=angle-chart] path.curve') as SVGPathElement;
+          const p = curve.getPointAtLength(curve.getTotalLength() * 0.6);
+          const q = new DOMPoint(p.x, p.y).matrixTransform(curve.getScreenCTM()!);
+          return { x: q.x, y: q.y };
+        });
+        await page.mouse.move(at.x, at.y);
+        const readout = (await page.locator('[data-testid=chart-readout]').textContent({ timeout: 5000 })) ?? '';
+        assert.match(readout, /^\S+.* · -?\d+\.\d\d° · rate -?\d+\.\d{3} °\/° at c0 = \d+\.\d\d°$/);
         await screenshot(page, 'path-solution-2');
         shown = await computeAndWait(page, () => page.click('[data-testid=solution-card][data-index="0"]'));
         assert.match(shown.summary, new RegExp(`from solution #1 .*on branch ${names[0]!.replace('+', '\\+')}`));
@@ -493,6 +511,40 @@ workflowTests.push({
       assert.equal(saved.project!.source.basePanel, other);
       assert.equal(saved.pattern!.panels[other].name, 'mirror plate');
       await screenshot(page, 'panel-names');
+    });
+  },
+});
+
+workflowTests.push({
+  name: 'a crease made a drive keeps its full angle: an overspecified but consistent set is a note naming the implied drive; an inconsistent one shows the compromise and its gap in the document’s unit',
+  timeoutMs: 90_000,
+  async run(h) {
+    const { pattern } = loadSample('hinge-coupon.hingeplan.json');
+    await withSession(h, 'overspecified', { openSample: 'hinge-coupon.hingeplan.json' }, async ({ page }) => {
+      await waitSolved(page);
+      await page.click('.table-body .row[data-label=c1]');
+      await page.click('[data-testid=toggle-drive]');
+      await page.waitForSelector('[data-testid=drive-row][data-crease=c1]');
+      const status = await waitSolved(page);
+      const shownC1 = await page.evaluate(() => (window as unknown as { __hingeplan: { state: { doc: { history: { present: { drives: { crease: string; angleDeg: number }[] } } } } } }).__hingeplan.state.doc.history.present.drives.find((d) => d.crease === 'c1')!.angleDeg);
+      const reference = referenceSolve(pattern, [{ crease: 'c0', angleDeg: 45 }, { crease: 'c1', angleDeg: shownC1 }]);
+      assert.equal(reference.status, 'overspecified', 'the solver finds the two drives consistent');
+      assert.match(status, /Overspecified, consistent/);
+      assert.equal(await page.locator('[data-testid=solve-status].status-note').count(), 1, 'drawn as a note, not as an error');
+      // the drive the solver finds implied, or either of the two when it names both
+      const implied = reference.conflictingDrives!.map((c) => pattern.creases[c].label);
+      assert.match(status, implied.length === 1 ? new RegExp(`${implied[0]} follows from`) : /One of c0, c1 follows from the other/);
+      await screenshot(page, 'overspecified');
+      // a value that contradicts the other drive: the least-squares compromise, its gap with the unit
+      await setDriveField(page, 'c1', -30);
+      await page.waitForSelector('[data-testid=solve-status]:has-text("Inconsistent")');
+      const bad = referenceSolve(pattern, [{ crease: 'c0', angleDeg: 45 }, { crease: 'c1', angleDeg: -30 }]);
+      assert.equal(bad.status, 'inconsistent');
+      assert.match((await page.textContent('[data-testid=shape-caption]')) ?? '', /closest compromise/);
+      // the gap is the largest distance between two placements of one vertex of the compromise's shape
+      const gap = foldedShape(pattern, bad.compromise!.angles, pattern.basePanel).maxMismatch;
+      assert.equal(await page.textContent('[data-testid=mismatch]'), `closure gap ${gap.toPrecision(2)} mm`);
+      await screenshot(page, 'inconsistent');
     });
   },
 });

@@ -20,6 +20,7 @@ describe('status in words', () => {
     const over = statusInWords({ ...base, status: 'overspecified', patternDof: 1, conflictingDrives: ['c1'] }, 2, ['c0', 'c1']);
     expect(over).toMatchObject({ headline: 'Overspecified, consistent', tone: 'note' });
     expect(over.detail).toContain('c1 follows from c0');
+    expect(statusInWords({ ...base, status: 'overspecified', patternDof: 1, conflictingDrives: ['c0', 'c1'] }, 2, ['c0', 'c1']).detail).toContain('One of c0, c1 follows from the other; remove one.');
     // a drive past its hinge stop says so and keeps the last state on screen
     const stop = statusInWords({ ...base, status: 'invalid', messages: [{ severity: 'error', code: 'drive-outside-limit', text: 'Drive 1: 175° for crease c0 (index 0) is outside its hinge limits 0° … 170°.' }] }, 1);
     expect(stop.headline).toBe('Past a hinge stop');
