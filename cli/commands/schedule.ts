@@ -7,7 +7,7 @@ import { scheduleSteps, type HingeLimits, type ProfileKind, type ScheduleOptions
 import { scheduleTable } from '../../solver/outputs/table';
 import { findCrease } from '../../solver/model/pattern';
 import {
-  creaseOption, EXIT_INTERRUPTED, holdsOption, intOrUndefined, printSolverMessages, runResponsive, tableHeader, writeOutput, joinNegativeNumbers,
+  creaseOption, EXIT_INTERRUPTED, holdsOption, intOrUndefined, printSolverMessages, runResponsive, startOption, tableHeader, writeOutput, joinNegativeNumbers,
   checksOption, checksOptions, checksHook, CHECKS_HELP,
 } from './path-common';
 import { finishChecks } from '../../solver/outputs/path-physics';
@@ -34,7 +34,7 @@ export const scheduleCommand: Command = {
                           [--profile constant|trapezoid|s-curve] [--accel-time <s> | --accel <deg/s²>]
                           [--jerk-time <s>] [--dt <s> | --rows <n>] [--max-rate <deg/s>] [--max-accel <deg/s²>]
                           [--limit <crease>=<deg/s>[:<deg/s²>] …] [--hold <crease>=<deg> …]
-                          [--branch <id> | --solution <k>] [--format csv|json] [--out <file>]
+                          [--branch <id> | --solution <k> | --start <file>] [--format csv|json] [--out <file>]
                           [--contact on|off] [--clearance <length>] [--stop-at contact]
                           [--areal-density <kg/m²>] [--gravity gx,gy,gz] [--spring <crease>=<N·m/rad>[:<rest>] …]
 
@@ -55,7 +55,7 @@ Profiles (symmetric start and stop; Δ = |to − from|, T = --time):
   --dt <s> | --rows <n>  time step between rows (default: 101 rows); the last row is at exactly T.
   --max-rate, --max-accel   limits for every hinge (deg/s, deg/s²).
   --limit <crease>=<rate>[:<accel>]   a limit for one hinge (overrides the global ones); repeat.
-  --hold, --branch, --solution, --progress, --out   as for \`hingeplan sweep\`.
+  --hold, --branch, --solution, --start, --progress, --out   as for \`hingeplan sweep\`.
 ${CHECKS_HELP}
                          A contact column (1 at and past the first contact) and, with loads, a torque column
                          per drive ("torque:<crease>", N·m) follow the flags; the header gives the peaks.
@@ -72,7 +72,7 @@ over a limit; 2 invalid input; 130 stopped by Ctrl-C (the rows computed are writ
       profile: { type: 'string' }, 'accel-time': { type: 'string' }, accel: { type: 'string' }, 'jerk-time': { type: 'string' },
       dt: { type: 'string' }, rows: { type: 'string' }, 'max-rate': { type: 'string' }, 'max-accel': { type: 'string' },
       limit: { type: 'string', multiple: true }, hold: { type: 'string', multiple: true }, branch: { type: 'string' },
-      solution: { type: 'string' }, format: { type: 'string' }, out: { type: 'string' }, progress: { type: 'boolean' },
+      solution: { type: 'string' }, start: { type: 'string' }, format: { type: 'string' }, out: { type: 'string' }, progress: { type: 'boolean' },
       ...checksOptions,
     };
     const { values, positionals } = parseCommandArgs(joinNegativeNumbers(argv, spec), spec);
@@ -92,6 +92,8 @@ over a limit; 2 invalid input; 130 stopped by Ctrl-C (the rows computed are writ
     const from = numberOption(values.from as string | undefined, 'from');
     const to = numberOption(values.to as string | undefined, 'to');
     for (const [v, n] of [[from, 'from'], [to, 'to']] as const) if (Math.abs(v) > 180) throw new UsageError(`--${n} must be within −180 … 180 degrees, got ${v}`);
+    const start = startOption(io, pattern, values.start as string | undefined);
+    if (start === null) return EXIT.usage;
     const duration = numberOption(values.time as string | undefined, 'time');
     if (!(duration > 0)) throw new UsageError(`--time must be a positive number of seconds, got ${duration}`);
     const hingeLimits = new Map<number, HingeLimits>();
@@ -120,6 +122,7 @@ over a limit; 2 invalid input; 130 stopped by Ctrl-C (the rows computed are writ
       holds,
       branch: intOrUndefined(values.branch, 'branch'),
       solution: intOrUndefined(values.solution, 'solution'),
+      ...(start ? { start } : {}),
       limits: global,
       hingeLimits: new Map([...hingeLimits].map(([c, l]) => [c, { ...global, ...l }])),
     };
