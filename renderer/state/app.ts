@@ -93,7 +93,7 @@ export interface PathForm {
 }
 
 /** Tabs of the path area; other panels (drive torque, tolerance) add theirs here. */
-export type PathTab = 'charts' | 'events' | 'branches';
+export type PathTab = 'charts' | 'events' | 'branches' | 'torque';
 
 export interface BranchState {
   status: JobStatus;

@@ -28,10 +28,10 @@ export function ContactControls(p: ContactControlsProps) {
 export function ContactNote({ result }: { result: PathResultDto }) {
   if (!result.contact) return null;
   const e = result.events.find((x) => x.type === 'contact');
-  if (!result.contact.checked) return <p className="hint" data-testid="contact-note">Contact was not checked on this path.</p>;
+  if (!result.contact.checked) return <span className="contact-note" data-testid="contact-note">contact not checked</span>;
   return (
-    <p className={e ? 'message message-warning' : 'hint'} data-testid="contact-note">
-      {e ? `✱ ${e.text}` : `No panels meet along this path${result.contact.clearance > 0 ? ` or come closer than ${result.contact.clearance}` : ''}.`}
-    </p>
+    <span className={e ? 'contact-note has-contact' : 'contact-note'} data-testid="contact-note" title={e?.text}>
+      {e ? `✱ ${e.text}` : `no panels meet${result.contact.clearance > 0 ? ` or come within ${result.contact.clearance}` : ''}`}
+    </span>
   );
 }

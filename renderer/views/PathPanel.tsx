@@ -170,13 +170,20 @@ export function PathPanel(props: PathPanelProps) {
     { id: 'charts', title: 'Angles and rates' },
     { id: 'events', title: `Events${result ? ` (${result.events.length})` : ''}` },
     { id: 'branches', title: 'Branches at flat' },
+    { id: 'torque', title: 'Drive torque' },
   ];
   const startValue = form.start === 'solution' ? 'solution' : `flat:${form.branchId ?? ''}`;
   // the room left for the two charts: captions, the scrub row and the axes' labels come off the top
   const chartRoom = Math.max(160, size.height - 18 * 2 - 30);
   const heights = { angle: Math.round(chartRoom * 0.54), rate: chartRoom - Math.round(chartRoom * 0.54) };
   let body: ReactNode;
-  if (tab === 'events') body = result ? <EventList result={result} onFollowRay={props.onFollowRay} /> : <p className="hint">Compute a path to see its events.</p>;
+  if (tab === 'torque') {
+    body = result && result.samples.some((x) => x.torque?.length) ? (
+      <TorqueChart path={result} labels={project.source.labels.map((l, i) => l ?? String(i))} width={size.width} current={current} />
+    ) : (
+      <p className="hint">The static holding torque of every drive appears here when the document has loads (an areal density, panel masses or springs in its “loads”) and a path is computed.</p>
+    );
+  } else if (tab === 'events') body = result ? <EventList result={result} onFollowRay={props.onFollowRay} /> : <p className="hint">Compute a path to see its events.</p>;
   else if (tab === 'branches') {
     body =
       branches.status === 'done' && branches.result ? (
@@ -189,9 +196,7 @@ export function PathPanel(props: PathPanelProps) {
   } else {
     body = result && result.samples.length ? (
       <>
-        <ContactNote result={result} />
         <PathCharts path={result} project={project} selectedCrease={props.selectedCrease} current={current} width={size.width} heights={heights} onScrub={(i, done) => props.onScrub(i, done)} onPickCrease={props.onPickCrease} onExport={props.onExportChart} />
-        <TorqueChart path={result} labels={project.source.labels.map((l, i) => l ?? String(i))} width={size.width} current={current} />
         <div className="scrub">
           <input
             type="range"
@@ -300,6 +305,7 @@ export function PathPanel(props: PathPanelProps) {
         {!running && path.status === 'error' && <span className="path-note bad">The path failed: {path.error}</span>}
         {props.problem && <span className="message message-error">{props.problem}</span>}
         {result && result.samples.length > 0 && path.status !== 'error' && <Summary result={result} origin={originWords(path.origin, result)} />}
+        {result && !running && <ContactNote result={result} />}
         {branchPoints > 0 && tab === 'charts' && (
           <button className="link-button" onClick={() => props.onTab('events')}>
             ◆ leave a branch point…

@@ -74,15 +74,17 @@ export const contactTests: E2ETest[] = [
         // before the contact nothing is marked
         await page.locator('[data-testid=scrub]').fill('50');
         await page.waitForFunction(() => !document.querySelector('[data-testid=contact-count]'), null, { timeout: 20_000 });
-        // the torque chart with each drive's peak as the solver gives it
+        // the torque chart (its own tab) with each drive's peak as the solver gives it
+        await page.click('[data-testid=tab-torque]');
         await page.waitForSelector('[data-testid=torque-chart]');
         for (const [crease, label] of [[c1, 'c1'], [c2, 'c2']] as const) {
           const peak = result.checks!.peakTorque!.get(crease)!;
           const shown = (await page.textContent(`[data-testid=torque-peak-${label}]`)) ?? '';
           assert.ok(shown.includes(`peak ${+peak.value.toPrecision(4)} N·m at ${(peak.at / RAD).toFixed(1)}°`), `${label}: ${shown}`);
         }
-        await page.locator('[data-testid=scrub]').fill(String(past));
         await screenshot(page, 'contact-torque');
+        await page.click('[data-testid=tab-charts]');
+        await page.locator('[data-testid=scrub]').fill(String(past));
         // a solution with the flaps through each other (c1 = 150°, past the first contact) is marked too
         const field = page.getByLabel('angle of drive c1 in degrees');
         await field.click();
