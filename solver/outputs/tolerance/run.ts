@@ -4,7 +4,7 @@
 // can spread the sheets over threads: every sheet depends only on the seed and its index, and statistics
 // are taken over the first n sheets in index order, so the result does not depend on how the work was split.
 
-import type { Message, Pattern } from '../../types';
+import type { Drive, Message, Pattern } from '../../types';
 import { createSweep, type SweepOptions, type SweepResult, type SweepHooks } from '../../paths/sweep';
 import { SheetSolver, type SheetResult, type ToleranceSetup } from './sheet';
 import { sheetStatistics, type ToleranceStatistics } from './stats';
@@ -40,12 +40,15 @@ export interface ToleranceResult {
   /** the perturbation model in words */
   model: string;
   drive: number;
+  holds: Drive[];
   /** drive values analysed (radians): those the nominal path reached */
   at: number[];
   /** the free creases reported, crease indices */
   hinges: number[];
   /** pattern vertex of each closure block (the vertex order of shares) */
   blockVertex: number[];
+  /** each block's reach (file units): a residual of r radians there counts as a gap of r × reach */
+  reach: number[];
   nominalPath?: SweepResult;
   statistics?: ToleranceStatistics;
   linear?: LinearEstimate;
@@ -122,9 +125,11 @@ export function toleranceResult(
     tolerance: options.tolerance,
     model: solver?.model.description ?? '',
     drive: options.path.drive,
+    holds: options.path.holds ?? [],
     at: solver?.setup.at ?? [],
     hinges: solver ? Array.from(solver.hinges) : [],
     blockVertex: solver ? Array.from(solver.nominalSys.blockVertex) : [],
+    reach: solver ? Array.from(solver.reach) : [],
     nominalPath: sweep,
     singular: linear?.singular.slice() ?? [],
     effort: { iterations: 0, factorizations: 0, fallbacks: 0 },
@@ -201,7 +206,7 @@ export function* toleranceSteps(pattern: Pattern, options: ToleranceOptions, hoo
 function failed(options: ToleranceOptions, code: string, text: string, sweep?: SweepResult): ToleranceResult {
   return {
     status: 'failed', requested: options.samples, seed: options.seed, tolerance: options.tolerance, model: '', drive: options.path.drive,
-    at: [], hinges: [], blockVertex: [], nominalPath: sweep, singular: [], effort: { iterations: 0, factorizations: 0, fallbacks: 0 },
+    holds: options.path.holds ?? [], at: [], hinges: [], blockVertex: [], reach: [], nominalPath: sweep, singular: [], effort: { iterations: 0, factorizations: 0, fallbacks: 0 },
     messages: [...(sweep?.messages ?? []), { severity: 'error', code, text }],
   };
 }

@@ -255,6 +255,10 @@ export class SheetSolver {
     let fresh = false;
     let factored = false;
     let previous = Infinity;
+    // the tolerance scales with the sheet's deviation from nominal (taken at the start: it hardly changes)
+    let deviation = 0;
+    for (let a = 0; a < uc.length; a++) deviation = Math.max(deviation, Math.abs(x[uc[a]] - nominal[uc[a]]));
+    const tolerance = Math.max(ABSOLUTE_STEP, RELATIVE_STEP * deviation);
     for (let it = 0; it < MAX_NEWTON; it++) {
       this.gradient(grad);
       if (!factored) { this.factorHessian(); out.factorizations++; factored = fresh = true; }
@@ -270,9 +274,6 @@ export class SheetSolver {
         step = 0;
         for (let a = 0; a < delta.length; a++) step = Math.max(step, Math.abs(delta[a]));
       }
-      let deviation = 0;
-      for (let a = 0; a < uc.length; a++) deviation = Math.max(deviation, Math.abs(x[uc[a]] - nominal[uc[a]]));
-      const tolerance = Math.max(ABSOLUTE_STEP, RELATIVE_STEP * deviation);
       if (step <= tolerance) return true;
       if (!(step < STEP_LIMIT)) return false;
       for (let a = 0; a < delta.length; a++) x[uc[a]] -= delta[a];
