@@ -122,7 +122,7 @@ function humanText(r: ToleranceResult, loaded: Loaded, units: string): string {
     out.push(`vertices contributing most to the misfit: ${worst.map((v) => `${v.vertex} at (${pattern.vertices[v.vertex].map((x) => +x.toFixed(3)).join(', ')}) ${(100 * v.share).toFixed(1)}%`).join('; ')}`);
   }
   const lm = r.at.map((_, j) => linearMisfit(r, j)).filter((x) => x);
-  if (lm.length) out.push(`first-order misfit (rms at the worst vertex): ${lm.map((m) => fmt(m!.rms, 3)).join(', ')} rad`);
+  if (lm.some((m) => m!.rms > 1e-12)) out.push(`first-order misfit (rms at the worst vertex): ${lm.map((m) => fmt(m!.rms, 3)).join(', ')} rad`);
   out.push('(every hinge, percentile and drive value: use --json or --csv)');
   out.push(CAUTIONS);
   return out.join('\n') + '\n';

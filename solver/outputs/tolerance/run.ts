@@ -14,8 +14,11 @@ import { STREAM_PERIOD, type ToleranceSpec } from './perturbation';
 const DEG = 180 / Math.PI;
 /** More sheets than this are refused (the statistics keep every sheet's angles in memory). */
 export const MAX_TOLERANCE_SAMPLES = 1_000_000;
-/** Kept angles (sheets × drive values × hinges) above this many are refused: 8 bytes each, about 2 GiB. */
-export const MAX_KEPT_ANGLES = 256 * 1024 * 1024;
+/**
+ * Kept values (sheets × drive values × (hinges + vertices): every sheet's angles and vertex shares) above this
+ * many are refused: 8 bytes each, 2 GiB.
+ */
+export const MAX_KEPT_VALUES = 256 * 1024 * 1024;
 
 export interface ToleranceOptions {
   /** the nominal path as for sweep: drive, the drive values (samples, from, to), holds, branch, solution, start, method */
@@ -97,9 +100,10 @@ export function checkToleranceSize(solver: SheetSolver, options: ToleranceOption
   if (options.samples * solver.model.draws >= STREAM_PERIOD) {
     return `${options.samples} sheets of ${solver.model.draws} random numbers each exceed the random stream's period (2³²); ask for fewer samples.`;
   }
-  const kept = options.samples * solver.setup.at.length * Math.max(1, solver.hinges.length);
-  if (kept > MAX_KEPT_ANGLES) {
-    return `${options.samples} sheets × ${solver.setup.at.length} drive values × ${solver.hinges.length} hinges is more angles than the statistics keep (${MAX_KEPT_ANGLES}); ask for fewer samples or drive values.`;
+  const perDrive = solver.hinges.length + solver.nominalSys.blockCount;
+  const kept = options.samples * solver.setup.at.length * Math.max(1, perDrive);
+  if (kept > MAX_KEPT_VALUES) {
+    return `${options.samples} sheets × ${solver.setup.at.length} drive values × (${solver.hinges.length} hinges + ${solver.nominalSys.blockCount} vertices) is more values than the statistics keep (${MAX_KEPT_VALUES}, 8 bytes each); ask for fewer samples or drive values.`;
   }
   return undefined;
 }

@@ -70,6 +70,10 @@ const STEP_LIMIT = 0.2;
  */
 export const RELATIVE_STEP = 1e-9;
 const ABSOLUTE_STEP = 1e-14;
+/** Below this largest residual (radians) a sheet is taken to be closing, and polished to CLOSES_AS_IS. */
+const NEARLY_CLOSED = 1e-8;
+/** Steps this small that no longer shrink are rounding noise (radians). */
+const ROUNDING_STEP = 1e-12;
 /** A state whose largest residual is at most this closes as it is (radians; the sweep polishes to the same). */
 const CLOSES_AS_IS = 1e-13;
 const MAX_NEWTON = 30;
@@ -226,16 +230,18 @@ export class SheetSolver {
 
   /** Solve the sheet at drive value j from x (in place). False when it does not settle or leaves the branch. */
   private solveAt(j: number, x: Float64Array, out: SheetResult): boolean {
-    if (this.problem.evaluate(x, true) <= CLOSES_AS_IS) return true;
+    const worst = this.problem.evaluate(x, true);
+    if (worst <= CLOSES_AS_IS) return true;
     const start = Float64Array.from(x);
-    if (this.newton(j, x, out) && this.onBranch(j, x)) return true;
+    if (this.newton(j, x, out, worst) && this.onBranch(j, x)) return true;
     // the general solve from the same start, then Newton from its result
     out.fallbacks++;
     const lsq = this.problem.solve(start, { maxStep: 0.05, maxIterations: 100, polishTolerance: CLOSES_AS_IS, wrap: false });
     out.iterations += lsq.iterations;
     x.set(lsq.angles);
-    if (this.problem.evaluate(x, true) <= CLOSES_AS_IS) return this.onBranch(j, x);
-    return this.newton(j, x, out) && this.onBranch(j, x);
+    const after = this.problem.evaluate(x, true);
+    if (after <= CLOSES_AS_IS) return this.onBranch(j, x);
+    return this.newton(j, x, out, after) && this.onBranch(j, x);
   }
 
   private onBranch(j: number, x: Float64Array): boolean {
@@ -245,10 +251,12 @@ export class SheetSolver {
   }
 
   /**
-   * Newton on ½Σ|r|² from x (in place; the problem holds r and J at x). Settled when the next step is below
-   * the tolerance: x is then reported as it is, with the residuals of its last evaluation.
+   * Newton on ½Σ|r|² from x (in place; the problem holds r and J at x, whose largest residual is `worst`).
+   * Settled when the next step is below the tolerance: x is then reported as it is, with the residuals of its
+   * last evaluation. A sheet that is about to close is polished until it does (a relative tolerance there
+   * could leave a closing sheet's residual above the closure test on a large deviation).
    */
-  private newton(j: number, x: Float64Array, out: SheetResult): boolean {
+  private newton(j: number, x: Float64Array, out: SheetResult, worst: number): boolean {
     const { problem, grad, delta, env } = this;
     const uc = problem.unknownCreases;
     const nominal = this.setup.nominal[j];
@@ -258,8 +266,9 @@ export class SheetSolver {
     // the tolerance scales with the sheet's deviation from nominal (taken at the start: it hardly changes)
     let deviation = 0;
     for (let a = 0; a < uc.length; a++) deviation = Math.max(deviation, Math.abs(x[uc[a]] - nominal[uc[a]]));
-    const tolerance = Math.max(ABSOLUTE_STEP, RELATIVE_STEP * deviation);
+    const relative = Math.max(ABSOLUTE_STEP, RELATIVE_STEP * deviation);
     for (let it = 0; it < MAX_NEWTON; it++) {
+      const tolerance = worst <= NEARLY_CLOSED ? ABSOLUTE_STEP : relative;
       this.gradient(grad);
       if (!factored) { this.factorHessian(); out.factorizations++; factored = fresh = true; }
       env.solve(delta, grad);
@@ -275,6 +284,8 @@ export class SheetSolver {
         for (let a = 0; a < delta.length; a++) step = Math.max(step, Math.abs(delta[a]));
       }
       if (step <= tolerance) return true;
+      // at rounding level the steps stop shrinking: that is as close as the iteration gets
+      if (step <= ROUNDING_STEP && step > 0.5 * previous) return true;
       if (!(step < STEP_LIMIT)) return false;
       for (let a = 0; a < delta.length; a++) x[uc[a]] -= delta[a];
       out.iterations++;
@@ -283,8 +294,9 @@ export class SheetSolver {
       const next = Number.isFinite(previous) ? step * Math.min(1, NEXT_STEP_MARGIN * (step / previous)) : step;
       previous = step;
       fresh = false;
-      if (next <= tolerance) { problem.evaluate(x, false); return true; }
-      if (problem.evaluate(x, true) <= CLOSES_AS_IS) return true;
+      if (next <= tolerance && worst > NEARLY_CLOSED) { problem.evaluate(x, false); return true; }
+      worst = problem.evaluate(x, true);
+      if (worst <= CLOSES_AS_IS) return true;
     }
     return false;
   }
