@@ -139,7 +139,7 @@ describe('hingeplan tolerance', () => {
     const out = join(dir, 'partial.json');
     let handler: (() => void) | undefined;
     let err = '';
-    const r = await run(['tolerance', big, '--drive', 'z5_5', '--from', '-10', '--to', '-90', '--step', '10', '--position-tol', '0.1', '--samples', '2000', '--workers', '2', '--json', '--out', out, '--progress'], {
+    const r = await run(['tolerance', big, '--drive', 'z5_5', '--from', '-10', '--to', '-90', '--step', '10', '--position-tol', '0.1', '--samples', '2000', '--workers', '1', '--json', '--out', out, '--progress'], {
       onInterrupt: (h) => { handler = h; return () => { handler = undefined; }; },
       stderr: (t) => { err += t; const m = /tolerance: (\d+)\/2000 sheets/.exec(t); if (m && Number(m[1]) >= 8) handler?.(); },
     });
