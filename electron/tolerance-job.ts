@@ -19,7 +19,8 @@ const ToleranceRequest = z.object({ key: z.string(), options: ToleranceOptionsSc
 const nullable = (x: number) => (Number.isFinite(x) ? x : null);
 const deg = (x: number) => (Number.isFinite(x) ? x * DEG : null);
 
-export function toleranceDto(pattern: Pattern, r: ToleranceResult): ToleranceResultDto {
+/** `requestedDeg`: the drive values as asked for, so the answer names them exactly (not as degrees → radians → degrees). */
+export function toleranceDto(pattern: Pattern, r: ToleranceResult, requestedDeg: number[] = []): ToleranceResultDto {
   const st = r.statistics;
   const spreads = (list: { p05: number; p50: number; p95: number; max: number }[] | undefined) =>
     (list ?? []).map((s) => ({ p05: nullable(s.p05), p50: nullable(s.p50), p95: nullable(s.p95), max: nullable(s.max) }));
@@ -27,7 +28,7 @@ export function toleranceDto(pattern: Pattern, r: ToleranceResult): ToleranceRes
     driveCrease: r.drive,
     driveLabel: pattern.creases[r.drive]?.label ?? String(r.drive),
     ...(r.nominalPath?.branch ? { branchName: `${r.nominalPath.branch.id ?? ''} ${r.nominalPath.branch.name}`.trim() } : {}),
-    atDeg: r.at.map((a) => a * DEG),
+    atDeg: r.at.map((a) => requestedDeg.find((d) => Math.abs(d * RAD - a) <= 1e-12) ?? a * DEG),
     samples: st?.samples ?? 0,
     requested: r.requested,
     seed: r.seed,
@@ -89,5 +90,5 @@ export function toleranceJob(state: JobState, payload: unknown, ctx: JobContext)
     onProgress: (done, total) => ctx.progress(done, total, 'sheets'),
     shouldStop: () => ctx.shouldStop(),
   }));
-  return toleranceDto(pattern, result);
+  return toleranceDto(pattern, result, samples);
 }

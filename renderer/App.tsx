@@ -18,6 +18,7 @@ import { SolutionCards } from './views/SolutionCards';
 import { HingeTable } from './views/HingeTable';
 import { Inspector } from './views/Inspector';
 import { PathPanel } from './views/PathPanel';
+import { TolerancePanel } from './views/TolerancePanel';
 import { NewDialog, ExportDialog } from './views/Dialogs';
 import { Notices } from './views/Notices';
 
@@ -73,6 +74,7 @@ export function App({ controller }: { controller: Controller }) {
   }, [controller]);
 
   const basePanel = project?.source.basePanel ?? pattern?.basePanel ?? 0;
+  const [bottomTab, setBottomTab] = useState<'path' | 'tolerance'>('path');
   const selected = state.selectedCrease;
 
   return (
@@ -148,6 +150,7 @@ export function App({ controller }: { controller: Controller }) {
                   selectedCrease={selected}
                   hoverCrease={state.hoverCrease}
                   violatingPanels={violations.panels}
+                  marks={bottomTab === 'tolerance' ? state.tolerance.result?.worstVertices : undefined}
                   onHover={(i) => dispatch({ type: 'hover-crease', index: i })}
                   onSelect={(i) => dispatch({ type: 'select-crease', index: i })}
                 />
@@ -171,6 +174,24 @@ export function App({ controller }: { controller: Controller }) {
                 />
               </div>
             </div>
+            <div className="bottom-tabs" role="tablist" aria-label="Path or tolerance">
+              <button role="tab" aria-selected={bottomTab === 'path'} className={bottomTab === 'path' ? 'is-current' : ''} onClick={() => setBottomTab('path')}>Path</button>
+              <button role="tab" aria-selected={bottomTab === 'tolerance'} className={bottomTab === 'tolerance' ? 'is-current' : ''} onClick={() => setBottomTab('tolerance')} data-testid="tolerance-tab">
+                Tolerance{state.tolerance.status === 'running' ? ' …' : ''}
+              </button>
+            </div>
+            {bottomTab === 'tolerance' ? (
+              <TolerancePanel
+                project={project}
+                pattern={pattern}
+                tolerance={state.tolerance}
+                selectedCrease={selected}
+                defaults={{ drive: state.path.drive, fromDeg: controller.pathDefaults.fromDeg, toDeg: controller.pathDefaults.toDeg }}
+                onRun={(r) => void controller.runTolerance(r)}
+                onCancel={() => void controller.cancelTolerance()}
+                onChoose={(creases) => dispatch({ type: 'tolerance-choose', creases })}
+              />
+            ) : (
             <PathPanel
               project={project}
               path={state.path}
@@ -187,6 +208,7 @@ export function App({ controller }: { controller: Controller }) {
               onLoadBranches={() => void controller.loadBranches()}
               onFollowRay={(e, b) => void controller.followRay(e, b)}
             />
+            )}
           </section>
           <aside className="right">
             {selected !== null && pattern.creases[selected] && (

@@ -3,9 +3,10 @@
 // tests whose names contain one of the words.
 import { Harness } from './harness';
 import { e2eTests } from './app.e2e';
+import { toleranceTests } from './tolerance.e2e';
 
 const words = process.argv.slice(2).map((w) => w.toLowerCase());
-const chosen = e2eTests.filter((t) => !words.length || words.some((w) => t.name.toLowerCase().includes(w)));
+const chosen = [...e2eTests, ...toleranceTests].filter((t) => !words.length || words.some((w) => t.name.toLowerCase().includes(w)));
 
 function withTimeout<T>(p: Promise<T>, ms: number, name: string): Promise<T> {
   let timer: ReturnType<typeof setTimeout>;

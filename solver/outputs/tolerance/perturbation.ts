@@ -105,7 +105,7 @@ export function sheetPerturbation(pattern: Pattern, sys: ClosureSystem, spec: To
     vertices: moved,
     variance,
     description: [
-      radius > 0 ? `vertex positions uniform in a circle of diameter ${2 * radius} (file units) around nominal, every vertex independent` : '',
+      radius > 0 ? `vertex positions uniform in a circle of diameter ${2 * radius} around nominal, every vertex independent` : '',
       tau > 0 ? `sector angles uniform within ±${(tau * 180) / Math.PI}° of nominal, every panel corner independent` : '',
     ].filter(Boolean).join('; ') || 'no perturbation',
     draw(rand, out) {
