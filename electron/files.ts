@@ -6,6 +6,7 @@ import path from 'node:path';
 import { randomBytes } from 'node:crypto';
 import { z } from 'zod';
 import { RecentFileSchema, RecoveryEntrySchema, ProjectSchema, type ProjectDto, type RecoveryEntry } from './contract';
+import { decodeDxf } from '../solver/formats/dxf-text';
 
 /** Files larger than this are refused before reading: a pattern file of this size is almost surely not one. */
 export const MAX_OPEN_BYTES = 256 * 1024 * 1024;
@@ -21,6 +22,8 @@ export async function readTextFile(filePath: string): Promise<ReadOutcome> {
       return { ok: false, code: 'file-too-large', message: `${name} is ${(stat.size / 1e6).toFixed(0)} MB; the limit is ${MAX_OPEN_BYTES / 1e6} MB` };
     }
     const bytes = await fs.readFile(filePath);
+    // a DXF from before AutoCAD 2007 is in a Windows code page, not UTF-8
+    if (/\.dxf$/i.test(filePath)) return { ok: true, text: decodeDxf(bytes).text };
     const text = new TextDecoder('utf-8', { fatal: true }).decode(bytes);
     return { ok: true, text: text.charCodeAt(0) === 0xfeff ? text.slice(1) : text };
   } catch (err) {
