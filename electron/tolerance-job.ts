@@ -1,10 +1,11 @@
-// The tolerance job of the worker: the same analysis as `hingeplan tolerance` (one thread here: the worker's
-// lane), with progress per sheet and cancel through the job context, turned into a contract value.
+// The tolerance job of the worker: the analysis of `hingeplan tolerance` along the path on screen (the one the
+// sweep job computed and keeps here, so the sheets follow exactly its branch), one thread (the worker's lane),
+// with progress per sheet and cancel through the job context, turned into a contract value.
 
 import { z } from 'zod';
 import type { Pattern } from '../solver/types';
-import { runSteps } from '../solver/paths/sweep';
-import { toleranceSteps, type ToleranceOptions, type ToleranceResult } from '../solver/outputs/tolerance/run';
+import { runSteps, type SweepResult } from '../solver/paths/sweep';
+import { setupFromPath, sheetSteps, type ToleranceOptions, type ToleranceResult } from '../solver/outputs/tolerance/run';
 import { linearMisfit, worstVertices } from '../solver/outputs/tolerance/table';
 import { ToleranceOptionsSchema, type ToleranceResultDto } from './contract';
 import { JobFailure, type JobContext } from './worker-protocol';
@@ -27,7 +28,7 @@ export function toleranceDto(pattern: Pattern, r: ToleranceResult, requestedDeg:
   return {
     driveCrease: r.drive,
     driveLabel: pattern.creases[r.drive]?.label ?? String(r.drive),
-    ...(r.nominalPath?.branch ? { branchName: `${r.nominalPath.branch.id ?? ''} ${r.nominalPath.branch.name}`.trim() } : {}),
+    ...(r.nominalPath?.branch ? { branchName: r.nominalPath.branch.id !== undefined ? `branch ${r.nominalPath.branch.name}` : r.nominalPath.branch.text || r.nominalPath.branch.name } : {}),
     atDeg: r.at.map((a) => requestedDeg.find((d) => Math.abs(d * RAD - a) <= 1e-12) ?? a * DEG),
     samples: st?.samples ?? 0,
     requested: r.requested,
@@ -57,38 +58,45 @@ export function toleranceDto(pattern: Pattern, r: ToleranceResult, requestedDeg:
   };
 }
 
+/**
+ * Indices of the path's samples about `everyDeg` of drive apart: the first, then each sample at least
+ * everyDeg (less a hair) past the last one taken, and the last sample always.
+ */
+export function everySamples(drivesDeg: number[], everyDeg: number): number[] {
+  if (!drivesDeg.length) return [];
+  const out = [0];
+  for (let i = 1; i < drivesDeg.length; i++) {
+    if (Math.abs(drivesDeg[i] - drivesDeg[out[out.length - 1]]) >= everyDeg - 1e-9) out.push(i);
+  }
+  if (out[out.length - 1] !== drivesDeg.length - 1) out.push(drivesDeg.length - 1);
+  return out;
+}
+
+/** The tolerance analysis along the path on screen (kept in this worker by the sweep that computed it). */
 export function toleranceJob(state: JobState, payload: unknown, ctx: JobContext): ToleranceResultDto {
   const r = ToleranceRequest.safeParse(payload);
   if (!r.success) throw new JobFailure('bad-request', 'tolerance: malformed request');
   const { key, options: o } = r.data;
   const pattern = patternFor(state, key);
-  const drive = resolveOrFail(pattern, [{ crease: o.drive, angleDeg: o.fromDeg }]);
-  const held = resolveOrFail(pattern, o.held);
-  const empty = (messages: ToleranceResultDto['messages']): ToleranceResultDto => ({
-    driveCrease: -1, driveLabel: o.drive, atDeg: [], samples: 0, requested: o.samples, seed: o.seed, status: 'failed', model: '',
-    hinges: [], misfit: [], gap: [], linearMisfit: [], rigidFraction: [], lost: [], worstVertices: [], messages,
-  });
-  if (drive.failed || held.failed) return empty([...drive.messages, ...held.messages]);
-  const samples = degreeSamples(o.fromDeg, o.toDeg, o.stepDeg);
-  if (!samples) return empty([{ severity: 'error', code: 'too-many-samples', text: 'The step gives more drive values than a path takes; use a larger step.' }]);
+  const stored = state.paths.get(o.pathId);
+  if (!stored || stored.key !== key) throw new JobFailure('path-unknown', 'The path the sheets should follow is no longer known to the solver; compute the path again.');
+  const sweep = stored.raw as SweepResult;
+  const held = resolveOrFail(pattern, stored.request.held);
+  const drivesDeg = sweep.samples.map((s) => s.drive * DEG);
+  const indices = everySamples(drivesDeg, o.everyDeg);
   const options: ToleranceOptions = {
-    path: {
-      drive: drive.drives[0].crease,
-      from: o.fromDeg * RAD,
-      to: o.toDeg * RAD,
-      samples: samples.map((d) => d * RAD),
-      holds: held.drives,
-      ...(o.branchId !== undefined && /^\d+$/.test(o.branchId) ? { branch: Number(o.branchId) } : {}),
-      ...(o.startAnglesDeg ? { start: Float64Array.from(o.startAnglesDeg, (a) => a * RAD) } : {}),
-      conditionEvery: 0,
-    },
+    path: { drive: sweep.drive, from: sweep.samples[0]?.drive ?? 0, to: sweep.samples.at(-1)?.drive ?? 0, holds: held.drives },
     tolerance: { position: o.positionTol, sector: o.sectorTolDeg * RAD },
     samples: o.samples,
     seed: o.seed,
   };
-  const result = runSteps(toleranceSteps(pattern, options, {
+  const setup = setupFromPath(sweep, options, indices);
+  if (!setup) throw new JobFailure('path-empty', 'The path has no samples for the sheets to follow.');
+  const result = runSteps(sheetSteps(pattern, options, sweep, setup, {
     onProgress: (done, total) => ctx.progress(done, total, 'sheets'),
     shouldStop: () => ctx.shouldStop(),
   }));
-  return toleranceDto(pattern, result, samples);
+  // the drive values as the path's samples were asked for (degrees), not as degrees → radians → degrees
+  const asked = degreeSamples(stored.request.fromDeg, stored.request.toDeg, stored.request.stepDeg) ?? [];
+  return toleranceDto(pattern, result, asked);
 }

@@ -71,15 +71,15 @@ export const FanChart = memo(function FanChart({ hinge, atDeg, width, height, dr
   const y = scaleLinear().domain([-big, big]).range([height - M.b, M.t]).nice();
   return (
     <svg width={width} height={height} className="fan-chart" data-testid="fan-chart" data-crease={hinge.label} role="img" aria-label={`spread of ${hinge.label} along ${driveLabel}`}>
-      <text x={4} y={12} className="chart-title">{hinge.label}, ° from nominal</text>
+      <text x={4} y={12} fontSize={11} fontWeight={600} fill={TOLERANCE_LOOK.label} fontFamily={TOLERANCE_LOOK.font}>{hinge.label}, ° from nominal</text>
       {ticks(y, 4).map((t) => (
         <g key={t}>
           <line x1={M.l} x2={width - M.r} y1={y(t)} y2={y(t)} stroke={t === 0 ? TOLERANCE_LOOK.zero : TOLERANCE_LOOK.grid} />
-          <text x={M.l - 4} y={y(t) + 3} textAnchor="end" className="chart-tick">{fmt(t)}</text>
+          <text x={M.l - 4} y={y(t) + 3} textAnchor="end" fontSize={10} fill={TOLERANCE_LOOK.tick} fontFamily={TOLERANCE_LOOK.font}>{fmt(t)}</text>
         </g>
       ))}
       {driveTicks(x, width).map((t) => (
-        <text key={t} x={x(t)} y={height - 6} textAnchor={x(t) > width - M.r - 12 ? 'end' : 'middle'} className="chart-tick">{t}°</text>
+        <text key={t} x={x(t)} y={height - 6} textAnchor={x(t) > width - M.r - 12 ? 'end' : 'middle'} fontSize={10} fill={TOLERANCE_LOOK.tick} fontFamily={TOLERANCE_LOOK.font}>{t}°</text>
       ))}
       <path d={band(xs, lo, hi, y)} fill={color} fillOpacity={0.28} stroke="none" data-testid="fan-band" />
       <path d={line(xs, mid, y)} fill="none" stroke={color} strokeWidth={1.6} data-testid="fan-median" />
@@ -105,15 +105,15 @@ export const MisfitChart = memo(function MisfitChart({ result, width, height }: 
   const y = scaleLinear().domain([0, top]).range([height - M.b, M.t]).nice();
   return (
     <svg width={width} height={height} className="misfit-chart" data-testid="misfit-chart" role="img" aria-label={`misfit along ${result.driveLabel}`}>
-      <text x={4} y={12} className="chart-title">misfit, largest vertex residual (rad)</text>
+      <text x={4} y={12} fontSize={11} fontWeight={600} fill={TOLERANCE_LOOK.label} fontFamily={TOLERANCE_LOOK.font}>misfit, largest vertex residual (rad)</text>
       {ticks(y, 4).map((t) => (
         <g key={t}>
           <line x1={M.l} x2={width - M.r} y1={y(t)} y2={y(t)} stroke={TOLERANCE_LOOK.grid} />
-          <text x={M.l - 4} y={y(t) + 3} textAnchor="end" className="chart-tick">{fmt(t)}</text>
+          <text x={M.l - 4} y={y(t) + 3} textAnchor="end" fontSize={10} fill={TOLERANCE_LOOK.tick} fontFamily={TOLERANCE_LOOK.font}>{fmt(t)}</text>
         </g>
       ))}
       {driveTicks(x, width).map((t) => (
-        <text key={t} x={x(t)} y={height - 6} textAnchor={x(t) > width - M.r - 12 ? 'end' : 'middle'} className="chart-tick">{t}°</text>
+        <text key={t} x={x(t)} y={height - 6} textAnchor={x(t) > width - M.r - 12 ? 'end' : 'middle'} fontSize={10} fill={TOLERANCE_LOOK.tick} fontFamily={TOLERANCE_LOOK.font}>{t}°</text>
       ))}
       <path d={band(xs, p50, max, y)} fill={TOLERANCE_LOOK.misfit} fillOpacity={0.12} stroke="none" />
       <path d={line(xs, max, y)} fill="none" stroke={TOLERANCE_LOOK.misfit} strokeWidth={1} data-testid="misfit-max" />

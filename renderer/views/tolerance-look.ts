@@ -1,20 +1,20 @@
-// The colours of the tolerance panel's roles. Hinge bands take the sheet's own fold-angle scale (a mountain
-// hinge in the mountain colour, a valley in the valley colour), so a chart reads like the sheet; the misfit
-// and the worst vertices share one colour of their own, away from the scale, from the drive highlight and
-// from the past-limit red, so a marked vertex is never read as a fold angle or a broken stop.
-import { tintScale } from '../state/display';
+// The colours of the tolerance tab, from the palette: hinge bands on the sheet's fold-angle scale (a mountain
+// hinge in the mountain colour, a valley in the valley colour), so a chart reads like the sheet; the misfit and
+// the rings at its worst vertices in the palette's misfit role; first-order estimates dotted in ink.
+import { PALETTE, angleColor } from '../palette';
 
 export const TOLERANCE_LOOK = {
-  /** misfit curve, worst-vertex rings and their legend */
-  misfit: '#7a2f86',
-  /** first-order estimates: dotted, in ink grey */
+  misfit: PALETTE.misfit,
   linear: '#4a473f',
   grid: '#e6e2d9',
   zero: '#a8a295',
+  tick: '#5f5b53',
+  label: '#4a473f',
+  font: "'DejaVu Sans', sans-serif",
 } as const;
 
 /** The band colour of a hinge: its side of the fold-angle scale, from its assignment or its nominal fold. */
 export function hingeColor(assignment: string | undefined, nominalDeg: number | null): string {
   const side = assignment === 'M' ? -1 : assignment === 'V' ? 1 : Math.sign(nominalDeg ?? 0) || 1;
-  return tintScale(side * 150);
+  return angleColor(side * 150);
 }

@@ -66,7 +66,7 @@ export interface SweepOptions {
   method?: 'auto' | SweepMethod;
   /** hinge curvature d²ρ/dθ² per sample (needed for hinge accelerations); default false */
   curvature?: boolean;
-  /** evaluate the condition number every k samples, 0 for never (default: see defaultConditionEvery) */
+  /** evaluate the condition number every k samples and at the last, Infinity for the last only, 0 for never (default: see defaultConditionEvery) */
   conditionEvery?: number;
   /** analyse the rays at branch points found (default true) */
   analyzeBranches?: boolean;
@@ -124,11 +124,12 @@ export interface SweepHooks {
 
 /**
  * Samples between condition-number evaluations by default: every sample up to 400 free creases, one in ⌈n/100⌉
- * up to 4000, and none above (0): an evaluation costs a normal-matrix factorization and a few eigen-iterations,
- * far more than a propagated sample on a large sheet. Ask for them with conditionEvery.
+ * up to 4000 (and the last), and above that the last sample only (Infinity): an evaluation costs a
+ * normal-matrix factorization and a few eigen-iterations, far more than a propagated sample on a large sheet.
+ * Ask for more with conditionEvery; 0 evaluates none.
  */
 export function defaultConditionEvery(unknowns: number): number {
-  return unknowns <= 400 ? 1 : unknowns <= 4000 ? Math.ceil(unknowns / 100) : 0;
+  return unknowns <= 400 ? 1 : unknowns <= 4000 ? Math.ceil(unknowns / 100) : Infinity;
 }
 
 /** The requested drive values from → to every `step` (the end value included, also when the step does not divide). */
@@ -237,8 +238,8 @@ export class SweepRun {
     this.targets = o.samples ? [...o.samples] : sampleValues(o.from, o.to, o.step ?? 1 / DEG);
     this.total = this.targets.length;
     this.conditionEvery = Math.max(0, Math.round(o.conditionEvery ?? defaultConditionEvery(this.n)));
-    if (this.conditionEvery === 0 && o.conditionEvery === undefined) {
-      this.messages.push({ severity: 'info', code: 'condition-not-evaluated', text: `With ${this.n} free creases the condition number is not evaluated by default (each evaluation costs a factorization); ask for it every k samples with the condition option. Near-singular flags come from the vertices' own pivots.` });
+    if (this.conditionEvery === Infinity) {
+      this.messages.push({ severity: 'info', code: 'condition-last-only', text: `With ${this.n} free creases the condition number is evaluated at the last sample only by default (each evaluation costs a factorization); ask for it every k samples with the condition option. Near-singular flags come from every vertex's own pivots at every sample.` });
     }
     const problem = this.validate();
     if (problem) {
@@ -1129,7 +1130,7 @@ export class SweepRun {
     const k = this.samples.length;
     const lastOne = this.nextTarget === this.targets.length - 1;
     if (this.conditionEvery === 0) return undefined;
-    if (k % this.conditionEvery !== 0 && !lastOne) return undefined;
+    if (!lastOne && (this.conditionEvery === Infinity || k % this.conditionEvery !== 0)) return undefined;
     // an underdetermined path: the free creases' Jacobian is singular by construction
     if (this.nsCurve && this.nsCurve.damping > 0) return undefined;
     let tracker: ConditionTracker;

@@ -33,6 +33,44 @@ async function waitSolved(page: Page): Promise<void> {
   }, null, { timeout: 90_000 });
 }
 
+/** Compute the path of the path form and wait until it is done (a new request that is no longer running). */
+async function computePath(page: Page, range: { from: string; to: string; step: string }) {
+  await fillForm(page, { 'path from, degrees': range.from, 'path to, degrees': range.to, 'path step, degrees': range.step });
+  const before = await page.evaluate(() => (window as unknown as { __hingeplan: { state: { path: { requestId?: string } } } }).__hingeplan.state.path.requestId ?? '');
+  await page.click('[data-testid=compute-path]');
+  await page.waitForFunction((b) => {
+    const s = (window as unknown as { __hingeplan: { state: { path: { requestId?: string; status: string } } } }).__hingeplan.state.path;
+    return s.requestId !== b && s.status !== 'running';
+  }, before, { timeout: 120_000 });
+  await page.waitForSelector('[data-testid=path-summary]', { timeout: 30_000 });
+}
+
+/** The element lies inside the window and nothing covers its centre. */
+async function assertVisible(page: Page, selector: string, what: string) {
+  const r = await page.evaluate((sel) => {
+    const el = document.querySelector(sel);
+    if (!el) return null;
+    const b = el.getBoundingClientRect();
+    const top = document.elementFromPoint(b.left + b.width / 2, b.top + b.height / 2);
+    return { x: b.left, y: b.top, w: b.width, h: b.height, vw: innerWidth, vh: innerHeight, on: !!top && (el === top || el.contains(top)) };
+  }, selector);
+  assert.ok(r, `${what} is on the page`);
+  assert.ok(r.w > 0 && r.h > 0 && r.x >= -0.5 && r.y >= -0.5 && r.x + r.w <= r.vw + 0.5 && r.y + r.h <= r.vh + 0.5, `${what} lies within the window (${JSON.stringify(r)})`);
+  assert.ok(r.on, `${what} is not covered`);
+}
+
+/** No button, label or header of the tolerance tab is cut short, and the window does not scroll. */
+async function assertWhole(page: Page, size: string) {
+  const r = await page.evaluate(() => ({
+    scrolls: document.scrollingElement!.scrollHeight > innerHeight + 1 || document.scrollingElement!.scrollWidth > innerWidth + 1,
+    cut: [...document.querySelectorAll('.tolerance-body button, .tolerance-body label, .tolerance-numbers th, .tab')]
+      .filter((e) => (e as HTMLElement).offsetParent !== null && e.scrollWidth > e.clientWidth + 1)
+      .map((e) => `"${e.textContent?.trim().slice(0, 40)}" (${e.scrollWidth} > ${e.clientWidth})`),
+  }));
+  assert.equal(r.scrolls, false, `the window does not scroll at ${size}`);
+  assert.deepEqual(r.cut, [], `nothing in the tolerance tab is cut short at ${size}`);
+}
+
 async function fillForm(page: Page, f: Record<string, string>) {
   for (const [label, value] of Object.entries(f)) await page.getByLabel(label, { exact: true }).fill(value);
 }
@@ -47,12 +85,13 @@ export const toleranceTests: E2ETest[] = [
       const file = path.join(SAMPLES, 'sunshade-panel.hingeplan.json');
       const loaded = loadPatternText(readFileSync(file, 'utf8'), path.basename(file));
       const pattern = loaded.pattern!;
-      await withSession(h, 'tolerance-sunshade', {}, async ({ page, host }) => {
+      await withSession(h, 'tolerance-sunshade', { viewport: { width: 1280, height: 800 } }, async ({ page, host }) => {
         await waitSolved(page);
-        await page.click('[data-testid=tolerance-tab]');
+        // the sheets follow the path on screen: compute it first (20° … 60° every 20°)
+        await computePath(page, { from: '20', to: '60', step: '20' });
+        await page.click('[data-testid=tab-tolerance]');
         await fillForm(page, {
-          'tolerance from, degrees': '20', 'tolerance to, degrees': '60', 'tolerance step, degrees': '20',
-          'position tolerance, mm': '0.1', 'sector tolerance, degrees': '0', 'number of sheets': '24', 'random seed': '7',
+          'tolerance drive spacing, degrees': '20', 'position tolerance, mm': '0.1', 'sector tolerance, degrees': '0', 'number of sheets': '24', 'random seed': '7',
         });
         const events0 = host.progressEvents;
         await page.click('[data-testid=run-tolerance]');
@@ -94,7 +133,16 @@ export const toleranceTests: E2ETest[] = [
         const marks = await page.$$eval('[data-testid=misfit-mark]', (els) => els.map((e) => Number(e.getAttribute('data-vertex'))));
         assert.deepEqual(marks, worstVertices(ref).map((v) => v.vertex));
         assert.ok(marks.length > 0);
+        // on a laptop screen the tab's controls and its first chart are in view and whole
+        await assertVisible(page, '[data-testid=run-tolerance]', 'Run sheets at 1280 × 800');
+        await assertVisible(page, '[data-testid=fan-chart]', 'the first fan chart at 1280 × 800');
+        await assertWhole(page, '1280 × 800');
         await screenshot(page, 'tolerance-sunshade');
+        await page.setViewportSize({ width: 1920, height: 1080 });
+        await page.waitForTimeout(400);
+        await assertVisible(page, '[data-testid=misfit-chart]', 'the misfit chart at 1920 × 1080');
+        await assertWhole(page, '1920 × 1080');
+        await screenshot(page, 'tolerance-sunshade-1920x1080');
         // charting another hinge: tick it in the chooser
         const chips = page.locator('.tolerance-choose input[type=checkbox]');
         const n = await chips.count();
@@ -102,8 +150,8 @@ export const toleranceTests: E2ETest[] = [
           if (!(await chips.nth(k).isChecked())) { await chips.nth(k).check(); break; }
         }
         assert.equal(await page.locator('[data-testid=fan-chart]').count(), 4);
-        // back on the path tab the rings go away
-        await page.getByRole('tab', { name: 'Path' }).click();
+        // back on the charts of the path the rings go away
+        await page.click('[data-testid=tab-charts]');
         assert.equal(await page.locator('[data-testid=misfit-mark]').count(), 0);
       });
     },
@@ -114,8 +162,12 @@ export const toleranceTests: E2ETest[] = [
     async run(h) {
       await withSession(h, 'tolerance-coupon', { openSample: 'hinge-coupon.hingeplan.json' }, async ({ page }) => {
         await waitSolved(page);
-        await page.click('[data-testid=tolerance-tab]');
-        await fillForm(page, { 'tolerance from, degrees': '10', 'tolerance to, degrees': '150', 'tolerance step, degrees': '10', 'position tolerance, mm': '0.2', 'number of sheets': '100000', 'random seed': '3' });
+        await page.click('[data-testid=tab-tolerance]');
+        // without a path there is nothing to follow: the tab says so
+        assert.match((await page.textContent('[data-testid=tolerance-body]')) ?? '', /Compute the path first/);
+        await computePath(page, { from: '10', to: '150', step: '10' });
+        await page.click('[data-testid=tab-tolerance]');
+        await fillForm(page, { 'tolerance drive spacing, degrees': '10', 'position tolerance, mm': '0.2', 'number of sheets': '100000', 'random seed': '3' });
         await page.click('[data-testid=run-tolerance]');
         await page.waitForFunction(() => {
           const p = document.querySelector('[data-testid=tolerance-progress]');

@@ -12,7 +12,7 @@ const result = (hinges: ToleranceResultDto['hinges']): ToleranceResultDto => ({
   driveCrease: 0, driveLabel: 'c0', atDeg: [10, 20], samples: 5, requested: 5, seed: 1, status: 'complete', model: '',
   hinges, misfit: [], gap: [], linearMisfit: [], rigidFraction: [1, 1], lost: [0, 0], worstVertices: [], messages: [],
 });
-const request = { drive: 'c0', fromDeg: 10, toDeg: 20, stepDeg: 10, positionTol: 0.1, samples: 5, seed: 1 };
+const request = { pathId: 'sweep-1', everyDeg: 10, positionTol: 0.1, samples: 5, seed: 1 };
 
 describe('tolerance state', () => {
   it('keeps to the request it started: older answers and late progress are dropped', () => {

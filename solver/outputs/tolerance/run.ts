@@ -191,9 +191,33 @@ export function* toleranceSteps(pattern: Pattern, options: ToleranceOptions, hoo
     if (r.status !== 'stopped') r.messages.push({ severity: 'error', code: 'no-nominal-path', text: 'The nominal path could not start, so no sheet can follow it.' });
     return r;
   }
-  const solver = new SheetSolver(pattern, nominal.setup);
+  return yield* sheetSteps(pattern, options, nominal.sweep, nominal.setup, hooks);
+}
+
+/**
+ * The setup for sheets along a path already computed (the path on screen in the app): its samples at the
+ * given indices (default all), in path order. `options.path` then only names the drive and the holds.
+ */
+export function setupFromPath(sweep: SweepResult, options: ToleranceOptions, indices?: number[]): ToleranceSetup | undefined {
+  const chosen = (indices ?? sweep.samples.map((_, i) => i)).filter((i) => i >= 0 && i < sweep.samples.length);
+  if (!chosen.length) return undefined;
+  return {
+    drive: sweep.drive,
+    holds: options.path.holds ?? [],
+    at: chosen.map((i) => sweep.samples[i].drive),
+    nominal: chosen.map((i) => sweep.samples[i].angles),
+    tolerance: options.tolerance,
+    seed: options.seed,
+  };
+}
+
+/** The sheets of a run along a given nominal path (see toleranceSteps), one resumable step per sheet. */
+export function* sheetSteps(pattern: Pattern, options: ToleranceOptions, sweep: SweepResult, setup: ToleranceSetup, hooks: SweepHooks = {}): Generator<void, ToleranceResult> {
+  const refused = checkToleranceOptions(options);
+  if (refused) return failed(options, 'invalid-tolerance', refused, sweep);
+  const solver = new SheetSolver(pattern, setup);
   const big = checkToleranceSize(solver, options);
-  if (big) return failed(options, 'too-large', big, nominal.sweep);
+  if (big) return failed(options, 'too-large', big, sweep);
   const sheets: SheetResult[] = [];
   let stopped = false;
   for (let i = 0; i < options.samples; i++) {
@@ -204,7 +228,7 @@ export function* toleranceSteps(pattern: Pattern, options: ToleranceOptions, hoo
   }
   let linear: LinearEstimate | undefined;
   if (!stopped && options.linear !== false) linear = yield* linearSteps(solver);
-  return toleranceResult(options, { sweep: nominal.sweep, solver, sheets, linear, stopped });
+  return toleranceResult(options, { sweep, solver, sheets, linear, stopped });
 }
 
 function failed(options: ToleranceOptions, code: string, text: string, sweep?: SweepResult): ToleranceResult {
