@@ -316,6 +316,15 @@ export function createService(deps: ServiceDeps) {
       return jobAnswer(outcome) as ResponseOf<'sweep'>;
     },
 
+    async tolerance({ requestId, key, options }) {
+      const outcome = await solver.run('long', 'tolerance', { key, options }, {
+        requestId,
+        supersedeKey: 'tolerance',
+        onProgress: (done, total, phase) => host.emit('job:progress', { requestId, done, total, ...(phase ? { phase } : {}) }),
+      });
+      return jobAnswer(outcome) as ResponseOf<'tolerance'>;
+    },
+
     async shape({ key, anglesDeg, basePanel }) {
       return jobAnswer(await solver.run('interactive', 'shape', { key, anglesDeg, basePanel }, { supersedeKey: 'shape' })) as ResponseOf<'shape'>;
     },

@@ -33,6 +33,12 @@ export const PALETTE = {
   heldFlat: '#8c877c',
   /** panels in contact with another (passing through it, or closer than the clearance): sheet and 3D */
   contact: '#d4007f',
+  /**
+   * the tolerance analysis's misfit: its curve and the rings at the vertices that carry it. A vivid violet,
+   * the colour farthest from the scale and the other roles under every common deficiency that is not near
+   * black (tests/renderer/palette.test.ts)
+   */
+  misfit: '#a048f8',
 } as const;
 
 export type PaletteRole = keyof typeof PALETTE;

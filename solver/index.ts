@@ -39,3 +39,11 @@ export { StatesBetween, refineFirstContact, contactText, CONTACT_REFINEMENT, typ
 export { LoadModel, metresPerUnit, ratesFromSensitivity, resolveLoads, STANDARD_GRAVITY, type LoadSpec, type Spring, type LoadOverrides } from './outputs/torque';
 export { PathChecks, finishChecks, checkFollowedRows, type PathChecksOptions, type StateChecks, type ChecksSummary, type ContactEvent } from './outputs/path-physics';
 export { readLoads, type FileLoads } from './formats/loads';
+export {
+  toleranceSteps, nominalSteps, toleranceResult, checkToleranceOptions, checkToleranceSize,
+  type ToleranceOptions, type ToleranceResult, type ToleranceStatus,
+} from './outputs/tolerance/run';
+export { SheetSolver, type SheetResult, type ToleranceSetup } from './outputs/tolerance/sheet';
+export { sheetPerturbation, type PerturbationModel, type ToleranceSpec } from './outputs/tolerance/perturbation';
+export { linearSteps, type LinearEstimate } from './outputs/tolerance/linear';
+export { toleranceTable, worstVertices } from './outputs/tolerance/table';

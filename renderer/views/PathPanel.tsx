@@ -11,6 +11,7 @@ import { originWords, type PathFixId, type PathOutcome } from '../state/path-wor
 import { PathCharts, EVENT_LOOK } from './PathCharts';
 import { ContactControls, ContactNote } from './ContactControls';
 import { TorqueChart } from './TorqueChart';
+import { ToleranceBody, type ToleranceBodyProps } from './ToleranceBody';
 
 export interface PathPanelProps {
   project: ProjectDto;
@@ -26,6 +27,8 @@ export interface PathPanelProps {
   problem: string | null;
   onForm(patch: Partial<PathForm>): void;
   onTab(tab: PathTab): void;
+  /** the tolerance tab's state and actions (renderer/views/ToleranceBody.tsx) */
+  tolerance?: Omit<ToleranceBodyProps, 'project' | 'path' | 'pathRunning' | 'selectedCrease' | 'size'>;
   onCompute(): void;
   onCancel(): void;
   onFix(id: PathFixId): void;
@@ -171,6 +174,7 @@ export function PathPanel(props: PathPanelProps) {
     { id: 'events', title: `Events${result ? ` (${result.events.length})` : ''}` },
     { id: 'branches', title: 'Branches at flat' },
     { id: 'torque', title: 'Drive torque' },
+    ...(props.tolerance ? [{ id: 'tolerance' as const, title: `Tolerance${props.tolerance.tolerance.status === 'running' ? ' …' : ''}` }] : []),
   ];
   const startValue = form.start === 'solution' ? 'solution' : `flat:${form.branchId ?? ''}`;
   // the room left for the two charts: captions, the scrub row and the axes' labels come off the top
@@ -183,6 +187,8 @@ export function PathPanel(props: PathPanelProps) {
     ) : (
       <p className="hint">The static holding torque of every drive appears here when the document has loads (an areal density, panel masses or springs in its “loads”) and a path is computed.</p>
     );
+  } else if (tab === 'tolerance' && props.tolerance) {
+    body = <ToleranceBody {...props.tolerance} project={project} path={result} pathRunning={running} selectedCrease={props.selectedCrease} size={size} />;
   } else if (tab === 'events') body = result ? <EventList result={result} onFollowRay={props.onFollowRay} /> : <p className="hint">Compute a path to see its events.</p>;
   else if (tab === 'branches') {
     body =
