@@ -408,8 +408,11 @@ export class SweepRun {
 
   private pickFlatRay(): Float64Array | null {
     const o = this.options;
-    const analysis = flatBranches(this.pattern, { held: this.holdSet, drive: o.drive });
     const sense = this.travel;
+    // without a branch or a direction to follow, the search vertex by vertex stops at the first curve that
+    // moves the drive this way with the assignment's signs (the ids of what it found are those of the full list)
+    const wanted = (t: Float64Array) => Math.abs(t[o.drive]) > 1e-9 && tangentMatchesAssignment(this.pattern, Math.sign(t[o.drive]) === sense ? t : t.map((x) => -x));
+    const analysis = flatBranches(this.pattern, { held: this.holdSet, drive: o.drive, ...(o.branch === undefined && !o.prefer ? { until: wanted } : {}) });
     const moving = analysis.branches.filter((b) => Math.abs(b.tangent[o.drive]) > 1e-9 && Math.sign(b.tangent[o.drive]) === sense);
     const list = (bs: Branch[]) => bs.map((b) => `${b.id} (${b.name}${b.matchesAssignment ? ', matches' : ''})`).join(', ');
     if (o.branch !== undefined) {
@@ -432,7 +435,8 @@ export class SweepRun {
       this.branchInfo = { id: b.id, name: b.name, matchesAssignment: b.matchesAssignment, text: analysis.groups.find((g) => g.name === b.group)?.text ?? '' };
       return b.tangent;
     }
-    const matching = moving.filter((b) => b.matchesAssignment);
+    // curves before straight lines folding alone, then by id
+    const matching = moving.filter((b) => b.matchesAssignment && b.verified).sort((p, q) => Number(p.kind === 'line') - Number(q.kind === 'line') || p.id - q.id);
     if (matching.length === 0) {
       if (analysis.partial && this.pattern.creases.some((c) => c.assignment === 'M' || c.assignment === 'V')) {
         // a sheet too large for the full flat analysis: start by the assignment's signs (vertex by vertex
@@ -447,6 +451,8 @@ export class SweepRun {
     }
     if (matching.length > 1) {
       this.messages.push({ severity: 'warning', code: 'branch-not-unique', text: `${matching.length} branches from flat match the assignment: ${list(matching)}; following ${matching[0].id}. Choose another with the branch option.` });
+    } else if (analysis.messages.some((m) => m.code === 'branches-stopped')) {
+      this.messages.push({ severity: 'info', code: 'branch-first-matching', text: `Following the first branch found vertex by vertex that moves ${this.label} ${sense > 0 ? 'up' : 'down'} with the assignment's signs (${matching[0].id}, ${matching[0].name}); \`hingeplan branches\` lists every branch, and another is chosen with the branch option.` });
     }
     const b = matching[0];
     this.branchInfo = { id: b.id, name: b.name, matchesAssignment: true, text: analysis.groups.find((g) => g.name === b.group)?.text ?? '' };
