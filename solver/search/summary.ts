@@ -29,14 +29,19 @@ export function groupSolutions(pattern: Pattern, solutions: Solution[], referenc
   const lines = straightCreaseLines(pattern);
   const ref = solutions[reference].angles;
   const groups = new Map<string, SolutionGroup>();
+  const onLines = new Uint8Array(pattern.creases.length);
+  const refStacked = lines.map((line) => line.every((c) => Math.abs(ref[c]) >= FLAT));
   for (const k of others) {
     const a = solutions[k].angles;
-    const stacked = lines.filter((line) => line.every((c) => Math.abs(a[c]) >= FLAT) && !line.every((c) => Math.abs(ref[c]) >= FLAT));
-    const onLines = new Set(stacked.flat());
+    const stacked = lines.filter((line, i) => !refStacked[i] && line.every((c) => Math.abs(a[c]) >= FLAT));
+    onLines.fill(0);
+    for (const line of stacked) for (const c of line) onLines[c] = 1;
+    // a crease that takes the other sign (off the stacked lines) marks its vertices
     let vertices = 0;
     for (const iv of pattern.interiorVertices) {
-      const differs = iv.creases.some((c) => !onLines.has(c) && Math.abs(wrapAngle(a[c] - ref[c])) > 1e-6 && Math.sign(a[c]) !== Math.sign(ref[c]));
-      if (differs) vertices++;
+      for (const c of iv.creases) {
+        if (!onLines[c] && Math.sign(a[c]) !== Math.sign(ref[c]) && Math.abs(wrapAngle(a[c] - ref[c])) > 1e-6) { vertices++; break; }
+      }
     }
     const key = `${stacked.map((l) => l[0]).join(',')}|${vertices}`;
     let g = groups.get(key);
