@@ -166,7 +166,7 @@ describe('project file', () => {
     expect(ok.format).toBe('project');
     expect(ok.messages).toEqual([]);
     expect(ok.pattern!.interiorVertices.length).toBe(1);
-    expect(ok.drives).toEqual([{ crease: 0, value: Math.PI / 4 }]);
+    expect(ok.drives).toEqual([{ crease: 0, value: Math.PI / 4, degrees: 45 }]);
 
     const crossing = loadPatternText(
       editedProject((o) => {
@@ -361,8 +361,8 @@ describe('drives', () => {
     ]);
     expect(r.messages).toEqual([]);
     expect(r.drives).toEqual([
-      { crease: 1, value: Math.PI / 6 },
-      { crease: 0, value: -Math.PI },
+      { crease: 1, value: Math.PI / 6, degrees: 30 },
+      { crease: 0, value: -Math.PI, degrees: -180 },
     ]);
   });
 
@@ -376,7 +376,7 @@ describe('drives', () => {
       { crease: 'c3', angleDeg: -10, field: '--set' },
       { crease: '3', angleDeg: -20 },
     ]);
-    expect(r.drives).toEqual([{ crease: 3, value: (-10 * Math.PI) / 180 }]);
+    expect(r.drives).toEqual([{ crease: 3, value: (-10 * Math.PI) / 180, degrees: -10 }]);
     expect(r.messages.map((m) => m.code)).toEqual(['unknown-crease', 'drive-on-boundary', 'drive-on-flat', 'drive-out-of-range', 'drive-out-of-range', 'duplicate-drive']);
     expect(r.messages[0].text).toContain('c0, c1, c3');
     expect(r.messages[0].text).not.toContain('c2'); // a flat crease cannot be driven, so it is not offered
