@@ -7,13 +7,14 @@ export { foldedShape, applyTransform } from './outputs/shape';
 export { flatCone, straightCreaseLines, type ConeRay } from './paths/cone';
 export { ClosureProblem, RESIDUAL_TOLERANCE } from './closure/newton';
 export { analyzeState, NEAR_SINGULAR_CONDITION } from './closure/analysis';
-export { loadPatternText, parseProject, writeProject, type Project } from './formats/project';
+export { loadPatternText, loadPatternBytes, parseProject, writeProject, type Project } from './formats/project';
+export { decodeUtf8, firstInvalidUtf8 } from './formats/text';
 export { parseFold, writeFold } from './formats/fold';
 export { shapeToJSON, shapeToOBJ, shapeToSTL } from './formats/shape-export';
 export { CAUTIONS } from './formats/cautions';
 export { singleVertex, miura, waterbomb, degree5 } from './model/generators';
 export {
-  sweep, sweepSteps, runSteps, createSweep, sampleValues, defaultConditionEvery, secondOrderRows,
+  sweep, sweepSteps, runSteps, createSweep, sampleValues, sampleDegrees, defaultConditionEvery, secondOrderRows,
   type SweepOptions, type SweepResult, type SweepSample, type SweepEvent, type SweepEventType, type SweepHooks, type SweepStatus, type SweepMethod,
 } from './paths/sweep';
 export { flatBranches, branchesAt, tangentMatchesAssignment, type Branch, type BranchAnalysis, type BranchGroup } from './paths/branches';
@@ -22,6 +23,7 @@ export {
   type ProfileSpec, type ProfileKind, type DriveProfile, type ScheduleOptions, type ScheduleResult, type ScheduleRow, type HingeLimits,
   type ParsedSchedule, type FollowOptions, type FollowResult, type FollowRow,
 } from './outputs/schedule';
+export { MAX_TABLE_VALUES, ROW_OVERHEAD, tableWork, maxRows } from './paths/request-limits';
 export { gridSweep, gridSteps, type GridOptions, type GridResult, type GridNode } from './outputs/grid';
 export { angleTable, scheduleTable, followTable, gridTable, type TableHeader, type TableFormat } from './outputs/table';
 export { planPropagation, propagate, degree4States } from './paths/propagate';

@@ -11,6 +11,7 @@ import { buildPattern } from '../model/pattern';
 import { resolveDrives, type DriveSpec } from '../model/drives';
 import { MAX_CREASES, MAX_TEXT_BYTES, MAX_VERTICES, readJsonText } from './limits';
 import { parseFoldValue } from './fold';
+import { decodeUtf8 } from './text';
 
 export { MAX_CREASES, MAX_TEXT_BYTES, MAX_VERTICES };
 
@@ -307,6 +308,16 @@ export function loadPatternText(text: string, fileName?: string): LoadResult {
   const resolved = resolveDrives(built.pattern, project.drives);
   messages.push(...resolved.messages);
   return { format, project, pattern: built.pattern, drives: resolved.drives, messages };
+}
+
+/**
+ * loadPatternText for a file's bytes, as the shells read them: invalid UTF-8 is refused with its place (see
+ * ./text.ts) before anything else. Hash these same bytes for a table header.
+ */
+export function loadPatternBytes(bytes: Uint8Array, fileName?: string): LoadResult {
+  const decoded = decodeUtf8(bytes, 'file');
+  if (decoded.text === undefined) return { messages: decoded.messages };
+  return loadPatternText(decoded.text, fileName);
 }
 
 /** Point a pattern message at the place in the file, in that file's own field names. */
