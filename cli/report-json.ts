@@ -8,13 +8,15 @@ export function finite(x: number | undefined): number | null {
   return x === undefined || !Number.isFinite(x) ? null : x;
 }
 
-export function anglesByLabel(pattern: Pattern, angles: Float64Array): Record<string, number> {
+/** Every crease's angle in degrees by label; a driven crease at its drive value as the person gave it (60, not 59.99999999999999). */
+export function anglesByLabel(pattern: Pattern, angles: Float64Array, drives: Drive[] = []): Record<string, number> {
   const out: Record<string, number> = {};
   for (const c of pattern.creases) out[c.label] = angles[c.index] * DEG;
+  for (const d of drives) if (d.degrees !== undefined && angles[d.crease] === d.value) out[pattern.creases[d.crease].label] = d.degrees;
   return out;
 }
 
-export function solutionJson(pattern: Pattern, s: Solution, index: number) {
+export function solutionJson(pattern: Pattern, s: Solution, index: number, drives: Drive[] = []) {
   const sensitivity: Record<string, Record<string, number>> = {};
   for (const [free, byDrive] of s.sensitivity) {
     const row: Record<string, number> = {};
@@ -23,7 +25,7 @@ export function solutionJson(pattern: Pattern, s: Solution, index: number) {
   }
   return {
     index,
-    angles: anglesByLabel(pattern, s.angles),
+    angles: anglesByLabel(pattern, s.angles, drives),
     maxResidual: s.maxResidual,
     matchesAssignment: s.matchesAssignment,
     localDof: s.localDof,
@@ -45,17 +47,17 @@ export function reportJson(pattern: Pattern, drives: Drive[], report: SolveRepor
     status: report.status,
     dof: report.dof,
     patternDof: finite(report.patternDof),
-    drives: Object.fromEntries(drives.map((d) => [pattern.creases[d.crease].label, d.value * DEG])),
-    solutions: report.solutions.map((s, i) => solutionJson(pattern, s, i + 1)),
+    drives: Object.fromEntries(drives.map((d) => [pattern.creases[d.crease].label, d.degrees ?? d.value * DEG])),
+    solutions: report.solutions.map((s, i) => solutionJson(pattern, s, i + 1, drives)),
     families: report.families.map((f) => ({
       dof: f.dof,
-      representative: solutionJson(pattern, f.representative, 0).angles,
+      representative: solutionJson(pattern, f.representative, 0, drives).angles,
       directions: f.directions.map((d) => Object.fromEntries([...d].map(([c, v]) => [pattern.creases[c].label, v]))),
       matchesAssignment: f.matchesAssignment,
     })),
     search: report.search,
     ...(report.compromise ? { compromise: solutionJson(pattern, report.compromise, 0) } : {}),
-    ...(report.excluded?.length ? { excluded: report.excluded.map((s, i) => solutionJson(pattern, s, i + 1)) } : {}),
+    ...(report.excluded?.length ? { excluded: report.excluded.map((s, i) => solutionJson(pattern, s, i + 1, drives)) } : {}),
     ...(report.suggestedDrives ? { suggestedDrives: labels(report.suggestedDrives) } : {}),
     ...(report.conflictingDrives ? { conflictingDrives: labels(report.conflictingDrives) } : {}),
     ...(report.reachableRange ? { reachableRange: report.reachableRange.map(([a, b]) => [a * DEG, b * DEG]) } : {}),

@@ -2,6 +2,7 @@
 // line, and the folded-shape exports (OBJ, STL, JSON). Malformed files are refused with a code and the
 // place in the file, never a throw.
 import { describe, expect, it } from 'vitest';
+import { readFileSync } from 'node:fs';
 import Ajv2020Module from 'ajv/dist/2020.js';
 import { Matrix4, Vector3 } from 'three';
 import schema from '../schema/project.schema.json' with { type: 'json' };
@@ -11,6 +12,7 @@ import {
   MAX_TEXT_BYTES,
   MAX_VERTICES,
   parseProject,
+  parseProjectValue,
   writeProject,
   type Project,
 } from '../solver/formats/project';
@@ -25,6 +27,7 @@ import type { Message, Pattern, Shape } from '../solver/types';
 
 const Ajv = ((Ajv2020Module as unknown as { default?: unknown }).default ?? Ajv2020Module) as new (o: object) => {
   validateSchema(s: object): boolean;
+  compile(s: object): (v: unknown) => boolean;
   errors?: unknown;
 };
 
@@ -62,6 +65,18 @@ describe('project file', () => {
   it('the schema is a valid JSON Schema draft 2020-12 document (checked by ajv, a reference validator from the npm registry)', () => {
     const ajv = new Ajv({ strict: true });
     expect(ajv.validateSchema(schema as object)).toBe(true);
+  });
+
+  it('the readers’ validator is the schema compiled by ajv, and up to date with it (scripts/build-validator.mjs)', async () => {
+    // @ts-expect-error a build script in plain JavaScript, without types
+    const { validatorSource } = await import('../scripts/build-validator.mjs');
+    const fresh = validatorSource(readFileSync('schema/project.schema.json', 'utf8'));
+    expect(readFileSync('solver/formats/project-validator.ts', 'utf8'), 'run `node scripts/build-validator.mjs` after changing the schema').toBe(fresh);
+    // and it judges as ajv's own compiled schema does, on the coupon and on a broken copy
+    const reference = new Ajv({ strict: true, allErrors: true }).compile(schema as object);
+    const good = JSON.parse(writeProject(coupon()));
+    const bad = { ...good, creases: [{ vertices: [0, -1], assignment: 'Q', extra: 1 }] };
+    for (const v of [good, bad]) expect(parseProjectValue(v).messages.length === 0).toBe(reference(v));
   });
 
   it('round-trips a project exactly: coordinates, assignments, labels, limits, faces, base panel, drives, units, notes, start state', () => {

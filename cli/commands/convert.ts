@@ -2,6 +2,7 @@ import type { Command } from '../command';
 import { parseCommandArgs, UsageError } from '../args';
 import { loadFile } from '../load';
 import { EXIT } from '../exit-codes';
+import { writeWhole } from '../output';
 import { writeProject } from '../../solver/formats/project';
 import { writeFold } from '../../solver/formats/fold';
 
@@ -19,7 +20,8 @@ export const convert: Command = {
 Reads <in> (project or FOLD; validated first) and writes <out> in the format its extension names:
 .fold for FOLD 1.1 (vertices_coords, edges_vertices, edges_assignment, edges_foldAngle, faces_vertices;
 fields this program does not use are carried over from a FOLD input), .json for our project file.
-The output is written to a temporary file and renamed, so an existing <out> is never left half-written.`,
+The output is written to a temporary file beside <out>, flushed and renamed, so an existing <out> is never
+left half-written; <out> may not be <in> (see \`hingeplan table --help\` for the rules of --out).`,
   run(argv, io) {
     const { positionals } = parseCommandArgs(argv, {});
     const [input, output] = positionals;
@@ -30,12 +32,7 @@ The output is written to a temporary file and renamed, so an existing <out> is n
     if (!loaded) return EXIT.usage;
     const { project, pattern } = loaded;
     const text = kind === 'fold' ? writeFold(project, project.foldAngles ? { foldAngles: project.foldAngles } : {}) : writeProject(project);
-    const w = io.writeFile(output, text);
-    if (w.error) {
-      io.stderr(`hingeplan convert: ${w.error}\n`);
-      return EXIT.usage;
-    }
-    io.stderr(`wrote ${output} (${kind === 'fold' ? 'FOLD' : 'project'}: ${pattern.vertices.length} vertices, ${pattern.creases.length} creases)\n`);
-    return EXIT.ok;
+    const note = `${kind === 'fold' ? 'FOLD' : 'project'}, ${pattern.vertices.length} vertices, ${pattern.creases.length} creases`;
+    return writeWhole(io, 'convert', text, output, [input], 'json', note) ? EXIT.ok : EXIT.usage;
   },
 };

@@ -2,6 +2,9 @@ import type { Command } from '../command';
 import { intOption, parseCommandArgs, UsageError } from '../args';
 import { drivesFor, loadFile, printMessages } from '../load';
 import { EXIT, exitForStatus } from '../exit-codes';
+import { writeWhole } from '../output';
+import { jsonText } from '../../solver/formats/json-text';
+import { CAUTIONS } from '../../solver/formats/cautions';
 import { solveDrives } from '../../solver/search/solve';
 import { foldedShape } from '../../solver/outputs/shape';
 import { shapeToJSON, shapeToOBJ, shapeToSTL } from '../../solver/formats/shape-export';
@@ -10,7 +13,7 @@ export const shape: Command = {
   name: 'shape',
   summary: 'the folded shape for the drives: vertex positions (JSON), OBJ or ASCII STL',
   help: `Usage: hingeplan shape <file> [--set <crease>=<deg> …] [--solution <k>] [--base-panel <p>]
-                       [--format json|obj|stl] [--out <file>]
+                       [--format json|obj|stl] [--pretty] [--out <file>]
 
 Solves for the drives (as \`hingeplan solve\`), then places every panel: the base panel stays fixed and every
 other panel turns about the creases between it and the base. Vertex positions are in the file's units.
@@ -21,7 +24,9 @@ other panel turns about the creases between it and the base. Vertex positions ar
   --base-panel <p>       the panel held fixed (zero-based panel index); default: the file's base panel.
   --format json|obj|stl  json (default): {"vertices": [[x, y, z], … in the file's vertex order],
                          "maxMismatch": <length>, "panels": …}; obj and stl are for CAD.
-  --out <file>           write to a file (atomically) instead of stdout.`,
+  --pretty               indent the JSON.
+  --out <file>           write to a file (atomically, see \`hingeplan table --help\`) instead of stdout; "wrote
+                         <file>" on stderr, and for STL (which has no comments to carry it) the cautions line.`,
   run(argv, io) {
     const { values, positionals } = parseCommandArgs(argv, {
       set: { type: 'string', multiple: true },
@@ -29,6 +34,7 @@ other panel turns about the creases between it and the base. Vertex positions ar
       'base-panel': { type: 'string' },
       format: { type: 'string' },
       out: { type: 'string' },
+      pretty: { type: 'boolean' },
     });
     const format = (values.format as string | undefined) ?? 'json';
     if (!['json', 'obj', 'stl'].includes(format)) throw new UsageError(`--format must be json, obj or stl, got "${format}"`);
@@ -57,14 +63,12 @@ other panel turns about the creases between it and the base. Vertex positions ar
     const text =
       format === 'obj' ? shapeToOBJ(pattern, sh)
       : format === 'stl' ? shapeToSTL(pattern, sh)
-      : JSON.stringify(shapeToJSON(pattern, sh, { solution: k + 1, status: report.status, maxResidual: sol.maxResidual }), null, 2) + '\n';
-    if (values.out) {
-      const w = io.writeFile(values.out as string, text);
-      if (w.error) { io.stderr(`hingeplan shape: ${w.error}\n`); return EXIT.usage; }
-    } else {
-      io.stdout(text);
-    }
+      : jsonText(shapeToJSON(pattern, sh, { solution: k + 1, status: report.status, maxResidual: sol.maxResidual }), !!values.pretty) + '\n';
     for (const m of report.messages.filter((m) => m.severity !== 'info')) io.stderr(`${m.severity}: ${m.text}\n`);
+    const out = values.out as string | undefined;
+    if (!writeWhole(io, 'shape', text, out, [path], format === 'json' ? 'json' : 'text', `${format.toUpperCase()}, ${sh.vertices.length} vertices`)) return EXIT.usage;
+    // STL has no comment lines to carry the cautions, so they are said here
+    if (format === 'stl') io.stderr(`${CAUTIONS}\n`);
     return exitForStatus(report.status);
   },
 };

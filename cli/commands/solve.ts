@@ -6,11 +6,13 @@ import { reportJson } from '../report-json';
 import { deg, textTable } from '../table-text';
 import { solveDrives } from '../../solver/search/solve';
 import { CAUTIONS } from '../../solver/formats/cautions';
+import { jsonText } from '../../solver/formats/json-text';
+import { writeWhole } from '../output';
 
 export const solve: Command = {
   name: 'solve',
   summary: 'find every fold angle from the drives: all solutions, status, sensitivities',
-  help: `Usage: hingeplan solve <file> [--set <crease>=<deg> …] [--json]
+  help: `Usage: hingeplan solve <file> [--set <crease>=<deg> …] [--json [--pretty]]
 
 Finds every consistent set of the free fold angles for the given drives (degrees, valley positive), says what
 kind of specification it was, and gives each solution's residual, local DOF, condition number and the
@@ -20,13 +22,16 @@ sensitivity of every free crease to every drive (degrees per degree).
                          drives stored in the file are used.
   --json                 JSON on stdout: {status, dof, patternDof, drives, solutions: [{angles, maxResidual,
                          matchesAssignment, localDof, condition, signs, sensitivity, vertexResiduals}],
-                         compromise?, suggestedDrives?, conflictingDrives?, reachableRange?, messages}
+                         compromise?, suggestedDrives?, conflictingDrives?, reachableRange?, messages}; drives
+                         and the driven creases' angles are the values as given.
+  --pretty               indent the JSON (default compact).
 Exit status: 0 solved / several solutions / overspecified but consistent / dependent drives;
 2 invalid input or usage; 3 inconsistent or unreachable; 4 underspecified or not isolated.`,
   run(argv, io) {
     const { values, positionals } = parseCommandArgs(argv, {
       set: { type: 'string', multiple: true },
       json: { type: 'boolean' },
+      pretty: { type: 'boolean' },
     });
     const path = positionals[0];
     const loaded = loadFile(io, path, 'solve');
@@ -36,7 +41,7 @@ Exit status: 0 solved / several solutions / overspecified but consistent / depen
     const { pattern } = loaded;
     const report = solveDrives(pattern, drives);
     if (values.json) {
-      io.stdout(JSON.stringify(reportJson(pattern, drives, report), null, 2) + '\n');
+      writeWhole(io, 'solve', jsonText(reportJson(pattern, drives, report), !!values.pretty) + '\n', undefined, [], 'json');
       return exitForStatus(report.status);
     }
     const out: string[] = [];
@@ -61,7 +66,7 @@ Exit status: 0 solved / several solutions / overspecified but consistent / depen
       }
     }
     out.push(CAUTIONS);
-    io.stdout(out.join('\n') + '\n');
+    writeWhole(io, 'solve', out.join('\n') + '\n', undefined, [], 'text');
     return exitForStatus(report.status);
   },
 };

@@ -3,9 +3,8 @@
 //
 // Limits (see ./limits.ts): at most MAX_TEXT_BYTES (32 MiB) of text, MAX_VERTICES (250,000) vertices
 // and MAX_CREASES (250,000) creases; more is refused before any other work is done.
-import Ajv2020Module from 'ajv/dist/2020.js';
-import type { ErrorObject, ValidateFunction } from 'ajv';
-import schema from '../../schema/project.schema.json' with { type: 'json' };
+import type { ErrorObject } from 'ajv';
+import { validate as validateSchema } from './project-validator';
 import type { Assignment, Drive, HingeLimit, Message, Pattern, PatternSource, Where } from '../types';
 import { buildPattern } from '../model/pattern';
 import { resolveDrives, type DriveSpec } from '../model/drives';
@@ -49,16 +48,13 @@ export const toRadians = (deg: number) => deg * RAD;
 
 const MAX_SCHEMA_MESSAGES = 40;
 
-// ajv ships CommonJS; under ESM its class is the default export's `default`.
-type AjvClass = new (opts: object) => { compile(schema: object): ValidateFunction };
-let validator: ValidateFunction | undefined;
-function validate(): ValidateFunction {
-  if (!validator) {
-    const mod = Ajv2020Module as unknown as { default?: AjvClass } & AjvClass;
-    const Ajv = (mod.default ?? mod) as AjvClass;
-    validator = new Ajv({ allErrors: true, strict: true }).compile(schema as object);
-  }
-  return validator;
+/**
+ * The schema's validator, compiled ahead of time by ajv (scripts/build-validator.mjs → ./project-validator.ts),
+ * so reading a file neither loads ajv nor compiles the schema.
+ */
+type Validator = ((data: unknown) => boolean) & { errors?: ErrorObject[] | null };
+function validate(): Validator {
+  return validateSchema as Validator;
 }
 
 /** `/creases/12/assignment` → `creases[12].assignment` */
