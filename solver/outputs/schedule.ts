@@ -81,7 +81,7 @@ export function driveProfile(spec: ProfileSpec): { profile?: DriveProfile; messa
       if (!(A > 0 && Number.isFinite(A))) return bad(`The acceleration must be a positive number of degrees per second², not ${A * DEG}°/s².`, 'acceleration');
       // Δ = a t_a (T − t_a) → t_a = (T − √(T² − 4Δ/a)) / 2, real only when a ≥ 4Δ/T²
       const disc = T * T - (4 * dist) / A;
-      if (disc < 0) return bad(`An acceleration of ${(A * DEG).toPrecision(6)}°/s² cannot move ${(dist * DEG).toPrecision(6)}° in ${T} s; it needs at least ${((4 * dist) / (T * T) * DEG).toPrecision(6)}°/s².`, 'acceleration');
+      if (disc < 0) return bad(`An acceleration of ${+(A * DEG).toPrecision(6)}°/s² cannot move ${+(dist * DEG).toPrecision(6)}° in ${T} s; it needs at least ${+((4 * dist) / (T * T) * DEG).toPrecision(6)}°/s².`, 'acceleration');
       ta = (T - Math.sqrt(disc)) / 2;
     } else {
       ta = spec.accelTime ?? T / 4;
@@ -99,8 +99,10 @@ export function driveProfile(spec: ProfileSpec): { profile?: DriveProfile; messa
   const jerk = tj > 0 ? amax / tj : 0;
   // a duration so short (or phases so thin) that the peaks leave the doubles: refused, never NaN positions
   if (![vmax, amax, jerk, (vmax * ta) / 2, vmax * T, vmax * vmax].every(Number.isFinite)) {
-    const field = !Number.isFinite(vmax) ? 'duration' : tj > 0 && !Number.isFinite(jerk) ? 'jerkTime' : ta > 0 && !Number.isFinite(amax) ? (spec.accelTime !== undefined ? 'accelTime' : 'duration') : 'duration';
-    return bad(`The profile cannot be computed: moving ${(dist * DEG).toPrecision(6)}° in ${T} s${ta > 0 ? ` with an acceleration time of ${ta} s` : ''}${tj > 0 ? ` and a jerk time of ${tj} s` : ''} needs a peak drive ${!Number.isFinite(vmax) ? 'velocity' : !Number.isFinite(amax) ? 'acceleration' : 'jerk'} beyond any number; give a longer time.`, field);
+    // name what the person gave: a jerk or acceleration time when it was theirs, else the duration
+    const field = Number.isFinite(vmax) && !Number.isFinite(jerk) && spec.jerkTime !== undefined ? 'jerkTime'
+      : Number.isFinite(vmax) && !(Number.isFinite(amax) && Number.isFinite(jerk)) && spec.accelTime !== undefined ? 'accelTime' : 'duration';
+    return bad(`The profile cannot be computed: moving ${+(dist * DEG).toPrecision(6)}° in ${T} s${ta > 0 ? ` with an acceleration time of ${ta} s` : ''}${tj > 0 ? ` and a jerk time of ${tj} s` : ''} needs a peak drive ${!Number.isFinite(vmax) ? 'velocity' : !Number.isFinite(amax) ? 'acceleration' : 'jerk'} beyond any number; give a longer time.`, field);
   }
   // the acceleration phase as a function of τ ∈ [0, t_a]: position, velocity, acceleration (unsigned)
   const accelPhase = (tau: number): [number, number, number] => {

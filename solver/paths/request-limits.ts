@@ -23,7 +23,8 @@ export function maxRows(creases: number): number {
 function big(n: number): string {
   if (!Number.isFinite(n)) return 'infinitely many';
   if (n < 1e6) return String(Math.round(n));
-  return `${(n / 1e6).toPrecision(3)} million`;
+  if (n < 1e9) return `${+(n / 1e6).toPrecision(3)} million`;
+  return n.toExponential(2);
 }
 
 /**
