@@ -7,7 +7,8 @@ import type { TextSink } from '../solver/outputs/table';
 import { escapeControlsKeepLines, jsonSafe } from '../solver/formats/escape';
 import type { Io, OutputTarget } from './io';
 
-export type OutputKind = 'json' | 'text';
+/** json: JSON from elsewhere (C1 controls escaped on the way); text: text (every control escaped); escaped: written by our own writers, which escape what they take from files (nothing to do). */
+export type OutputKind = 'json' | 'text' | 'escaped';
 
 /** Pieces gathered into chunks of this many characters before they are written. */
 const CHUNK = 1 << 16;
@@ -19,7 +20,7 @@ export class Output implements TextSink {
   private readonly clean: (t: string) => string;
 
   constructor(private readonly io: Io, private readonly command: string, private readonly target: OutputTarget | undefined, kind: OutputKind) {
-    this.clean = kind === 'json' ? jsonSafe : escapeControlsKeepLines;
+    this.clean = kind === 'json' ? jsonSafe : kind === 'text' ? escapeControlsKeepLines : (t) => t;
   }
 
   get toFile(): boolean {

@@ -109,7 +109,7 @@ Exit status 0; 2 invalid input; 3 the --at values have no state.`,
       analysis = flatBranches(pattern, { held, drive });
     }
     if (values.json) {
-      writeWhole(io, 'branches', jsonText(analysisJson(pattern, analysis, at, given), !!values.pretty) + '\n', undefined, [], 'json');
+      writeWhole(io, 'branches', jsonText(analysisJson(pattern, analysis, at, given), !!values.pretty) + '\n', undefined, [], 'escaped');
       return EXIT.ok;
     }
     if (values.pretty) throw new UsageError('--pretty is for --json');

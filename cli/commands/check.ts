@@ -37,7 +37,7 @@ usable, 2 when it is refused.
     const pretty = !!values.pretty;
     if (values.json && path) {
       const read = io.readFile(path);
-      const print = (v: unknown) => writeWhole(io, 'check', jsonText(v, pretty) + '\n', undefined, [], 'json');
+      const print = (v: unknown) => writeWhole(io, 'check', jsonText(v, pretty) + '\n', undefined, [], 'escaped');
       if (read.bytes === undefined) {
         print({ valid: false, messages: [{ severity: 'error', code: 'unreadable-file', text: read.error }] });
         return EXIT.usage;

@@ -74,7 +74,7 @@ Exit status: 0 every row solved; 3 some rows flagged; 2 invalid input (with the 
     }
     const clash = holds.find((h) => schedule.drives.includes(h.crease));
     if (clash) throw new UsageError(`--hold: ${pattern.creases[clash.crease].label} is a column of the schedule`);
-    const out = openOutput(io, 'follow', values.out as string | undefined, [file, csvPath], format === 'json' ? 'json' : 'text');
+    const out = openOutput(io, 'follow', values.out as string | undefined, [file, csvPath], 'escaped');
     if (!out) return EXIT.usage;
     let r;
     try {

@@ -80,7 +80,7 @@ Exit status: 0 every node solved; 3 some nodes flagged; 2 invalid input; 130 sto
     const holds = holdsOption(io, loaded, values.hold as string[] | undefined, file!);
     if (!holds) return EXIT.usage;
     if (holds.some((h) => h.crease === x.drive || h.crease === y.drive)) throw new UsageError('--hold: a grid drive cannot also be held');
-    const out = openOutput(io, 'grid', values.out as string | undefined, [file], format === 'json' ? 'json' : 'text');
+    const out = openOutput(io, 'grid', values.out as string | undefined, [file], 'escaped');
     if (!out) return EXIT.usage;
     let r;
     try {

@@ -152,7 +152,7 @@ over a limit; 2 invalid input; 130 stopped by Ctrl-C (the rows computed are writ
       hingeLimits: new Map([...hingeLimits].map(([c, l]) => [c, { ...global, ...l }])),
       keepRows: false,
     };
-    const out = openOutput(io, 'schedule', values.out as string | undefined, [file], format === 'json' ? 'json' : 'text');
+    const out = openOutput(io, 'schedule', values.out as string | undefined, [file], 'escaped');
     if (!out) return EXIT.usage;
     const writer = new ScheduleTableWriter(pattern, tableHeader(loaded, file!, 'schedule', argv), drive, holds, options.profile, {
       format, digits, pretty: !!values.pretty, fromDegrees: from, toDegrees: to,

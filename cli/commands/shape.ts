@@ -66,7 +66,7 @@ other panel turns about the creases between it and the base. Vertex positions ar
       : jsonText(shapeToJSON(pattern, sh, { solution: k + 1, status: report.status, maxResidual: sol.maxResidual }), !!values.pretty) + '\n';
     for (const m of report.messages.filter((m) => m.severity !== 'info')) io.stderr(`${m.severity}: ${m.text}\n`);
     const out = values.out as string | undefined;
-    if (!writeWhole(io, 'shape', text, out, [path], format === 'json' ? 'json' : 'text', `${format.toUpperCase()}, ${sh.vertices.length} vertices`)) return EXIT.usage;
+    if (!writeWhole(io, 'shape', text, out, [path], format === 'json' ? 'escaped' : 'text', `${format.toUpperCase()}, ${sh.vertices.length} vertices`)) return EXIT.usage;
     // STL has no comment lines to carry the cautions, so they are said here
     if (format === 'stl') io.stderr(`${CAUTIONS}\n`);
     return exitForStatus(report.status);

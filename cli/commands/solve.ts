@@ -67,7 +67,7 @@ Exit status: 0 solved / several solutions / overspecified but consistent / depen
       const out = omitted.length
         ? { ...json, omitted: { count: omitted.length, groups: groups.map((g) => ({ count: g.count, solutions: g.solutions, text: g.text })) } }
         : json;
-      writeWhole(io, 'solve', jsonText(out, !!values.pretty) + '\n', undefined, [], 'json');
+      writeWhole(io, 'solve', jsonText(out, !!values.pretty) + '\n', undefined, [], 'escaped');
       return exitForStatus(report.status);
     }
     if (values.pretty) throw new UsageError('--pretty is for --json');

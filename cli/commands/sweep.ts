@@ -126,7 +126,7 @@ export async function runSweepTable(io: Io, command: string, argv: string[], val
   const { loaded, file, options, holds } = setup;
   const { pattern } = loaded;
   const digits = digitsOption(values.digits);
-  const out: Output | undefined = openOutput(io, command, values.out as string | undefined, setup.inputFiles, format === 'json' ? 'json' : 'text');
+  const out: Output | undefined = openOutput(io, command, values.out as string | undefined, setup.inputFiles, format === 'text' ? 'text' : 'escaped');
   if (!out) return EXIT.usage;
   let begun = false;
   let onSample: (s: SweepSample) => void;
