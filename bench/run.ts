@@ -12,7 +12,7 @@
 // CPU time and peak memory come from GNU time (/usr/bin/time, Debian package "time"); without it only the
 // wall time is shown. Each row is one process, so its peak memory is that command's own.
 import { execFileSync, spawnSync } from 'node:child_process';
-import { existsSync, mkdtempSync, readFileSync, rmSync, statSync, writeFileSync } from 'node:fs';
+import { closeSync, existsSync, mkdtempSync, openSync, readFileSync, readSync, rmSync, statSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { miura } from '../solver/model/generators';
@@ -137,6 +137,19 @@ function commands(s: Sheet): { what: string; argv: (out: string) => string[]; ex
   ];
 }
 
+/** The end of a file (a table's tail), however large the file. */
+function lastBytes(file: string, n: number): string {
+  const fd = openSync(file, 'r');
+  try {
+    const size = statSync(file).size;
+    const buf = Buffer.alloc(Math.min(n, size));
+    readSync(fd, buf, 0, buf.length, size - buf.length);
+    return buf.toString('utf8');
+  } finally {
+    closeSync(fd);
+  }
+}
+
 /** What a table says about itself (status, samples, largest residual), from its tail. */
 function tail(text: string): string {
   const get = (k: string) => new RegExp(`(?:^# ${k}: |"${k}":)"?([^"\\n,]*)`, 'm').exec(text)?.[1];
@@ -158,7 +171,7 @@ if (chosen.length) {
       const argv = c.argv(out);
       const toFile = argv.includes('--out');
       const m = measure([process.execPath, CLI, ...argv], toFile ? out : undefined);
-      const text = toFile && existsSync(out) && m.bytes < 64 << 20 ? readFileSync(out, 'utf8').slice(-20000) : m.out.slice(-20000);
+      const text = toFile && existsSync(out) ? lastBytes(out, 20000) : m.out.slice(-20000);
       const result = m.code === null ? `stopped after ${LIMIT_S} s` : `exit ${m.code}${tail(text) ? `; ${tail(text)}` : ''}`;
       console.log(`| ${s.title} | ${s.creases} | ${c.what} | ${fmt(m.cpu)} s | ${fmt(m.wall)} s | ${mib(m.rssMiB)} MiB | ${size(m.bytes)} | ${result} |`);
       rmSync(out, { force: true });
