@@ -297,3 +297,14 @@ describe('text for people', () => {
     expect(line).toMatch(/peak velocity -?\d+(\.\d{1,4})? deg\/s/);
   });
 });
+
+describe('schedules echo their ends', () => {
+  it('the first and last rows are at --from and --to exactly as given (5 and 61, not a rounding of them)', async () => {
+    await setup();
+    const j = JSON.parse((await runIn(['schedule', coupon, '--drive', 'c0', '--from', '5', '--to', '61', '--time', '3', '--rows', '4', '--format', 'json'])).out);
+    expect(j.rows[0].drive).toBe(5);
+    expect(j.rows[3].drive).toBe(61);
+    expect(j.rows[3].angles[j.columns.indexOf('c0')]).toBe(61);
+    expect(j.profile).toMatch(/^trapezoid from 5 to 61 deg in 3 s/);
+  });
+});

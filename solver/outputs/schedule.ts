@@ -123,7 +123,9 @@ export function driveProfile(spec: ProfileSpec): { profile?: DriveProfile; messa
     else if (tc <= T - ta) { x = (vmax * ta) / 2 + vmax * (tc - ta); v = vmax; a = 0; }
     else { const [xr, vr, ar] = accelPhase(T - tc); x = dist - xr; v = vr; a = -ar; }
     if (ta === 0) { x = vmax * tc; v = vmax; a = 0; }
-    return { t, position: spec.from + sign * x, velocity: sign * v, acceleration: sign * a };
+    // the ends are the values as given, exactly (from + (to − from) can miss `to` by a rounding)
+    const position = tc >= T ? spec.to : tc <= 0 ? spec.from : spec.from + sign * x;
+    return { t, position, velocity: sign * v, acceleration: sign * a };
   };
   return { profile: { spec, accelTime: ta, jerkTime: tj, peakVelocity: vmax, peakAcceleration: amax, at } };
 }
