@@ -5,6 +5,7 @@ import { promises as fs } from 'node:fs';
 import path from 'node:path';
 import { randomBytes } from 'node:crypto';
 import { z } from 'zod';
+import { decodeUtf8 } from '../solver/formats/text';
 import { RecentFileSchema, RecoveryEntrySchema, ProjectSchema, type ProjectDto, type RecoveryEntry } from './contract';
 
 /** Files larger than this are refused before reading: a pattern file of this size is almost surely not one. */
@@ -21,13 +22,17 @@ export async function readTextFile(filePath: string): Promise<ReadOutcome> {
       return { ok: false, code: 'file-too-large', message: `${name} is ${(stat.size / 1e6).toFixed(0)} MB; the limit is ${MAX_OPEN_BYTES / 1e6} MB` };
     }
     const bytes = await fs.readFile(filePath);
-    const text = new TextDecoder('utf-8', { fatal: true }).decode(bytes);
-    return { ok: true, text: text.charCodeAt(0) === 0xfeff ? text.slice(1) : text };
+    // the command line's reader: invalid UTF-8 refused with its line and byte, a byte-order mark dropped
+    const decoded = decodeUtf8(bytes, 'file');
+    if (decoded.text === undefined) {
+      const m = decoded.messages[0];
+      return { ok: false, code: m.code === 'not-utf8' ? 'not-text' : m.code, message: `${name}: ${m.text}` };
+    }
+    return { ok: true, text: decoded.text };
   } catch (err) {
     const code = (err as NodeJS.ErrnoException).code;
     if (code === 'ENOENT') return { ok: false, code: 'file-missing', message: `${name} no longer exists at ${path.dirname(filePath)}` };
     if (code === 'EACCES' || code === 'EPERM') return { ok: false, code: 'file-denied', message: `${name} cannot be read: permission denied` };
-    if (err instanceof TypeError) return { ok: false, code: 'not-text', message: `${name} is not UTF-8 text` };
     return { ok: false, code: 'read-failed', message: `${name} cannot be read: ${(err as Error).message}` };
   }
 }
