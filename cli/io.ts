@@ -19,6 +19,7 @@ import {
 } from 'node:fs';
 import { basename, dirname, join, resolve } from 'node:path';
 import { isatty } from 'node:tty';
+import type { DrawingOptions } from '../solver/formats/drawing';
 
 /** A place output goes to, a piece at a time; commit() makes it final, abort() leaves the old state. */
 export interface OutputTarget {
@@ -48,6 +49,8 @@ export interface Io {
   interrupts?(): number;
   /** true when stderr is a terminal (progress lines are drawn only then, or when forced) */
   stderrIsTTY: boolean;
+  /** how to read DXF and SVG drawings (--layer, --stroke, --snap), when the command line gave any */
+  drawing?: DrawingOptions;
 }
 
 /** The reader has closed standard output (EPIPE): stop at once, quietly. */

@@ -44,7 +44,7 @@ export function loadFile(io: Io, path: string | undefined, command: string): Loa
     return undefined;
   }
   const bytes = read.bytes;
-  const result = loadPatternBytes(bytes, path);
+  const result = loadPatternBytes(bytes, path, io.drawing);
   const errors = result.messages.filter((m) => m.severity === 'error');
   if (!result.pattern || !result.project || errors.length) {
     printMessages(io, result.messages, `${path}: `);

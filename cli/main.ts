@@ -5,6 +5,7 @@ import { EXIT } from './exit-codes';
 import { BrokenPipe, nodeIo, type Io } from './io';
 import { escapeControlsKeepLines } from '../solver/formats/escape';
 import { VERSION } from './version';
+import { DRAWING_OPTIONS_HELP, takeDrawingOptions } from './drawing-options';
 
 export const USAGE = `hingeplan ${VERSION}: fold-angle solver for rigid-panel deployable structures
 
@@ -43,16 +44,22 @@ export async function main(argv: string[], rawIo: Io): Promise<number> {
     const entry = commands.find((c) => c.name === name);
     if (!entry) {
       const near = nearestCommand(name);
-      io.stderr(`hingeplan: unknown command "${name}"${near ? `; did you mean "${near}"?` : "."} Commands: ${commands.map((c) => c.name).join(', ')} (hingeplan --help)\n`);
+      io.stderr(`hingeplan: unknown command "${name}"${near ? `; did you mean "${near}"?` : '.'} Commands: ${commands.map((c) => c.name).join(', ')} (hingeplan --help)\n`);
       return EXIT.usage;
     }
     if (entry.resumable) io.onInterrupt(() => { /* counted from now on; the command's steps stop on it */ });
     const command = await entry.load();
     if (rest.includes('--help') || rest.includes('-h')) {
-      io.stdout(command.help.endsWith('\n') ? command.help : command.help + '\n');
+      const help = command.readsNoPattern ? command.help : command.help.trimEnd() + '\n' + DRAWING_OPTIONS_HELP;
+      io.stdout(help.endsWith('\n') ? help : help + '\n');
       return EXIT.ok;
     }
-    const code = await command.run(rest, io);
+    let code: number;
+    if (!command.readsNoPattern) {
+      // drawings (DXF, SVG) are read with the same options by every command that loads a pattern
+      const taken = takeDrawingOptions(rest);
+      code = await command.run(taken.argv, { ...io, drawing: taken.options });
+    } else code = await command.run(rest, io);
     return io.interrupts?.() ? EXIT.interrupted : code;
   } catch (e) {
     if (e instanceof BrokenPipe) return EXIT.brokenPipe;

@@ -4,11 +4,15 @@
 // controls as \u escapes (the value read back is the same), text (CSV, OBJ, STL, tables for people) shows
 // every control character as \xHH.
 import type { TextSink } from '../solver/outputs/table';
-import { escapeControlsKeepLines, jsonSafe } from '../solver/formats/escape';
+import { escapeControlsInFile, escapeControlsKeepLines, jsonSafe } from '../solver/formats/escape';
 import type { Io, OutputTarget } from './io';
 
-/** json: JSON from elsewhere (C1 controls escaped on the way); text: text (every control escaped); escaped: written by our own writers, which escape what they take from files (nothing to do). */
-export type OutputKind = 'json' | 'text' | 'escaped';
+/**
+ * json: JSON from elsewhere (C1 controls escaped on the way); text: text for people (every control escaped
+ * but line feeds and tabs); file: a text file format (the same, carriage returns kept for CRLF formats such
+ * as DXF); escaped: written by our own writers, which escape what they take from files (nothing to do).
+ */
+export type OutputKind = 'json' | 'text' | 'file' | 'escaped';
 
 /** Pieces gathered into chunks of this many characters before they are written. */
 const CHUNK = 1 << 16;
@@ -20,7 +24,7 @@ export class Output implements TextSink {
   private readonly clean: (t: string) => string;
 
   constructor(private readonly io: Io, private readonly command: string, private readonly target: OutputTarget | undefined, kind: OutputKind) {
-    this.clean = kind === 'json' ? jsonSafe : kind === 'text' ? escapeControlsKeepLines : (t) => t;
+    this.clean = kind === 'json' ? jsonSafe : kind === 'text' ? escapeControlsKeepLines : kind === 'file' ? escapeControlsInFile : (t) => t;
   }
 
   get toFile(): boolean {

@@ -7,6 +7,7 @@ import { randomBytes } from 'node:crypto';
 import { z } from 'zod';
 import { decodeUtf8 } from '../solver/formats/text';
 import { RecentFileSchema, RecoveryEntrySchema, ProjectSchema, type ProjectDto, type RecoveryEntry } from './contract';
+import { decodeDxf } from '../solver/formats/dxf-text';
 
 /** Files larger than this are refused before reading: a pattern file of this size is almost surely not one. */
 export const MAX_OPEN_BYTES = 256 * 1024 * 1024;
@@ -22,6 +23,8 @@ export async function readTextFile(filePath: string): Promise<ReadOutcome> {
       return { ok: false, code: 'file-too-large', message: `${name} is ${(stat.size / 1e6).toFixed(0)} MB; the limit is ${MAX_OPEN_BYTES / 1e6} MB` };
     }
     const bytes = await fs.readFile(filePath);
+    // a DXF from before AutoCAD 2007 is in a Windows code page, not UTF-8
+    if (/\.dxf$/i.test(filePath)) return { ok: true, text: decodeDxf(bytes).text };
     // the command line's reader: invalid UTF-8 refused with its line and byte, a byte-order mark dropped
     const decoded = decodeUtf8(bytes, 'file');
     if (decoded.text === undefined) {

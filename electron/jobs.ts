@@ -15,8 +15,10 @@ import {
   singleVertex,
   solveDrives,
   waterbomb,
+  writeDxf,
   writeFold,
   writeProject,
+  writeSvg,
   type Drive,
   type Pattern,
   type PatternSource,
@@ -267,6 +269,10 @@ export function exportJob(state: JobState, payload: unknown, ctx?: JobContext): 
   switch (req.kind) {
     case 'fold':
       return { data: writeFold(req.project as Project, req.options.anglesDeg ? { foldAngles: angles() } : {}), extension: 'fold' };
+    case 'dxf':
+      return { data: writeDxf(req.project as Project), extension: 'dxf' };
+    case 'svg':
+      return { data: writeSvg(req.project as Project), extension: 'svg' };
     case 'obj':
       return { data: shapeToOBJ(pattern, foldedShape(pattern, angles(), base)), extension: 'obj' };
     case 'stl':

@@ -13,6 +13,7 @@ import {
   type ExportKind,
   type MessageDto,
   type OpenResult,
+  type OpenedDocument,
   type ParsedRequestOf,
   type ProjectDto,
   type ResponseOf,
@@ -70,9 +71,12 @@ export type Handlers = { [C in Channel]: (request: ParsedRequestOf<C>) => Promis
 
 const PROJECT_FILTER: FileFilter = { name: 'Hingeplan project', extensions: ['json'] };
 const FOLD_FILTER: FileFilter = { name: 'FOLD crease pattern', extensions: ['fold'] };
+const DRAWING_FILTER: FileFilter = { name: 'Drawing (DXF or SVG)', extensions: ['dxf', 'svg'] };
 
 export const EXPORT_FILES: Record<ExportKind, { title: string; filter: FileFilter; suffix: string }> = {
   fold: { title: 'Export FOLD', filter: FOLD_FILTER, suffix: '.fold' },
+  dxf: { title: 'Export flat pattern as DXF', filter: { name: 'DXF drawing', extensions: ['dxf'] }, suffix: '.dxf' },
+  svg: { title: 'Export flat pattern as SVG', filter: { name: 'SVG drawing', extensions: ['svg'] }, suffix: '.svg' },
   obj: { title: 'Export folded shape (OBJ)', filter: { name: 'Wavefront OBJ', extensions: ['obj'] }, suffix: '.obj' },
   stl: { title: 'Export folded shape (STL)', filter: { name: 'STL mesh', extensions: ['stl'] }, suffix: '.stl' },
   'shape-json': { title: 'Export folded shape (JSON)', filter: { name: 'JSON', extensions: ['json'] }, suffix: '.shape.json' },
@@ -81,7 +85,7 @@ export const EXPORT_FILES: Record<ExportKind, { title: string; filter: FileFilte
 };
 
 function baseName(name: string): string {
-  return name.replace(/\.hingeplan\.json$/i, '').replace(/\.(json|fold)$/i, '') || 'pattern';
+  return name.replace(/\.hingeplan\.json$/i, '').replace(/\.(json|fold|dxf|svg)$/i, '') || 'pattern';
 }
 
 export function exportFileName(kind: ExportKind, suggestedName: string, format: 'csv' | 'json'): string {
@@ -103,7 +107,7 @@ function jobAnswer<T>(outcome: LaneOutcome<T>): { status: 'done'; value: T } | {
 
 interface LoadAnswer {
   ok: boolean;
-  format: 'project' | 'fold';
+  format: OpenedDocument['format'];
   project?: ProjectDto;
   messages: MessageDto[];
 }
@@ -181,8 +185,12 @@ export function createService(deps: ServiceDeps) {
     },
 
     async 'doc:open'({ format }) {
-      const filters = format === 'fold' ? [FOLD_FILTER] : [{ name: 'Patterns', extensions: ['json', 'fold'] }, PROJECT_FILTER, FOLD_FILTER];
-      const chosen = await host.chooseOpenFile({ title: format === 'fold' ? 'Import FOLD' : 'Open pattern', filters });
+      const filters =
+        format === 'fold' ? [FOLD_FILTER]
+        : format === 'drawing' ? [DRAWING_FILTER]
+        : [{ name: 'Patterns', extensions: ['json', 'fold', 'dxf', 'svg'] }, PROJECT_FILTER, FOLD_FILTER, DRAWING_FILTER];
+      const title = format === 'fold' ? 'Import FOLD' : format === 'drawing' ? 'Import drawing (DXF or SVG)' : 'Open pattern';
+      const chosen = await host.chooseOpenFile({ title, filters });
       if (!chosen) return { status: 'canceled' };
       return openFile(chosen, { computePath: true });
     },
@@ -201,7 +209,8 @@ export function createService(deps: ServiceDeps) {
     },
 
     async 'doc:save'({ project, filePath, saveAs, suggestedName }) {
-      let target = !saveAs && filePath && approved.has(filePath) && !/\.fold$/i.test(filePath) ? filePath : null;
+      // a FOLD file or a drawing is not written over with a project: saving asks where
+      let target = !saveAs && filePath && approved.has(filePath) && !/\.(fold|dxf|svg)$/i.test(filePath) ? filePath : null;
       if (!target) {
         target = await host.chooseSaveFile({ title: 'Save project', defaultName: `${baseName(suggestedName)}.hingeplan.json`, filters: [PROJECT_FILTER] });
         if (!target) return { status: 'canceled' };

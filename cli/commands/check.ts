@@ -19,17 +19,17 @@ export const check: Command = {
   summary: 'validate a pattern file and summarise it (vertices, creases, panels, sheet, limits, diagnostics)',
   help: `Usage: hingeplan check <file> [--json [--pretty]]
 
-Reads a project file (.hingeplan.json) or a FOLD file (.fold), validates it, and prints a summary: vertices,
-interior vertices, creases by assignment (always M, V, U, F, B in that order), panels, holes, the flat sheet's
-size (its bounding box, in the file's units), the units, the base panel, the hinge limits, the drives stored in
-the file, and every diagnostic (with the vertex, crease or field it concerns). Exit status 0 when the file is
-usable, 2 when it is refused.
+Reads a project file (.hingeplan.json), a FOLD file (.fold) or a drawing (.dxf, .svg), validates it, and
+prints a summary: vertices, interior vertices, creases by assignment (always M, V, U, F, B in that order),
+panels, holes, the flat sheet's size (its bounding box, in the file's units), the units, the base panel, the
+hinge limits, the drives stored in the file, and every diagnostic (with the vertex, crease or field it
+concerns). Exit status 0 when the file is usable, 2 when it is refused.
 
   --json     JSON on stdout: {"valid", "name", "vertices", "interiorVertices", "creases", "assignments":
              {"M", "V", "U", "F", "B"}, "panels", "holes", "sheet": {"width", "height"}, "units" (null when
              the file gives none), "basePanel", "limits": [{"crease", "min"?, "max"? (deg)}], "drives":
-             [{"crease", "angle" (deg, as in the file)}], "messages"}; a refused file gives {"valid": false,
-             "messages"}.
+             [{"crease", "angle" (deg, as in the file)}], "cleaning"? (drawings: what each cleaning step did,
+             with the snap), "messages"}; a refused file gives {"valid": false, "messages"}.
   --pretty   indent the JSON.`,
   run(argv, io) {
     const { values, positionals } = parseCommandArgs(argv, { json: { type: 'boolean' }, pretty: { type: 'boolean' } });
@@ -42,13 +42,13 @@ usable, 2 when it is refused.
         print({ valid: false, messages: [{ severity: 'error', code: 'unreadable-file', text: read.error }] });
         return EXIT.usage;
       }
-      const r = loadPatternBytes(read.bytes, path);
+      const r = loadPatternBytes(read.bytes, path, io.drawing);
       const valid = !!r.pattern && !!r.project && !r.messages.some((m) => m.severity === 'error');
       if (!valid || !r.pattern || !r.project) {
         print({ valid: false, messages: r.messages.map(messageJson) });
         return EXIT.usage;
       }
-      print({ valid: true, ...summary(r.pattern, r.project), messages: r.messages.map(messageJson) });
+      print({ valid: true, ...summary(r.pattern, r.project), ...(r.cleaning ? { cleaning: r.cleaning } : {}), messages: r.messages.map(messageJson) });
       return EXIT.ok;
     }
     const loaded = loadFile(io, path, 'check');

@@ -184,7 +184,8 @@ over a limit; 2 invalid input; 130 stopped by Ctrl-C (the rows computed are writ
     if (!out.finish(out.toFile ? `${result.rowCount} rows` : undefined)) return EXIT.usage;
     if (interrupted || result.status === 'stopped') { io.stderr('hingeplan schedule: stopped by Ctrl-C; the rows computed so far are written, the rest are flagged.\n'); return EXIT_INTERRUPTED; }
     if (unreachable || result.status === 'failed') return EXIT.noSolution;
-    if (over) return EXIT.notDetermined;
+    // over a limit at a row, or between rows (at a profile breakpoint or a peak found between two rows)
+    if (over || result.hinges.some((h) => h.overBetweenRows)) return EXIT.notDetermined;
     return EXIT.ok;
   },
 };

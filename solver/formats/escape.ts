@@ -9,6 +9,9 @@ const CONTROLS_TEST = /[\u0000-\u001f\u007f-\u009f\u202a-\u202e\u2066-\u2069]/;
 /** The same, but line feeds and tabs pass (multi-line text for people). */
 const CONTROLS_BUT_LINES = /[\u0000-\u0008\u000b-\u001f\u007f-\u009f\u202a-\u202e\u2066-\u2069]/g;
 const CONTROLS_BUT_LINES_TEST = /[\u0000-\u0008\u000b-\u001f\u007f-\u009f\u202a-\u202e\u2066-\u2069]/;
+/** The same, but carriage returns pass too (file formats with CRLF line ends, such as DXF). */
+const CONTROLS_BUT_CRLF = /[\u0000-\u0008\u000b\u000c\u000e-\u001f\u007f-\u009f\u202a-\u202e\u2066-\u2069]/g;
+const CONTROLS_BUT_CRLF_TEST = /[\u0000-\u0008\u000b\u000c\u000e-\u001f\u007f-\u009f\u202a-\u202e\u2066-\u2069]/;
 /* eslint-enable no-control-regex */
 const C1 = /[\u007f-\u009f\u202a-\u202e\u2066-\u2069]/g;
 const C1_TEST = /[\u007f-\u009f\u202a-\u202e\u2066-\u2069]/;
@@ -26,6 +29,11 @@ export function escapeControls(text: string): string {
 /** Control characters escaped, line feeds and tabs kept: for whole blocks of text for people. */
 export function escapeControlsKeepLines(text: string): string {
   return CONTROLS_BUT_LINES_TEST.test(text) ? text.replace(CONTROLS_BUT_LINES, shown) : text;
+}
+
+/** Control characters escaped, line ends (LF and CRLF) and tabs kept: for text file formats (DXF, SVG, OBJ, STL). */
+export function escapeControlsInFile(text: string): string {
+  return CONTROLS_BUT_CRLF_TEST.test(text) ? text.replace(CONTROLS_BUT_CRLF, shown) : text;
 }
 
 /**

@@ -11,6 +11,11 @@ import { resolveDrives, type DriveSpec } from '../model/drives';
 import { MAX_CREASES, MAX_TEXT_BYTES, MAX_VERTICES, readJsonText } from './limits';
 import { parseFoldValue } from './fold';
 import { decodeUtf8 } from './text';
+import { decodeDxf } from './dxf-text';
+import { drawingToProject, type DrawingOptions } from './drawing';
+import { parseDxf } from './dxf';
+import { parseSvg } from './svg';
+import type { CleanCounts } from '../model/clean';
 
 export { MAX_CREASES, MAX_TEXT_BYTES, MAX_VERTICES };
 
@@ -271,22 +276,44 @@ export function writeProject(project: Project): string {
 
 // ---------------------------------------------------------------------------------------------------
 
+export type PatternFormat = 'project' | 'fold' | 'dxf' | 'svg';
+
 export interface LoadResult {
   /** which reader took the file */
-  format?: 'project' | 'fold';
+  format?: PatternFormat;
   project?: Project;
   /** present when the pattern built without errors (drive errors do not remove it) */
   pattern?: Pattern;
   /** the project's drives that passed the checks, resolved to crease indices and radians */
   drives?: Drive[];
+  /** DXF and SVG: what the geometry cleaning did, step by step, and the snap it used */
+  cleaning?: CleanCounts & { snap: number };
   messages: Message[];
+}
+
+/** A drawing format told by the file's extension, else by its first characters; undefined for JSON. */
+export function drawingFormat(text: string, fileName?: string): 'dxf' | 'svg' | undefined {
+  if (typeof fileName === 'string') {
+    if (/\.dxf$/i.test(fileName)) return 'dxf';
+    if (/\.svg$/i.test(fileName)) return 'svg';
+    if (/\.(json|fold)$/i.test(fileName)) return undefined;
+  }
+  if (typeof text !== 'string') return undefined;
+  const head = text.slice(0, 4096).replace(/^\uFEFF/, '').trimStart();
+  if (head.startsWith('{') || head.startsWith('[')) return undefined;
+  if (head.startsWith('<') && /<svg[\s>]/.test(head)) return 'svg';
+  if (/^(0\s*\r?\n\s*SECTION|999\s*\r?\n)/.test(head) || head.startsWith('AutoCAD Binary DXF')) return 'dxf';
+  return undefined;
 }
 
 /**
  * Read any pattern file the program knows (a project or FOLD, told apart by the `.fold` extension or a
- * `vertices_coords` key), build the pattern and check the drives. Never throws.
+ * `vertices_coords` key; a DXF or SVG drawing, by extension or content), build the pattern and check the
+ * drives. `drawing` says how to read a drawing's layers, colours and snap. Never throws.
  */
-export function loadPatternText(text: string, fileName?: string): LoadResult {
+export function loadPatternText(text: string, fileName?: string, drawing: DrawingOptions = {}): LoadResult {
+  const kind = drawingFormat(text, fileName);
+  if (kind) return loadDrawing(kind, text, fileName, drawing);
   const read = readJsonText(text, 'file');
   if (read.value === undefined) return { messages: read.messages };
   const value = read.value;
@@ -306,14 +333,29 @@ export function loadPatternText(text: string, fileName?: string): LoadResult {
   return { format, project, pattern: built.pattern, drives: resolved.drives, messages };
 }
 
+function loadDrawing(format: 'dxf' | 'svg', text: string, fileName: string | undefined, options: DrawingOptions): LoadResult {
+  const drawing = format === 'dxf' ? parseDxf(text, fileName) : parseSvg(text, fileName);
+  const r = drawingToProject(drawing, options);
+  const base: LoadResult = { format, messages: r.messages };
+  if (r.cleaning) base.cleaning = r.cleaning;
+  if (!r.project) return base;
+  const built = buildPattern(r.project.source);
+  base.messages = [...r.messages, ...built.messages.map((m) => (r.locate ? r.locate(m) : m))];
+  base.project = r.project;
+  if (!built.pattern) return base;
+  return { ...base, pattern: built.pattern, drives: [] };
+}
+
 /**
- * loadPatternText for a file's bytes, as the shells read them: invalid UTF-8 is refused with its place (see
- * ./text.ts) before anything else. Hash these same bytes for a table header.
+ * loadPatternText for a file's bytes, as the shells read them. A DXF file is decoded as DXF says (UTF-8 from
+ * AutoCAD 2007 on, its code page before: ./dxf-text.ts); every other file must be UTF-8, and invalid bytes
+ * are refused with their place (./text.ts) before anything else. Hash these same bytes for a table header.
  */
-export function loadPatternBytes(bytes: Uint8Array, fileName?: string): LoadResult {
+export function loadPatternBytes(bytes: Uint8Array, fileName?: string, drawing: DrawingOptions = {}): LoadResult {
+  if (typeof fileName === 'string' && /\.dxf$/i.test(fileName)) return loadPatternText(decodeDxf(bytes).text, fileName, drawing);
   const decoded = decodeUtf8(bytes, 'file');
   if (decoded.text === undefined) return { messages: decoded.messages };
-  return loadPatternText(decoded.text, fileName);
+  return loadPatternText(decoded.text, fileName, drawing);
 }
 
 /** Point a pattern message at the place in the file, in that file's own field names. */

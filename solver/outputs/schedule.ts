@@ -150,6 +150,8 @@ export interface ScheduleOptions {
   limits?: HingeLimits;
   /** limits per crease index (override the global ones) */
   hingeLimits?: Map<number, HingeLimits>;
+  /** how the path is followed (see SweepOptions.method) */
+  method?: SweepOptions['method'];
 }
 
 export interface ScheduleRow {
@@ -171,10 +173,29 @@ export interface ScheduleRow {
 
 export interface HingeSummary {
   crease: number;
+  /** largest |velocity| (rad/s) over the rows and the profile's checks between them, and when */
   peakRate: number;
+  peakRateAt: number;
+  /** largest |acceleration| (rad/s²), and when */
   peakAcceleration: number;
+  peakAccelerationAt: number;
   rowsOverRate: number;
   rowsOverAcceleration: number;
+  /** over a limit between rows (at a profile breakpoint or a peak found between two rows) */
+  overBetweenRows: boolean;
+}
+
+/** A state solved between rows, where some hinge's velocity or acceleration may peak. */
+export interface ProfileCheck {
+  t: number;
+  drive: number;
+  /** why this instant: a phase boundary of the profile, or a peak between two rows */
+  reason: 'breakpoint' | 'peak';
+  velocities: Float64Array;
+  accelerations: Float64Array;
+  maxResidual: number;
+  overRate: number[];
+  overAcceleration: number[];
 }
 
 export interface ScheduleResult {
@@ -182,6 +203,8 @@ export interface ScheduleResult {
   rows: ScheduleRow[];
   /** how many time rows the schedule has */
   rowCount: number;
+  /** states between rows where peaks were looked for (the limits hold between rows too) */
+  checks: ProfileCheck[];
   hinges: HingeSummary[];
   events: SweepEvent[];
   messages: Message[];
@@ -236,7 +259,7 @@ export interface ScheduleHooks extends SweepHooks {
  */
 export function* scheduleSteps(pattern: Pattern, opts: ScheduleOptions & { keepRows?: boolean }, hooks: ScheduleHooks = {}): Generator<void, ScheduleResult> {
   const messages: Message[] = [];
-  const failed = (m: Message): ScheduleResult => ({ rows: [], hinges: [], events: [], messages: [m], status: 'failed', rowCount: 0 });
+  const failed = (m: Message): ScheduleResult => ({ rows: [], checks: [], hinges: [], events: [], messages: [m], status: 'failed', rowCount: 0 });
   const { profile, message } = driveProfile(opts.profile);
   if (!profile) return failed(message!);
   const planned = timeRows(opts.profile.duration, opts.dt, opts.rows, pattern.creases.length);
@@ -245,7 +268,10 @@ export function* scheduleSteps(pattern: Pattern, opts: ScheduleOptions & { keepR
   // the path is solved at distinct drive values in order (rest phases repeat a value)
   const values: number[] = [];
   for (const s of states) if (!values.length || s.position !== values[values.length - 1]) values.push(s.position);
-  const keep = opts.keepRows ?? true;
+  const limitOf = (c: number): HingeLimits => opts.hingeLimits?.get(c) ?? opts.limits ?? {};
+  // the peaks between rows are looked for from the solved rows, so with limits the rows are kept
+  const limited = pattern.creases.some((c) => limitOf(c.index).maxRate !== undefined || limitOf(c.index).maxAcceleration !== undefined);
+  const keep = (opts.keepRows ?? true) || limited;
   const rows: ScheduleRow[] = [];
   const summary = new HingeTally(pattern);
   let next = 0;
@@ -257,7 +283,6 @@ export function* scheduleSteps(pattern: Pattern, opts: ScheduleOptions & { keepR
     hooks.onRow?.(row, next);
     next++;
   };
-  const limitOf = (c: number): HingeLimits => opts.hingeLimits?.get(c) ?? opts.limits ?? {};
   const n = pattern.creases.length;
   const solvedRow = (st: ProfileState, s: SweepSample): ScheduleRow => {
     const velocities = new Float64Array(n);
@@ -281,6 +306,7 @@ export function* scheduleSteps(pattern: Pattern, opts: ScheduleOptions & { keepR
     branch: opts.branch,
     solution: opts.solution,
     curvature: true,
+    method: opts.method,
     keepSamples: false,
   };
   const path = yield* sweepSteps(pattern, sweepOpts, {
@@ -294,11 +320,13 @@ export function* scheduleSteps(pattern: Pattern, opts: ScheduleOptions & { keepR
     const st = states[next];
     emit({ t: st.t, drive: st.position, driveVelocity: st.velocity, driveAcceleration: st.acceleration, overRate: [], overAcceleration: [], unreachable: endText });
   }
+  const checks = yield* peaksBetweenRows(pattern, opts, profile, rows, limitOf, hooks);
+  for (const k of checks) summary.addCheck(k);
   const hinges = summary.hinges();
   if (unreachable) {
     messages.push({ severity: 'error', code: 'unreachable-rows', text: `${unreachable} of ${states.length} rows have no state on the path (${endText}); they are flagged and the others are solved.` });
   }
-  const over = hinges.filter((h) => h.rowsOverRate || h.rowsOverAcceleration);
+  const over = hinges.filter((h) => h.rowsOverRate || h.rowsOverAcceleration || h.overBetweenRows);
   if (over.length) {
     messages.push({
       severity: 'warning',
@@ -306,9 +334,18 @@ export function* scheduleSteps(pattern: Pattern, opts: ScheduleOptions & { keepR
       text: `${over.length} hinge(s) exceed a rate or acceleration limit: ${over.slice(0, 6).map((h) => pattern.creases[h.crease].label).join(', ')}${over.length > 6 ? ` and ${over.length - 6} more` : ''}.`,
     });
   }
+  const between = hinges.filter((h) => h.overBetweenRows && !h.rowsOverRate && !h.rowsOverAcceleration);
+  if (between.length) {
+    messages.push({
+      severity: 'warning',
+      code: 'over-limit-between-rows',
+      text: `${between.map((h) => `${pattern.creases[h.crease].label} (peak ${(h.peakRate * DEG).toFixed(2)} deg/s at t = ${h.peakRateAt.toFixed(4)} s)`).slice(0, 6).join(', ')} exceed a limit between rows only: no row shows it; a finer time step puts a row there.`,
+    });
+  }
   return {
     rows,
     rowCount: states.length,
+    checks,
     hinges,
     events: path.events,
     messages,
@@ -318,38 +355,135 @@ export function* scheduleSteps(pattern: Pattern, opts: ScheduleOptions & { keepR
   };
 }
 
-/** Peaks and over-limit counts per movable hinge, added row by row. */
+/**
+ * Peaks (and when they happen) and over-limit counts per movable hinge, added row by row as the rows are
+ * made, then the profile's checks between rows (a limit passed there is marked overBetweenRows).
+ */
 class HingeTally {
   private readonly creases: number[];
-  private readonly peakRate: Float64Array;
-  private readonly peakAcceleration: Float64Array;
-  private readonly overRate: Uint32Array;
-  private readonly overAcceleration: Uint32Array;
+  private readonly h: HingeSummary[];
+  /** crease index → position in creases (−1 for boundary and flat creases) */
+  private readonly at: Int32Array;
 
   constructor(pattern: Pattern) {
     this.creases = pattern.creases.filter((c) => c.assignment !== 'B' && c.assignment !== 'F').map((c) => c.index);
-    const n = pattern.creases.length;
-    this.peakRate = new Float64Array(n);
-    this.peakAcceleration = new Float64Array(n);
-    this.overRate = new Uint32Array(n);
-    this.overAcceleration = new Uint32Array(n);
+    this.at = new Int32Array(pattern.creases.length).fill(-1);
+    this.creases.forEach((c, i) => { this.at[c] = i; });
+    this.h = this.creases.map((c) => ({ crease: c, peakRate: 0, peakRateAt: 0, peakAcceleration: 0, peakAccelerationAt: 0, rowsOverRate: 0, rowsOverAcceleration: 0, overBetweenRows: false }));
+  }
+
+  private take(t: number, v: Float64Array | undefined, a: Float64Array | undefined): void {
+    if (!v || !a) return;
+    this.creases.forEach((c, i) => {
+      const h = this.h[i];
+      if (Math.abs(v[c]) > h.peakRate) { h.peakRate = Math.abs(v[c]); h.peakRateAt = t; }
+      if (Math.abs(a[c]) > h.peakAcceleration) { h.peakAcceleration = Math.abs(a[c]); h.peakAccelerationAt = t; }
+    });
+  }
+
+  private index(c: number): HingeSummary | undefined {
+    const i = this.at[c];
+    return i >= 0 ? this.h[i] : undefined;
   }
 
   add(r: ScheduleRow): void {
-    if (r.velocities && r.accelerations) {
-      for (const c of this.creases) {
-        const v = Math.abs(r.velocities[c]), a = Math.abs(r.accelerations[c]);
-        if (v > this.peakRate[c]) this.peakRate[c] = v;
-        if (a > this.peakAcceleration[c]) this.peakAcceleration[c] = a;
-      }
-    }
-    for (const c of r.overRate) this.overRate[c]++;
-    for (const c of r.overAcceleration) this.overAcceleration[c]++;
+    this.take(r.t, r.velocities, r.accelerations);
+    for (const c of r.overRate) { const h = this.index(c); if (h) h.rowsOverRate++; }
+    for (const c of r.overAcceleration) { const h = this.index(c); if (h) h.rowsOverAcceleration++; }
+  }
+
+  addCheck(k: ProfileCheck): void {
+    this.take(k.t, k.velocities, k.accelerations);
+    for (const c of [...k.overRate, ...k.overAcceleration]) { const h = this.index(c); if (h) h.overBetweenRows = true; }
   }
 
   hinges(): HingeSummary[] {
-    return this.creases.map((c) => ({ crease: c, peakRate: this.peakRate[c], peakAcceleration: this.peakAcceleration[c], rowsOverRate: this.overRate[c], rowsOverAcceleration: this.overAcceleration[c] }));
+    return this.h;
   }
+}
+
+/**
+ * The limits must hold between rows, not only at them. Hinge velocity ρ̇ = r(θ)·θ̇ and acceleration
+ * ρ̈ = r·θ̈ + r′·θ̇² peak where the profile switches phase (θ̈ jumps or turns: each side of the breakpoint is
+ * solved) and where they have a local maximum between two rows; for every limited hinge whose rows show a
+ * local maximum above 80 % of its limit, golden-section search on exactly solved states between the rows
+ * around it finds the peak.
+ */
+function* peaksBetweenRows(
+  pattern: Pattern,
+  opts: ScheduleOptions,
+  profile: DriveProfile,
+  rows: ScheduleRow[],
+  limitOf: (c: number) => HingeLimits,
+  hooks: SweepHooks,
+): Generator<void, ProfileCheck[]> {
+  const limited = pattern.creases.filter((c) => c.assignment !== 'B' && c.assignment !== 'F').map((c) => c.index)
+    .filter((c) => limitOf(c).maxRate !== undefined || limitOf(c).maxAcceleration !== undefined);
+  if (!limited.length) return [];
+  const T = profile.spec.duration, ta = profile.accelTime, tj = profile.jerkTime;
+  const solved = rows.map((r, k) => ({ r, k })).filter(({ r }) => r.angles);
+  if (!solved.length) return [];
+  const checks: ProfileCheck[] = [];
+  /** The exact state at time t, followed from the nearest solved row before it. */
+  const stateAt = function* (t: number): Generator<void, ProfileCheck | undefined> {
+    const st = profile.at(t);
+    let from = solved[0].r;
+    for (const { r } of solved) if (r.t <= t) from = r;
+    const res = yield* sweepSteps(pattern, {
+      drive: opts.drive, from: st.position, to: st.position, samples: [st.position],
+      holds: opts.holds, start: from.angles, curvature: true, conditionEvery: 0, analyzeBranches: false,
+    }, { shouldStop: hooks.shouldStop });
+    const s = res.samples[0];
+    if (!s) return undefined;
+    const n = pattern.creases.length;
+    const velocities = new Float64Array(n), accelerations = new Float64Array(n);
+    const overRate: number[] = [], overAcceleration: number[] = [];
+    for (let c = 0; c < n; c++) {
+      velocities[c] = s.rates[c] * st.velocity;
+      accelerations[c] = s.rates[c] * st.acceleration + (s.curvature?.[c] ?? 0) * st.velocity * st.velocity;
+      const lim = limitOf(c);
+      if (lim.maxRate !== undefined && Math.abs(velocities[c]) > lim.maxRate) overRate.push(c);
+      if (lim.maxAcceleration !== undefined && Math.abs(accelerations[c]) > lim.maxAcceleration) overAcceleration.push(c);
+    }
+    return { t, drive: st.position, reason: 'peak', velocities, accelerations, maxResidual: s.maxResidual, overRate, overAcceleration };
+  };
+  // 1. both sides of every phase boundary of the profile
+  const eps = 1e-9 * T;
+  const breaks = [tj, ta - tj, ta, T - ta, T - ta + tj, T - tj].filter((b) => b > eps && b < T - eps);
+  for (const b of [...new Set(breaks)]) {
+    for (const t of [b - eps, b + eps]) {
+      if (hooks.shouldStop?.()) return checks;
+      const c = yield* stateAt(t);
+      if (c) checks.push({ ...c, reason: 'breakpoint' });
+    }
+  }
+  // 2. local maxima between rows, refined
+  const gr = (Math.sqrt(5) - 1) / 2;
+  for (const c of limited) {
+    const lim = limitOf(c);
+    for (const kind of ['rate', 'acceleration'] as const) {
+      const limit = kind === 'rate' ? lim.maxRate : lim.maxAcceleration;
+      if (limit === undefined) continue;
+      const value = (r: { velocities?: Float64Array; accelerations?: Float64Array }) => Math.abs((kind === 'rate' ? r.velocities : r.accelerations)?.[c] ?? 0);
+      for (let q = 0; q < solved.length; q++) {
+        const v = value(solved[q].r);
+        const before = q > 0 ? value(solved[q - 1].r) : -1, after = q + 1 < solved.length ? value(solved[q + 1].r) : -1;
+        if (!(v >= before && v >= after) || v < 0.8 * limit) continue;
+        let a = q > 0 ? solved[q - 1].r.t : solved[q].r.t, b = q + 1 < solved.length ? solved[q + 1].r.t : solved[q].r.t;
+        if (b - a <= eps) continue;
+        let x1 = b - gr * (b - a), x2 = a + gr * (b - a);
+        let f1 = yield* stateAt(x1), f2 = yield* stateAt(x2);
+        for (let it = 0; it < 30 && b - a > 1e-6 * T; it++) {
+          if (hooks.shouldStop?.()) return checks;
+          if ((f1 ? value(f1) : -1) >= (f2 ? value(f2) : -1)) { b = x2; x2 = x1; f2 = f1; x1 = b - gr * (b - a); f1 = yield* stateAt(x1); }
+          else { a = x1; x1 = x2; f1 = f2; x2 = a + gr * (b - a); f2 = yield* stateAt(x2); }
+        }
+        const best = (f1 ? value(f1) : -1) >= (f2 ? value(f2) : -1) ? f1 : f2;
+        if (best) checks.push(best);
+      }
+    }
+  }
+  return checks.sort((p, q) => p.t - q.t);
 }
 
 // ---------------------------------------------------------------------------------------------------------
@@ -478,6 +612,8 @@ export interface FollowRow {
 
 export interface FollowResult {
   drives: number[];
+  /** the branch followed (from flat), or the start solution, as the first run chose it */
+  branch?: SweepResult['branch'];
   rows: FollowRow[];
   events: SweepEvent[];
   messages: Message[];
@@ -508,6 +644,7 @@ export function* followSteps(pattern: Pattern, schedule: ParsedSchedule, opts: F
   let stopped = false;
   const total = rows.length;
   let done = 0;
+  let branch: SweepResult['branch'];
   const progress = () => hooks.onProgress?.(done, total);
   if (moving.length <= 1) {
     const drive = moving[0] ?? schedule.drives[0];
@@ -544,6 +681,7 @@ export function* followSteps(pattern: Pattern, schedule: ParsedSchedule, opts: F
         }, { shouldStop: hooks.shouldStop });
         messages.push(...res.messages.filter((m) => (i === 0 ? m.code !== 'flat-sample' : m.severity === 'error')));
         events.push(...res.events);
+        if (!start) branch ??= res.branch;
         const byValue = new Map(res.samples.map((x) => [x.drive, x] as const));
         const why = res.events.find((e) => e.type !== 'branch-point')?.text ?? res.messages.find((m) => m.severity === 'error')?.text ?? 'no state on the path';
         for (const r of run) {
@@ -564,7 +702,7 @@ export function* followSteps(pattern: Pattern, schedule: ParsedSchedule, opts: F
       i = j;
     }
   } else {
-    yield* homotopyFollow(pattern, rows, moving, holds, opts, messages, hooks, () => { done++; progress(); }, () => { stopped = true; });
+    branch = yield* homotopyFollow(pattern, rows, moving, holds, opts, messages, hooks, () => { done++; progress(); }, () => { stopped = true; });
   }
   for (const r of rows) if (!r.angles && !r.unreachable) r.unreachable = stopped ? 'not computed (stopped)' : 'no state';
   const bad = rows.filter((r) => r.unreachable && r.unreachable !== 'not computed (stopped)');
@@ -579,7 +717,7 @@ export function* followSteps(pattern: Pattern, schedule: ParsedSchedule, opts: F
     }
     messages.push({ severity: 'error', code: 'unreachable-rows', text: `${bad.length} of ${rows.length} rows have no consistent state on the followed branch (${bad.length === 1 ? 'line' : 'lines'} ${bad.slice(0, 8).map((r) => r.line).join(', ')}${bad.length > 8 ? ', …' : ''}); they are flagged and the other rows are solved.` });
   }
-  return { drives: schedule.drives, rows, events, messages, status: stopped ? 'stopped' : bad.length ? 'partial' : 'complete' };
+  return { drives: schedule.drives, ...(branch ? { branch } : {}), rows, events, messages, status: stopped ? 'stopped' : bad.length ? 'partial' : 'complete' };
 }
 
 /** Several drives moving together: from row to row by homotopy in small steps, Newton at each. */
@@ -593,7 +731,7 @@ function* homotopyFollow(
   hooks: SweepHooks,
   onRow: () => void,
   onStop: () => void,
-): Generator<void, void> {
+): Generator<void, SweepResult['branch']> {
   const heldSet = new Set([...moving, ...holds.map((h) => h.crease)]);
   const problem = new ClosureProblem(pattern, (c) => heldSet.has(c));
   const first = rows[0];
@@ -605,8 +743,9 @@ function* homotopyFollow(
   if (!state) {
     messages.push({ severity: 'error', code: 'start-unreachable', text: `No ${opts.solution ? `solution ${opts.solution}` : 'state matching the assignment'} at the first row (line ${first.line}).` });
   }
+  const branch = state ? { id: k + 1, name: `solution ${k + 1}`, matchesAssignment: report.solutions[k].matchesAssignment, text: `solution ${k + 1} of the first row's values` } : undefined;
   for (let i = 0; i < rows.length; i++) {
-    if (hooks.shouldStop?.()) { onStop(); return; }
+    if (hooks.shouldStop?.()) { onStop(); return branch; }
     const r = rows[i];
     if (!state) { r.unreachable = 'no start state'; onRow(); continue; }
     if (i === 0) { r.angles = state; r.maxResidual = report.solutions[k].maxResidual; onRow(); continue; }
@@ -636,6 +775,7 @@ function* homotopyFollow(
     onRow();
     yield;
   }
+  return branch;
 }
 
 export type { SweepHooks };

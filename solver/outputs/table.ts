@@ -39,6 +39,12 @@ export interface AngleTableOptions extends TableOptions {
   fields?: RowField<SweepSample>[];
 }
 
+/** The branch a table followed, as its tail says it: id and name, and whether it follows the assignment. */
+function branchText(b: SweepResult['branch'] | undefined): string {
+  if (!b) return 'none';
+  return `${b.id !== undefined ? `${b.id} ` : ''}${b.name}${b.matchesAssignment ? ' (matches the mountain/valley assignment)' : ''}`;
+}
+
 // ---------------------------------------------------------------------------------------------------------
 // angle tables (a sweep)
 
@@ -86,9 +92,8 @@ export class AngleTableWriter {
       fields: opts.fields ?? [],
     });
     this.finish = (r: SweepResult) => {
-      const b = r.branch;
       this.stream.end({
-        branch: b ? `${b.id !== undefined ? `${b.id} ` : ''}${b.name}${b.matchesAssignment ? ' (matches the mountain/valley assignment)' : ''}` : 'none',
+        branch: branchText(r.branch),
         method: r.method,
         status: r.status,
         sampleCount: r.recorded,
@@ -201,11 +206,11 @@ export class ScheduleTableWriter {
       fields: opts.fields ?? [],
     });
     this.finish = (result) => {
-      const over = result.hinges.filter((h) => cols.includes(h.crease) && (h.rowsOverRate || h.rowsOverAcceleration));
+      const over = result.hinges.filter((h) => cols.includes(h.crease) && (h.rowsOverRate || h.rowsOverAcceleration || h.overBetweenRows));
       // peaks for people: four decimals (the rows themselves keep every digit)
-      const lines = over.map((h) => `over limit: ${label(h.crease)}: peak velocity ${decimalsText(h.peakRate * DEG, 4)} deg/s (${h.rowsOverRate} rows over), peak acceleration ${decimalsText(h.peakAcceleration * DEG, 4)} deg/s^2 (${h.rowsOverAcceleration} rows over)`);
+      const lines = over.map((h) => `over limit: ${label(h.crease)}: peak velocity ${decimalsText(h.peakRate * DEG, 4)} deg/s at t = ${decimalsText(h.peakRateAt, 6)} s (${h.rowsOverRate} rows over), peak acceleration ${decimalsText(h.peakAcceleration * DEG, 4)} deg/s^2 at t = ${decimalsText(h.peakAccelerationAt, 6)} s (${h.rowsOverAcceleration} rows over)${h.overBetweenRows ? '; over between rows too' : ''}`);
       this.stream.end({
-        branch: result.sweep?.branch ? `${result.sweep.branch.id ?? ''} ${result.sweep.branch.name}`.trim() : 'none',
+        branch: branchText(result.sweep?.branch),
         status: result.status,
         rowCount: result.rowCount,
         unreachableRows: this.unreachable,
@@ -215,9 +220,12 @@ export class ScheduleTableWriter {
               hinges: result.hinges.filter((h) => cols.includes(h.crease)).map((h) => ({
                 crease: label(h.crease),
                 peakVelocity: n.json(h.peakRate * DEG),
+                peakVelocityAt: n.json(h.peakRateAt),
                 peakAcceleration: n.json(h.peakAcceleration * DEG),
+                peakAccelerationAt: n.json(h.peakAccelerationAt),
                 rowsOverRate: h.rowsOverRate,
                 rowsOverAcceleration: h.rowsOverAcceleration,
+                overBetweenRows: h.overBetweenRows,
               })),
               events: eventsJson(pattern, result.events, n) as HeaderValue,
               messages: messagesJson(result.messages) as HeaderValue,
@@ -322,6 +330,7 @@ export function writeFollowTable(
   stream.begin();
   for (const r of result.rows) stream.row(r);
   stream.end({
+    branch: branchText(result.branch),
     status: result.status,
     rowCount: result.rows.length,
     unreachableRows: result.rows.filter((r) => r.unreachable).length,
