@@ -6,6 +6,7 @@
 import type { TextSink } from '../solver/outputs/table';
 import { escapeControlsInFile, escapeControlsKeepLines, jsonSafe } from '../solver/formats/escape';
 import type { Io, OutputTarget } from './io';
+import { writeJson } from '../solver/formats/json-text';
 
 /**
  * json: JSON from elsewhere (C1 controls escaped on the way); text: text for people (every control escaped
@@ -97,5 +98,14 @@ export function writeWhole(io: Io, command: string, text: string, out: string | 
   const o = openOutput(io, command, out, inputs, kind);
   if (!o) return false;
   o.write(text);
+  return o.finish(note);
+}
+
+/** Write a value as JSON (compact, or indented), a piece at a time: no size of value needs one string. */
+export function writeWholeJson(io: Io, command: string, value: unknown, pretty: boolean, out: string | undefined = undefined, inputs: (string | undefined)[] = [], note?: string): boolean {
+  const o = openOutput(io, command, out, inputs, 'escaped');
+  if (!o) return false;
+  writeJson((t) => o.write(t), value, pretty);
+  o.write('\n');
   return o.finish(note);
 }

@@ -5,6 +5,8 @@ import { sha256, sha256Bytes } from '../solver/outputs/sha256';
 import { angleTable, AngleTableWriter, csvCell, num, type RowField } from '../solver/outputs/table';
 import { runSteps, sweep, sweepSteps, type SweepSample } from '../solver/paths/sweep';
 import { CAUTIONS } from '../solver/formats/cautions';
+import { jsonText, writeJson } from '../solver/formats/json-text';
+import fc from 'fast-check';
 import { directionsFromSectors, vertexPattern } from './support/vertex';
 
 const D = Math.PI / 180;
@@ -146,5 +148,22 @@ describe('angle table (format version 2)', () => {
     expect(num(NaN)).toBe('');
     expect(num(Infinity)).toBe('inf');
     expect(csvCell('a,b')).toBe('"a,b"');
+  });
+});
+
+describe('JSON text', () => {
+  it('compact JSON text is JSON.stringify’s (ECMA-262) for JSON values of printable text (C1 controls are escaped on top); indented text parses to the same value', () => {
+    fc.assert(fc.property(fc.jsonValue({ maxDepth: 4 }), (v) => {
+      expect(jsonText(v)).toBe(JSON.stringify(v));
+      expect(JSON.parse(jsonText(v, true))).toEqual(JSON.parse(JSON.stringify(v)));
+    }), { numRuns: 500 });
+  });
+
+  it('written a piece at a time, it is the same text as written whole', () => {
+    fc.assert(fc.property(fc.jsonValue({ maxDepth: 4 }), fc.boolean(), (v, pretty) => {
+      const parts: string[] = [];
+      writeJson((t) => parts.push(t), v, pretty);
+      expect(parts.join('')).toBe(jsonText(v, pretty));
+    }), { numRuns: 500 });
   });
 });

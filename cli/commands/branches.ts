@@ -8,8 +8,7 @@ import { textTable } from '../table-text';
 import { branchesAt, flatBranches, type BranchAnalysis } from '../../solver/paths/branches';
 import { solveDrives } from '../../solver/search/solve';
 import type { Drive, Pattern } from '../../solver/types';
-import { writeWhole } from '../output';
-import { jsonText } from '../../solver/formats/json-text';
+import { writeWhole, writeWholeJson } from '../output';
 import { CAUTIONS } from '../../solver/formats/cautions';
 import { creaseOption, holdsOption, joinNegativeNumbers } from './path-common';
 
@@ -115,7 +114,7 @@ Exit status 0; 2 invalid input; 3 the --at values have no state.`,
       analysis = flatBranches(pattern, { held, drive });
     }
     if (values.json) {
-      writeWhole(io, 'branches', jsonText(analysisJson(pattern, analysis, at, given), !!values.pretty) + '\n', undefined, [], 'escaped');
+      writeWholeJson(io, 'branches', analysisJson(pattern, analysis, at, given), !!values.pretty);
       return EXIT.ok;
     }
     if (values.pretty) throw new UsageError('--pretty is for --json');

@@ -3,9 +3,8 @@ import { parseCommandArgs } from '../args';
 import { formatMessage, loadFile } from '../load';
 import { EXIT } from '../exit-codes';
 import { messageJson } from '../report-json';
-import { writeWhole } from '../output';
+import { writeWhole, writeWholeJson } from '../output';
 import { loadPatternBytes, type Project } from '../../solver/formats/project';
-import { jsonText } from '../../solver/formats/json-text';
 import { decimalsText } from '../../solver/formats/numbers';
 import type { Assignment, Pattern } from '../../solver/types';
 
@@ -37,7 +36,7 @@ concerns). Exit status 0 when the file is usable, 2 when it is refused.
     const pretty = !!values.pretty;
     if (values.json && path) {
       const read = io.readFile(path);
-      const print = (v: unknown) => writeWhole(io, 'check', jsonText(v, pretty) + '\n', undefined, [], 'escaped');
+      const print = (v: unknown) => writeWholeJson(io, 'check', v, pretty);
       if (read.bytes === undefined) {
         print({ valid: false, messages: [{ severity: 'error', code: 'unreadable-file', text: read.error }] });
         return EXIT.usage;

@@ -2,8 +2,7 @@ import type { Command } from '../command';
 import { intOption, parseCommandArgs, UsageError } from '../args';
 import { drivesFor, loadFile, printMessages } from '../load';
 import { EXIT, exitForStatus } from '../exit-codes';
-import { writeWhole } from '../output';
-import { jsonText } from '../../solver/formats/json-text';
+import { writeWhole, writeWholeJson } from '../output';
 import { CAUTIONS } from '../../solver/formats/cautions';
 import { solveDrives } from '../../solver/search/solve';
 import { foldedShape } from '../../solver/outputs/shape';
@@ -66,15 +65,15 @@ other panel turns about the creases between it and the base. Vertex positions ar
       io.stderr(`warning: the drives leave a family of states (${family.dof} degree(s) of freedom); the shape written is one member of it, not a solution. Add drives to fix the pattern (see hingeplan solve).\n`);
     }
     const sh = foldedShape(pattern, sol.angles, base);
-    const text =
-      format === 'obj' ? shapeToOBJ(pattern, sh)
-      : format === 'stl' ? shapeToSTL(pattern, sh)
-      : jsonText(shapeToJSON(pattern, sh, family
-        ? { family: { dof: family.dof }, status: report.status, maxResidual: sol.maxResidual }
-        : { solution: k + 1, status: report.status, maxResidual: sol.maxResidual }), !!values.pretty) + '\n';
     for (const m of report.messages.filter((m) => m.severity !== 'info')) io.stderr(`${m.severity}: ${m.text}\n`);
     const out = values.out as string | undefined;
-    if (!writeWhole(io, 'shape', text, out, [path], format === 'json' ? 'escaped' : 'file', `${format.toUpperCase()}, ${sh.vertices.length} vertices`)) return EXIT.usage;
+    const note = `${format.toUpperCase()}, ${sh.vertices.length} vertices`;
+    const written = format === 'json'
+      ? writeWholeJson(io, 'shape', shapeToJSON(pattern, sh, family
+        ? { family: { dof: family.dof }, status: report.status, maxResidual: sol.maxResidual }
+        : { solution: k + 1, status: report.status, maxResidual: sol.maxResidual }), !!values.pretty, out, [path], note)
+      : writeWhole(io, 'shape', format === 'obj' ? shapeToOBJ(pattern, sh) : shapeToSTL(pattern, sh), out, [path], 'file', note);
+    if (!written) return EXIT.usage;
     // STL has no comment lines to carry the cautions, so they are said here
     if (format === 'stl') io.stderr(`${CAUTIONS}\n`);
     return exitForStatus(report.status);

@@ -8,8 +8,7 @@ import { solveDrives } from '../../solver/search/solve';
 import { groupSolutions } from '../../solver/search/summary';
 import { CAUTIONS } from '../../solver/formats/cautions';
 import type { Pattern, SolveReport } from '../../solver/types';
-import { jsonText } from '../../solver/formats/json-text';
-import { writeWhole } from '../output';
+import { writeWhole, writeWholeJson } from '../output';
 
 export const solve: Command = {
   name: 'solve',
@@ -67,7 +66,7 @@ Exit status: 0 solved / several solutions / overspecified but consistent / depen
       const out = omitted.length
         ? { ...json, omitted: { count: omitted.length, groups: groups.map((g) => ({ count: g.count, solutions: g.solutions, text: g.text })) } }
         : json;
-      writeWhole(io, 'solve', jsonText(out, !!values.pretty) + '\n', undefined, [], 'escaped');
+      writeWholeJson(io, 'solve', out, !!values.pretty);
       return exitForStatus(report.status);
     }
     if (values.pretty) throw new UsageError('--pretty is for --json');

@@ -67,3 +67,43 @@ export function numberArrayJson(n: number, value: (i: number) => number, pretty 
   }
   return new RawJson(s + ']');
 }
+
+/**
+ * `value` as JSON (the same text as jsonText), written to `write` a piece at a time, so a large value (the
+ * rays of a big sheet) never has to fit in one string.
+ */
+export function writeJson(write: (text: string) => void, value: unknown, pretty = false, level = 0): void {
+  const s = scalar(value);
+  if (s !== undefined || isPlain(value)) { write(s ?? 'null'); return; }
+  const pad = pretty ? '\n' + '  '.repeat(level + 1) : '';
+  const end = pretty ? '\n' + '  '.repeat(level) : '';
+  if (Array.isArray(value) || ArrayBuffer.isView(value)) {
+    const items = Array.from(value as ArrayLike<unknown>);
+    if (!items.length) { write('[]'); return; }
+    if (!pretty || items.every(isPlain)) {
+      // plain values on one line; objects one after another
+      write('[');
+      items.forEach((x, i) => {
+        if (i) write(pretty ? ', ' : ',');
+        writeJson(write, x, false);
+      });
+      write(']');
+      return;
+    }
+    write('[');
+    items.forEach((x, i) => {
+      write((i ? ',' : '') + pad);
+      writeJson(write, x, true, level + 1);
+    });
+    write(end + ']');
+    return;
+  }
+  const entries = Object.entries(value as Record<string, unknown>).filter(([, v]) => v !== undefined && typeof v !== 'function');
+  if (!entries.length) { write('{}'); return; }
+  write('{');
+  entries.forEach(([k, v], i) => {
+    write((i ? ',' : '') + pad + jsonSafe(JSON.stringify(k)) + (pretty ? ': ' : ':'));
+    writeJson(write, v, pretty, level + 1);
+  });
+  write(end + '}');
+}
