@@ -1,7 +1,8 @@
 // Reading a pattern file for a command: every problem is printed as a message naming where it is.
 import { createRequire } from 'node:module';
 import type { Drive, Message, Pattern } from '../solver/types';
-import { loadPatternBytes, type Project } from '../solver/formats/project';
+import { drawingFormat, loadStructuredText, patternFileText, type LoadResult, type Project } from '../solver/formats/project';
+import type { DrawingOptions } from '../solver/formats/drawing';
 import { parseSetOption, resolveDrives, type DriveSpec } from '../solver/model/drives';
 import type { Io } from './io';
 
@@ -32,8 +33,22 @@ export function printMessages(io: Io, messages: Message[], prefix = ''): void {
   for (const m of messages) io.stderr(`${prefix}${formatMessage(m)}\n`);
 }
 
+/**
+ * A pattern file's bytes read as the core reads them (../solver/formats/load.ts), the drawing readers loaded
+ * only for a drawing: a command on a project or FOLD file starts without them.
+ */
+export async function readPattern(bytes: Uint8Array, path: string, drawing: DrawingOptions | undefined): Promise<LoadResult> {
+  const decoded = patternFileText(bytes, path);
+  if (decoded.text === undefined) return { messages: decoded.messages };
+  if (drawingFormat(decoded.text, path)) {
+    const { loadPatternText } = await import('../solver/formats/load');
+    return loadPatternText(decoded.text, path, drawing);
+  }
+  return loadStructuredText(decoded.text, path);
+}
+
 /** Load and validate a pattern file; prints the readers' messages and returns undefined when it is refused. */
-export function loadFile(io: Io, path: string | undefined, command: string): Loaded | undefined {
+export async function loadFile(io: Io, path: string | undefined, command: string): Promise<Loaded | undefined> {
   if (!path) {
     io.stderr(`hingeplan ${command}: a pattern file is required (see hingeplan ${command} --help)\n`);
     return undefined;
@@ -44,7 +59,7 @@ export function loadFile(io: Io, path: string | undefined, command: string): Loa
     return undefined;
   }
   const bytes = read.bytes;
-  const result = loadPatternBytes(bytes, path, io.drawing);
+  const result = await readPattern(bytes, path, io.drawing);
   const errors = result.messages.filter((m) => m.severity === 'error');
   if (!result.pattern || !result.project || errors.length) {
     printMessages(io, result.messages, `${path}: `);

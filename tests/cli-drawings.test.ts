@@ -7,7 +7,7 @@ import { join } from 'node:path';
 import Drawing from 'dxf-writer';
 import { main } from '../cli/main';
 import { nodeIo, type Io } from '../cli/io';
-import { loadPatternText } from '../solver/formats/project';
+import { loadPatternText } from '../solver/formats/load';
 
 function run(args: string[]) {
   let out = '';

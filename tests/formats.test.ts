@@ -6,16 +6,8 @@ import { readFileSync } from 'node:fs';
 import Ajv2020Module from 'ajv/dist/2020.js';
 import { Matrix4, Vector3 } from 'three';
 import schema from '../schema/project.schema.json' with { type: 'json' };
-import {
-  jsonPath,
-  loadPatternText,
-  MAX_TEXT_BYTES,
-  MAX_VERTICES,
-  parseProject,
-  parseProjectValue,
-  writeProject,
-  type Project,
-} from '../solver/formats/project';
+import { jsonPath, MAX_TEXT_BYTES, MAX_VERTICES, parseProject, parseProjectValue, writeProject, type Project } from '../solver/formats/project';
+import { loadPatternText } from '../solver/formats/load';
 import { parseFold, writeFold } from '../solver/formats/fold';
 import { firstJsonError, lineColumn, utf8Length } from '../solver/formats/limits';
 import { shapeToJSON, shapeToOBJ, shapeToSTL, triangulatePanel } from '../solver/formats/shape-export';

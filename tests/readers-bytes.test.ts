@@ -6,7 +6,7 @@ import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { decodeUtf8, firstInvalidUtf8 } from '../solver/formats/text';
 import { firstDuplicateKey, readJsonText } from '../solver/formats/limits';
-import { loadPatternBytes } from '../solver/formats/project';
+import { loadPatternBytes } from '../solver/formats/load';
 import { SAMPLES_DIR } from '../scripts/make-samples';
 
 const coupon = readFileSync(join(SAMPLES_DIR, 'hinge-coupon.hingeplan.json'));

@@ -68,7 +68,7 @@ mountain/valley assignment, and the id for \`hingeplan sweep --branch\`.
                          {"<crease>": <num>}, "reference", "ratios": {"<crease>": <num>}, "line"?, "verified"}],
                          "groups": [{"name", "kind", "branches": [ids], "text"}], "messages"}
 Exit status 0; 2 invalid input; 3 the --at values have no state.`,
-  run(argv, io) {
+  async run(argv, io) {
     const spec: OptionSpec = {
       at: { type: 'string', multiple: true },
       solution: { type: 'string' },
@@ -79,7 +79,7 @@ Exit status 0; 2 invalid input; 3 the --at values have no state.`,
     };
     const { values, positionals } = parseCommandArgs(joinNegativeNumbers(argv, spec), spec);
     const file = positionals[0];
-    const loaded = loadFile(io, file, 'branches');
+    const loaded = await loadFile(io, file, 'branches');
     if (!loaded) return EXIT.usage;
     const { pattern } = loaded;
     const holds = holdsOption(io, loaded, values.hold as string[] | undefined, file!);

@@ -1,10 +1,10 @@
 import type { Command } from '../command';
 import { parseCommandArgs } from '../args';
-import { formatMessage, loadFile } from '../load';
+import { formatMessage, loadFile, readPattern } from '../load';
 import { EXIT } from '../exit-codes';
 import { messageJson } from '../report-json';
 import { writeWhole, writeWholeJson } from '../output';
-import { loadPatternBytes, type Project } from '../../solver/formats/project';
+import { type Project } from '../../solver/formats/project';
 import { decimalsText } from '../../solver/formats/numbers';
 import type { Assignment, Pattern } from '../../solver/types';
 
@@ -30,7 +30,7 @@ concerns). Exit status 0 when the file is usable, 2 when it is refused.
              [{"crease", "angle" (deg, as in the file)}], "cleaning"? (drawings: what each cleaning step did,
              with the snap), "messages"}; a refused file gives {"valid": false, "messages"}.
   --pretty   indent the JSON.`,
-  run(argv, io) {
+  async run(argv, io) {
     const { values, positionals } = parseCommandArgs(argv, { json: { type: 'boolean' }, pretty: { type: 'boolean' } });
     const path = positionals[0];
     const pretty = !!values.pretty;
@@ -41,7 +41,7 @@ concerns). Exit status 0 when the file is usable, 2 when it is refused.
         print({ valid: false, messages: [{ severity: 'error', code: 'unreadable-file', text: read.error }] });
         return EXIT.usage;
       }
-      const r = loadPatternBytes(read.bytes, path, io.drawing);
+      const r = await readPattern(read.bytes, path, io.drawing);
       const valid = !!r.pattern && !!r.project && !r.messages.some((m) => m.severity === 'error');
       if (!valid || !r.pattern || !r.project) {
         print({ valid: false, messages: r.messages.map(messageJson) });
@@ -50,7 +50,7 @@ concerns). Exit status 0 when the file is usable, 2 when it is refused.
       print({ valid: true, ...summary(r.pattern, r.project), ...(r.cleaning ? { cleaning: r.cleaning } : {}), messages: r.messages.map(messageJson) });
       return EXIT.ok;
     }
-    const loaded = loadFile(io, path, 'check');
+    const loaded = await loadFile(io, path, 'check');
     if (!loaded) return EXIT.usage;
     const s = summary(loaded.pattern, loaded.project);
     const units = s.units ?? '';

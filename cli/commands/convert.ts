@@ -33,13 +33,13 @@ outline as one closed polyline; crease labels as TEXT on the layer "labels"; $IN
 DXF and SVG carry the flat pattern only: drives, hinge limits and fold angles stay in the project file.
 The output is written to a temporary file beside <out>, flushed and renamed, so an existing <out> is never
 left half-written; <out> may not be <in> (see \`hingeplan table --help\` for the rules of --out).`,
-  run(argv, io) {
+  async run(argv, io) {
     const { positionals } = parseCommandArgs(argv, {});
     const [input, output] = positionals;
     if (!input || !output) throw new UsageError('two files are needed: <in> <out>');
     const kind = kindOf(output);
     if (!kind) throw new UsageError(`cannot tell the output format from "${output}": use .json, .fold, .dxf or .svg`);
-    const loaded = loadFile(io, input, 'convert');
+    const loaded = await loadFile(io, input, 'convert');
     if (!loaded) return EXIT.usage;
     const { project, pattern } = loaded;
     const text =

@@ -56,7 +56,7 @@ Exit status: 0 every row solved; 3 some rows flagged; 2 invalid input (with the 
     const csvPath = values.schedule as string | undefined;
     if (!csvPath) throw new UsageError('--schedule <csv> is required');
     const file = positionals[0];
-    const loaded = loadFile(io, file, 'follow');
+    const loaded = await loadFile(io, file, 'follow');
     if (!loaded) return EXIT.usage;
     const { pattern } = loaded;
     const holds = holdsOption(io, loaded, values.hold as string[] | undefined, file!);

@@ -67,7 +67,7 @@ Exit status: 0 every node solved; 3 some nodes flagged; 2 invalid input; 130 sto
     const ranges = (values.range as string[] | undefined) ?? [];
     if (ranges.length !== 2) throw new UsageError(`give --range exactly twice (x and y), got ${ranges.length}`);
     const file = positionals[0];
-    const loaded = loadFile(io, file, 'grid');
+    const loaded = await loadFile(io, file, 'grid');
     if (!loaded) return EXIT.usage;
     const { pattern } = loaded;
     const x = parseRange(pattern, ranges[0]);

@@ -118,7 +118,7 @@ over a limit; 2 invalid input; 130 stopped by Ctrl-C (the rows computed are writ
     if (maxRate !== undefined) global.maxRate = maxRate * RAD;
     if (maxAccel !== undefined) global.maxAcceleration = maxAccel * RAD;
     const file = positionals[0];
-    const loaded = loadFile(io, file, 'schedule');
+    const loaded = await loadFile(io, file, 'schedule');
     if (!loaded) return EXIT.usage;
     const { pattern } = loaded;
     const drive = creaseOption(pattern, values.drive as string | undefined, 'drive');

@@ -26,7 +26,7 @@ other panel turns about the creases between it and the base. Vertex positions ar
   --pretty               indent the JSON.
   --out <file>           write to a file (atomically, see \`hingeplan table --help\`) instead of stdout; "wrote
                          <file>" on stderr, and for STL (which has no comments to carry it) the cautions line.`,
-  run(argv, io) {
+  async run(argv, io) {
     const { values, positionals } = parseCommandArgs(argv, {
       set: { type: 'string', multiple: true },
       solution: { type: 'string' },
@@ -38,7 +38,7 @@ other panel turns about the creases between it and the base. Vertex positions ar
     const format = (values.format as string | undefined) ?? 'json';
     if (!['json', 'obj', 'stl'].includes(format)) throw new UsageError(`--format must be json, obj or stl, got "${format}"`);
     const path = positionals[0];
-    const loaded = loadFile(io, path, 'shape');
+    const loaded = await loadFile(io, path, 'shape');
     if (!loaded) return EXIT.usage;
     const drives = drivesFor(io, loaded, values.set as string[] | undefined, path!);
     if (!drives) return EXIT.usage;

@@ -37,7 +37,7 @@ degree-4 vertices) are enumerated exhaustively in closed form; others are search
   --pretty               indent the JSON (default compact).
 Exit status: 0 solved / several solutions / overspecified but consistent / dependent drives;
 2 invalid input or usage; 3 inconsistent or unreachable; 4 underspecified or not isolated.`,
-  run(argv, io) {
+  async run(argv, io) {
     const { values, positionals } = parseCommandArgs(argv, {
       set: { type: 'string', multiple: true },
       solutions: { type: 'string' },
@@ -50,7 +50,7 @@ Exit status: 0 solved / several solutions / overspecified but consistent / depen
     const cap = intOption(values['max-states'] as string | undefined, 'max-states', 64);
     if (cap < 1 || cap > 1_000_000) throw new UsageError('--max-states must be between 1 and 1000000');
     const path = positionals[0];
-    const loaded = loadFile(io, path, 'solve');
+    const loaded = await loadFile(io, path, 'solve');
     if (!loaded) return EXIT.usage;
     const drives = drivesFor(io, loaded, values.set as string[] | undefined, path!);
     if (!drives) return EXIT.usage;

@@ -30,9 +30,9 @@ export interface SweepSetup {
 }
 
 /** Everything a path command needs from its options, or undefined when the input was refused (printed). */
-export function sweepSetup(io: Io, command: string, values: OptionValues, positionals: string[]): SweepSetup | undefined {
+export async function sweepSetup(io: Io, command: string, values: OptionValues, positionals: string[]): Promise<SweepSetup | undefined> {
   const file = positionals[0];
-  const loaded = loadFile(io, file, command);
+  const loaded = await loadFile(io, file, command);
   if (!loaded) return undefined;
   const { pattern } = loaded;
   const drive = creaseOption(pattern, values.drive as string | undefined, 'drive');
@@ -194,7 +194,7 @@ could not start; 2 invalid input; 130 stopped by Ctrl-C (what was computed is wr
     if (values.rates && !values.csv) throw new UsageError(values.json ? '--rates is for --csv (the JSON table always has the rates)' : '--rates is for --csv');
     if (values.pretty && !values.json) throw new UsageError('--pretty is for --json');
     if (values.digits !== undefined && !values.json && !values.csv) throw new UsageError('--digits is for --json and --csv (the text for people rounds to 4 decimals)');
-    const setup = sweepSetup(io, 'sweep', values, positionals);
+    const setup = await sweepSetup(io, 'sweep', values, positionals);
     if (!setup) return EXIT.usage;
     return runSweepTable(io, 'sweep', argv, values, setup, values.json ? 'json' : values.csv ? 'csv' : 'text', values.json ? true : !!values.rates);
   },

@@ -42,7 +42,7 @@ Exit status as for \`hingeplan sweep\`.`,
     const { values, positionals } = parseCommandArgs(joinNegativeNumbers(argv, spec), spec);
     const format = formatOption(values.format, ['csv', 'json'], 'csv') as 'csv' | 'json';
     if (values.pretty && format !== 'json') throw new UsageError('--pretty is for --format json');
-    const setup = sweepSetup(io, 'table', values, positionals);
+    const setup = await sweepSetup(io, 'table', values, positionals);
     if (!setup) return EXIT.usage;
     return runSweepTable(io, 'table', argv, values, setup, format, !!values.rates);
   },

@@ -12,9 +12,6 @@ import { MAX_CREASES, MAX_TEXT_BYTES, MAX_VERTICES, readJsonText } from './limit
 import { parseFoldValue } from './fold';
 import { decodeUtf8 } from './text';
 import { decodeDxf } from './dxf-text';
-import { drawingToProject, type DrawingOptions } from './drawing';
-import { parseDxf } from './dxf';
-import { parseSvg } from './svg';
 import type { CleanCounts } from '../model/clean';
 
 export { MAX_CREASES, MAX_TEXT_BYTES, MAX_VERTICES };
@@ -307,13 +304,11 @@ export function drawingFormat(text: string, fileName?: string): 'dxf' | 'svg' | 
 }
 
 /**
- * Read any pattern file the program knows (a project or FOLD, told apart by the `.fold` extension or a
- * `vertices_coords` key; a DXF or SVG drawing, by extension or content), build the pattern and check the
- * drives. `drawing` says how to read a drawing's layers, colours and snap. Never throws.
+ * Read a project or FOLD file (told apart by the `.fold` extension or a `vertices_coords` key), build the
+ * pattern and check the drives. Never throws. Drawings (DXF, SVG) are read by ./load.ts, which this module
+ * does not import, so a reader of project files alone does not load the drawing readers.
  */
-export function loadPatternText(text: string, fileName?: string, drawing: DrawingOptions = {}): LoadResult {
-  const kind = drawingFormat(text, fileName);
-  if (kind) return loadDrawing(kind, text, fileName, drawing);
+export function loadStructuredText(text: string, fileName?: string): LoadResult {
   const read = readJsonText(text, 'file');
   if (read.value === undefined) return { messages: read.messages };
   const value = read.value;
@@ -333,29 +328,10 @@ export function loadPatternText(text: string, fileName?: string, drawing: Drawin
   return { format, project, pattern: built.pattern, drives: resolved.drives, messages };
 }
 
-function loadDrawing(format: 'dxf' | 'svg', text: string, fileName: string | undefined, options: DrawingOptions): LoadResult {
-  const drawing = format === 'dxf' ? parseDxf(text, fileName) : parseSvg(text, fileName);
-  const r = drawingToProject(drawing, options);
-  const base: LoadResult = { format, messages: r.messages };
-  if (r.cleaning) base.cleaning = r.cleaning;
-  if (!r.project) return base;
-  const built = buildPattern(r.project.source);
-  base.messages = [...r.messages, ...built.messages.map((m) => (r.locate ? r.locate(m) : m))];
-  base.project = r.project;
-  if (!built.pattern) return base;
-  return { ...base, pattern: built.pattern, drives: [] };
-}
-
-/**
- * loadPatternText for a file's bytes, as the shells read them. A DXF file is decoded as DXF says (UTF-8 from
- * AutoCAD 2007 on, its code page before: ./dxf-text.ts); every other file must be UTF-8, and invalid bytes
- * are refused with their place (./text.ts) before anything else. Hash these same bytes for a table header.
- */
-export function loadPatternBytes(bytes: Uint8Array, fileName?: string, drawing: DrawingOptions = {}): LoadResult {
-  if (typeof fileName === 'string' && /\.dxf$/i.test(fileName)) return loadPatternText(decodeDxf(bytes).text, fileName, drawing);
-  const decoded = decodeUtf8(bytes, 'file');
-  if (decoded.text === undefined) return { messages: decoded.messages };
-  return loadPatternText(decoded.text, fileName, drawing);
+/** A file's bytes as text: a DXF as DXF says (./dxf-text.ts), anything else as UTF-8, refused with its place when it is not. */
+export function patternFileText(bytes: Uint8Array, fileName?: string): { text?: string; messages: Message[] } {
+  if (typeof fileName === 'string' && /\.dxf$/i.test(fileName)) return { text: decodeDxf(bytes).text, messages: [] };
+  return decodeUtf8(bytes, 'file');
 }
 
 /** Point a pattern message at the place in the file, in that file's own field names. */
