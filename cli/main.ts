@@ -5,6 +5,7 @@ import { EXIT } from './exit-codes';
 import { BrokenPipe, nodeIo, type Io } from './io';
 import { escapeControlsKeepLines } from '../solver/formats/escape';
 import { VERSION } from './version';
+import { isMainThread } from 'node:worker_threads';
 import { DRAWING_OPTIONS_HELP, takeDrawingOptions } from './drawing-options';
 
 export const USAGE = `hingeplan ${VERSION}: fold-angle solver for rigid-panel deployable structures
@@ -73,9 +74,10 @@ export async function main(argv: string[], rawIo: Io): Promise<number> {
   }
 }
 
-// run when bundled as the program (dist/cli.js), not when imported by tests
+// run when bundled as the program (dist/cli.js), not when imported by tests, nor in a worker thread the
+// program starts (workers load the same bundle)
 const entry = process.argv[1] ?? '';
-if (/hingeplan(\.js)?$|cli\.js$|cli[\\/]main\.ts$/.test(entry)) {
+if (isMainThread && /hingeplan(\.js)?$|cli\.js$|cli[\\/]main\.ts$/.test(entry)) {
   const io = nodeIo();
   main(process.argv.slice(2), io).then(
     (code) => {

@@ -29,6 +29,7 @@ export interface HingeplanApi {
   openRecent: Call<'doc:open-recent'>;
   save: Call<'doc:save'>;
   exportFile: Call<'doc:export'>;
+  exportChart: Call<'doc:export-chart'>;
   setDocumentState: Call<'doc:state'>;
   confirmDiscard: Call<'doc:confirm-discard'>;
   writeRecovery: Call<'recovery:write'>;
@@ -38,6 +39,7 @@ export interface HingeplanApi {
   solve: Call<'solve'>;
   branches: Call<'branches'>;
   sweep: Call<'sweep'>;
+  tolerance: Call<'tolerance'>;
   shape: Call<'shape'>;
   cancelJob: Call<'job:cancel'>;
   copyText: Call<'clipboard:write'>;
@@ -54,6 +56,7 @@ export const API_CHANNELS = {
   openRecent: 'doc:open-recent',
   save: 'doc:save',
   exportFile: 'doc:export',
+  exportChart: 'doc:export-chart',
   setDocumentState: 'doc:state',
   confirmDiscard: 'doc:confirm-discard',
   writeRecovery: 'recovery:write',
@@ -63,6 +66,7 @@ export const API_CHANNELS = {
   solve: 'solve',
   branches: 'branches',
   sweep: 'sweep',
+  tolerance: 'tolerance',
   shape: 'shape',
   cancelJob: 'job:cancel',
   copyText: 'clipboard:write',

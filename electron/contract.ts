@@ -41,12 +41,23 @@ export const PatternSourceSchema = z.object({
   limits: z.array(optionalLimit).max(MAX_EDGES),
   faces: z.array(z.array(z.number().int().nonnegative())).max(MAX_EDGES).optional(),
   basePanel: z.number().int().nonnegative().optional(),
+  /** a name per panel, in panel order (undefined: known by its index) */
+  panelNames: z.array(optionalString).max(MAX_EDGES).optional(),
 });
 export type PatternSourceDto = z.output<typeof PatternSourceSchema>;
 
 /** A drive as a person states it; the range is the solver's to check (it names the drive in its message). */
 export const DriveSpecSchema = z.object({ crease: z.string().min(1).max(10_000), angleDeg: finite });
 export type DriveSpec = z.output<typeof DriveSpecSchema>;
+
+/** Loads for the drive torque (SI units; springs by crease label, rest angle in degrees). */
+export const LoadsSchema = z.object({
+  arealDensity: finite.min(0).optional(),
+  gravity: z.tuple([finite, finite, finite]).optional(),
+  panelMasses: z.array(z.object({ panel: z.number().int().min(0), mass: finite.min(0) })).max(250_000).optional(),
+  springs: z.array(z.object({ crease: z.string().min(1).max(200), stiffness: finite.min(0), rest: finite.min(-180).max(180).optional() })).max(250_000).optional(),
+});
+export type LoadsDto = z.output<typeof LoadsSchema>;
 
 export const ProjectSchema = z.object({
   source: PatternSourceSchema,
@@ -55,6 +66,8 @@ export const ProjectSchema = z.object({
   notes: z.string().max(1_000_000).optional(),
   /** a folded state to start from, radians per crease (from a FOLD file's fold angles) */
   foldAngles: z.array(finite).optional(),
+  /** loads for the static drive torque */
+  loads: LoadsSchema.optional(),
   /** what a FOLD file carried that the project does not use, kept to be written back */
   fold: z.object({ extra: z.record(z.string(), z.unknown()), z: finite.optional() }).optional(),
 });
@@ -124,6 +137,8 @@ export type GeneratorKind = z.output<typeof GeneratorKindSchema>;
 
 const sectorList = z.array(finite.positive().max(360)).min(3).max(64);
 const optionalName = z.string().max(200).optional();
+/** the length unit of the new document (free text, e.g. mm); the generators' lengths are in it */
+const optionalUnits = z.string().max(50).optional();
 
 /** The `new` kinds and their parameters (lengths in the document's unit, angles in degrees). */
 export const GeneratorSpecSchema = z.discriminatedUnion('kind', [
@@ -133,6 +148,7 @@ export const GeneratorSpecSchema = z.discriminatedUnion('kind', [
     radius: finite.positive().optional(),
     driveDeg: finite.min(-180).max(180).optional(),
     name: optionalName,
+    units: optionalUnits,
   }),
   z.object({
     kind: z.literal('miura'),
@@ -143,9 +159,10 @@ export const GeneratorSpecSchema = z.discriminatedUnion('kind', [
     alphaDeg: finite.positive().max(90),
     driveDeg: finite.min(-180).max(180).optional(),
     name: optionalName,
+    units: optionalUnits,
   }),
-  z.object({ kind: z.literal('waterbomb'), size: finite.positive().optional(), allMidlines: z.boolean().optional(), name: optionalName }),
-  z.object({ kind: z.literal('degree5'), sectorsDeg: sectorList.optional(), radius: finite.positive().optional(), name: optionalName }),
+  z.object({ kind: z.literal('waterbomb'), size: finite.positive().optional(), allMidlines: z.boolean().optional(), name: optionalName, units: optionalUnits }),
+  z.object({ kind: z.literal('degree5'), sectorsDeg: sectorList.optional(), radius: finite.positive().optional(), name: optionalName, units: optionalUnits }),
 ]);
 export type GeneratorSpec = z.input<typeof GeneratorSpecSchema>;
 
@@ -218,6 +235,8 @@ export const SolveResultSchema = z.object({
   families: z.array(FamilySchema),
   search: SearchSummarySchema,
   compromise: SolutionSchema.optional(),
+  /** states that close the pattern but put some hinge past its limit (listed apart, not solutions) */
+  excluded: z.array(SolutionSchema).optional(),
   /** labels of creases that would complete an underspecified set of drives */
   suggestedDrives: z.array(z.string()).optional(),
   conflictingDrives: z.array(z.string()).optional(),
@@ -242,7 +261,7 @@ export type BranchDto = z.output<typeof BranchSchema>;
 export const BranchesResultSchema = z.object({ branches: z.array(BranchSchema), messages: z.array(MessageSchema) });
 export type BranchesResultDto = z.output<typeof BranchesResultSchema>;
 
-export const PathEventTypeSchema = z.enum(['turning-point', 'branch-point', 'hinge-limit', 'folded-flat', 'corrector-failed']);
+export const PathEventTypeSchema = z.enum(['turning-point', 'branch-point', 'hinge-limit', 'folded-flat', 'corrector-failed', 'contact']);
 
 export const PathSampleSchema = z.object({
   driveDeg: finite,
@@ -252,6 +271,12 @@ export const PathSampleSchema = z.object({
   rates: z.array(maybeInfinite),
   condition: maybeInfinite,
   nearSingular: z.boolean(),
+  /** at or past the first contact of two panels */
+  contact: z.boolean().optional(),
+  /** pairs of panels (indices) in contact at this sample */
+  contacts: z.array(z.tuple([z.number().int(), z.number().int()])).optional(),
+  /** static holding torque per drive: [crease index, N·m] */
+  torque: z.array(z.tuple([z.number().int(), finite])).optional(),
 });
 export type PathSampleDto = z.output<typeof PathSampleSchema>;
 
@@ -263,6 +288,10 @@ export const PathEventSchema = z.object({
   /** at a branch point: the rays leaving it, and the state there (degrees per crease) */
   branches: z.array(BranchSchema).optional(),
   anglesDeg: z.array(finite).optional(),
+  /** contact: the two panels, a point of the contact (base panel's frame) and their distance there */
+  panels: z.tuple([z.number().int(), z.number().int()]).optional(),
+  point: z.tuple([finite, finite, finite]).optional(),
+  distance: finite.optional(),
 });
 export type PathEventDto = z.output<typeof PathEventSchema>;
 
@@ -272,11 +301,21 @@ export const PathResultSchema = z.object({
   driveLabel: z.string(),
   branchId: z.string().optional(),
   branchName: z.string().optional(),
+  /** the branch's signs follow the mountain/valley assignment */
+  branchMatchesAssignment: z.boolean().optional(),
+  /** where the sweep started: the flat state (along a branch), a solved state at the first value, or a given state */
+  startKind: z.enum(['flat', 'solution', 'state']).optional(),
   samples: z.array(PathSampleSchema),
   events: z.array(PathEventSchema),
   messages: z.array(MessageSchema),
   /** the sweep stopped early (cancelled or failed); samples hold what was computed */
   complete: z.boolean(),
+  /** what the path checked for contact */
+  contact: z.object({ checked: z.boolean(), clearance: finite.min(0) }).optional(),
+  /** per drive: [crease index, peak torque N·m, drive value there in degrees] */
+  peakTorque: z.array(z.tuple([z.number().int(), finite, finite])).optional(),
+  /** complete; partial: ended early (an event says why); stopped: cancelled; failed: no start (a message says why) */
+  status: z.enum(['complete', 'partial', 'stopped', 'failed']).optional(),
 });
 export type PathResultDto = z.output<typeof PathResultSchema>;
 
@@ -317,8 +356,86 @@ export const SweepOptionsSchema = z.object({
   branchId: z.string().max(200).optional(),
   /** start from this state (the current solution) instead of the flat sheet */
   startAnglesDeg: z.array(finite).optional(),
+  /** check panel contact at every sample (default on), closer than `clearance` (file units) counting */
+  contact: z.boolean().default(true),
+  clearance: finite.min(0).max(1e9).default(0),
+  /** the document's units and loads, for the drive torque (no loads: no torque) */
+  units: z.string().max(50).optional(),
+  loads: LoadsSchema.optional(),
+  /**
+   * the start state is a solution of the drives: when nothing else is held at a non-zero value and the
+   * state lies on a branch through the flat sheet, follow that branch from flat (the same path, solved
+   * exactly vertex by vertex where it can be, and reproduced by `--branch`)
+   */
+  viaFlatBranch: z.boolean().optional(),
 });
 export type SweepOptionsDto = z.input<typeof SweepOptionsSchema>;
+
+/**
+ * The tolerance panel's request: the sheets follow the path on screen (computed by the `sweep` channel, kept
+ * in the worker under its path id), at its samples every `everyDeg` of drive; the options of
+ * `hingeplan tolerance` besides (degrees, the document's length unit).
+ */
+export const ToleranceOptionsSchema = z.object({
+  /** the path the sheets follow: the request id of its sweep */
+  pathId: z.string().min(1).max(120),
+  /** take the path's samples about this far apart (the first and the last always) */
+  everyDeg: finite.positive().max(360),
+  /** diameter of the positional zone around every vertex, in the document's unit (--position-tol) */
+  positionTol: finite.nonnegative().max(1e9).default(0),
+  /** every sector angle within ± this many degrees (--sector-tol) */
+  sectorTolDeg: finite.nonnegative().lt(45).default(0),
+  samples: z.number().int().min(1).max(100_000),
+  seed: z.number().int().min(0).max(4_294_967_295),
+});
+export type ToleranceOptionsDto = z.input<typeof ToleranceOptionsSchema>;
+
+/** Undefined figures (a spread of fewer than two sheets, the first order at a singular state) cross as null. */
+const figure = z.number().nullable();
+
+export const ToleranceHingeSchema = z.object({
+  crease: z.number().int(),
+  label: z.string(),
+  /** per drive value, degrees */
+  nominalDeg: z.array(figure),
+  meanDeg: z.array(figure),
+  stdDeg: z.array(figure),
+  p05Deg: z.array(figure),
+  p50Deg: z.array(figure),
+  p95Deg: z.array(figure),
+  /** first-order standard deviation from the sensitivities, degrees */
+  linearStdDeg: z.array(figure),
+});
+export type ToleranceHingeDto = z.output<typeof ToleranceHingeSchema>;
+
+const SpreadFigures = z.object({ p05: figure, p50: figure, p95: figure, max: figure });
+
+export const ToleranceResultSchema = z.object({
+  driveCrease: z.number().int(),
+  driveLabel: z.string(),
+  branchName: z.string().optional(),
+  /** drive values the nominal path reached, degrees */
+  atDeg: z.array(finite),
+  samples: z.number().int(),
+  requested: z.number().int(),
+  seed: z.number().int(),
+  status: z.enum(['complete', 'stopped', 'partial', 'failed']),
+  /** the tolerance model in words */
+  model: z.string(),
+  hinges: z.array(ToleranceHingeSchema),
+  /** per drive value: the largest vertex closure residual over the sheets (radians) */
+  misfit: z.array(SpreadFigures),
+  /** per drive value: the equivalent gap at panel edges (the document's unit) */
+  gap: z.array(SpreadFigures),
+  /** per drive value: first-order RMS residual at the worst vertex (radians) */
+  linearMisfit: z.array(figure),
+  rigidFraction: z.array(figure),
+  lost: z.array(z.number().int()),
+  /** the vertices with the largest average share of the misfit, largest first */
+  worstVertices: z.array(z.object({ vertex: z.number().int(), share: finite })),
+  messages: z.array(MessageSchema),
+});
+export type ToleranceResultDto = z.output<typeof ToleranceResultSchema>;
 
 export const ExportKindSchema = z.enum(['fold', 'dxf', 'svg', 'obj', 'stl', 'shape-json', 'angle-table', 'schedule']);
 export type ExportKind = z.output<typeof ExportKindSchema>;
@@ -348,6 +465,11 @@ export const ExportOptionsSchema = z.object({
   /** schedule: limits for every hinge (--max-rate deg/s, --max-accel deg/s²) */
   maxRateDegPerS: finite.positive().optional(),
   maxAccelDegPerS2: finite.positive().optional(),
+  /** schedule: limits of single hinges by label, over the ones for every hinge (--limit crease=rate:accel) */
+  hingeLimits: z
+    .array(z.object({ crease: z.string().min(1).max(200), maxRateDegPerS: finite.positive().optional(), maxAccelDegPerS2: finite.positive().optional() }))
+    .max(100_000)
+    .default([]),
   /** shape exports: the folded state's angles; FOLD: also written as the file's fold angles */
   anglesDeg: z.array(finite).optional(),
   basePanel: z.number().int().nonnegative().optional(),
@@ -398,6 +520,16 @@ export const channels = {
     }),
     response: WriteResultSchema,
   },
+  'doc:export-chart': {
+    request: z.object({
+      /** svg: the chart's SVG text; png: the picture as base64 (no data: prefix) */
+      format: z.enum(['svg', 'png']),
+      data: z.string().max(50_000_000),
+      /** e.g. "sunshade-panel.angles" (the extension is added) */
+      suggestedName: z.string().max(200),
+    }),
+    response: WriteResultSchema,
+  },
   'doc:state': {
     request: z.object({ dirty: z.boolean(), title: z.string().max(300), filePath: z.string().max(4096).nullable() }),
     response: voidResult,
@@ -427,6 +559,10 @@ export const channels = {
   'sweep': {
     request: z.object({ requestId, key: patternKey, options: SweepOptionsSchema }),
     response: jobResult(PathResultSchema),
+  },
+  'tolerance': {
+    request: z.object({ requestId, key: patternKey, options: ToleranceOptionsSchema }),
+    response: jobResult(ToleranceResultSchema),
   },
   'shape': {
     request: z.object({ key: patternKey, anglesDeg: z.array(finite), basePanel: z.number().int().nonnegative().optional() }),

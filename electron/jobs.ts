@@ -50,6 +50,8 @@ import { scheduleSteps, type HingeLimits, type ScheduleOptions } from '../solver
 import { appTableHeader, scheduleCommand, tableCommand } from './table-header';
 import type { SweepOptionsSchema } from './contract';
 import type { JobContext } from './worker-protocol';
+import { finishChecks } from '../solver/outputs/path-physics';
+import { pathChecks } from './path-checks';
 import { z } from 'zod';
 
 const DEG = 180 / Math.PI;
@@ -133,6 +135,7 @@ export function generateJob(_state: JobState, payload: unknown) {
   }
   const msgs = messages(r.messages);
   if (!r.project) return { ok: false as const, messages: msgs };
+  if (spec.units?.trim()) r.project.units = spec.units.trim();
   const built = buildPattern(r.project.source);
   if (!built.pattern) return { ok: false as const, messages: [...msgs, ...messages(built.messages)] };
   return { ok: true as const, project: toProjectDto(r.project), messages: [...msgs, ...messages(built.messages)] };
@@ -198,6 +201,7 @@ export function solveReportDto(pattern: Pattern, report: SolveReport, extra: Mes
     messages: [...extra, ...messages(report.messages)],
     iterations: report.iterations,
   };
+  if (report.excluded?.length) out.excluded = report.excluded.map(solutionDto);
   if (report.compromise) {
     out.compromise = solutionDto(report.compromise);
     out.worstVertices = report.compromise.vertexResiduals
@@ -286,7 +290,7 @@ export function exportJob(state: JobState, payload: unknown, ctx?: JobContext): 
       if (!stored || stored.key !== req.key) throw new JobFailure('path-unknown', 'the computed path is no longer available; compute it again');
       const file = req.file ?? { name: 'pattern.hingeplan.json' };
       const header = (command: string) => appTableHeader(pattern, req.project, file, req.version ?? 'unknown', command);
-      return req.kind === 'angle-table' ? writeAngleTable(pattern, stored, req.options, file.name, header) : writeSchedule(pattern, stored, req.options, file.name, header, ctx);
+      return req.kind === 'angle-table' ? writeAngleTable(pattern, stored, req.options, file.name, header, req.project) : writeSchedule(pattern, stored, req.options, file.name, header, req.project, ctx);
     }
   }
 }
@@ -310,7 +314,7 @@ function heldDrives(pattern: Pattern, path: StoredPath): Drive[] {
   return r.drives;
 }
 
-function writeAngleTable(pattern: Pattern, path: StoredPath, options: Options, fileName: string, header: (command: string) => TableHeader): ExportData {
+function writeAngleTable(pattern: Pattern, path: StoredPath, options: Options, fileName: string, header: (command: string) => TableHeader, project: ProjectDto): ExportData {
   const creases = chosenCreases(pattern, options.creases);
   const text = angleTable(pattern, path.raw as SweepResult, header(tableCommand(pattern, fileName, path.request, options)), heldDrives(pattern, path), {
     format: options.format,
@@ -318,19 +322,31 @@ function writeAngleTable(pattern: Pattern, path: StoredPath, options: Options, f
     ...(creases ? { creases } : {}),
     // the drive column as the sweep was asked for (in degrees), as the command line writes it
     driveDegrees: new Map((sampleDegrees(path.request.fromDeg, path.request.toDeg, path.request.stepDeg).values ?? []).map((d) => [d * RAD, d])),
+    ...(project.units ? { units: project.units } : {}),
   });
   return { data: text, extension: options.format };
+}
+
+/** The dialog's limits of single hinges as the solver takes them (rad/s, rad/s²), over the ones for every hinge. */
+function hingeLimitsByCrease(pattern: Pattern, options: Options, global: HingeLimits): Map<number, HingeLimits> {
+  const out = new Map<number, HingeLimits>();
+  for (const l of options.hingeLimits) {
+    const [c] = chosenCreases(pattern, [l.crease]) ?? [];
+    out.set(c, {
+      ...global,
+      ...(l.maxRateDegPerS !== undefined ? { maxRate: l.maxRateDegPerS * RAD } : {}),
+      ...(l.maxAccelDegPerS2 !== undefined ? { maxAcceleration: l.maxAccelDegPerS2 * RAD } : {}),
+    });
+  }
+  return out;
 }
 
 /**
  * The schedule over the path's drive range, solved anew at its time rows (the profile's drive values, as
  * `hingeplan schedule` does), never picked or interpolated from the path's samples.
  */
-function writeSchedule(pattern: Pattern, path: StoredPath, options: Options, fileName: string, header: (command: string) => TableHeader, ctx?: JobContext): ExportData {
+function writeSchedule(pattern: Pattern, path: StoredPath, options: Options, fileName: string, header: (command: string) => TableHeader, project: ProjectDto, ctx?: JobContext): ExportData {
   const sweep = path.request;
-  if (sweep.startAnglesDeg) {
-    throw new JobFailure('schedule-from-state', 'this path starts from a state on a ray of a branch point; a schedule starts at the flat state or at a solution of the first drive value (as `hingeplan schedule` does): export the angle table of this path, or compute the path from the start of the range');
-  }
   const limits: HingeLimits = {
     ...(options.maxRateDegPerS !== undefined ? { maxRate: options.maxRateDegPerS * RAD } : {}),
     ...(options.maxAccelDegPerS2 !== undefined ? { maxAcceleration: options.maxAccelDegPerS2 * RAD } : {}),
@@ -350,14 +366,29 @@ function writeSchedule(pattern: Pattern, path: StoredPath, options: Options, fil
     ...(options.dtS !== undefined ? { dt: options.dtS } : options.rows !== undefined ? { rows: options.rows } : {}),
     holds,
     ...(sweep.branchId !== undefined && /^\d+$/.test(sweep.branchId) ? { branch: Number(sweep.branchId) } : {}),
+    ...(sweep.startAnglesDeg ? { start: anglesFromDegrees(pattern, sweep.startAnglesDeg) } : {}),
     limits,
-    hingeLimits: new Map(),
+    hingeLimits: hingeLimitsByCrease(pattern, options, limits),
   };
-  const result = runSteps(scheduleSteps(pattern, scheduleOptions, { onProgress: (done, total) => ctx?.progress(done, total, 'schedule'), shouldStop: () => ctx?.shouldStop() ?? false }));
+  // the document's units and loads, as the command in the header reads them from the file
+  const { checks } = pathChecks(pattern, { ...sweep, units: project.units, loads: project.loads }, path.driveCrease, holds);
+  const result = runSteps(scheduleSteps(pattern, scheduleOptions, {
+    onProgress: (done, total) => ctx?.progress(done, total, 'schedule'),
+    shouldStop: () => ctx?.shouldStop() ?? false,
+    ...(checks ? {
+      onSample: (s) => {
+        const c = checks.observe({ drive: s.drive, angles: s.angles, rates: s.rates });
+        s.checks = { contact: c.contact, contacts: c.contacts, ...(c.torque ? { torque: c.torque } : {}) };
+      },
+    } : {}),
+  }));
+  if (checks && result.sweep) finishChecks(result.sweep, checks);
   if (result.status === 'failed' && !result.rows.length) {
     throw new JobFailure(result.messages[0]?.code ?? 'schedule-failed', result.messages.map((m) => m.text).join(' ') || 'the schedule could not be solved');
   }
-  const text = scheduleTable(pattern, result, header(scheduleCommand(fileName, sweep, options)), path.driveCrease, holds, options.format, undefined, { fromDegrees: sweep.fromDeg, toDegrees: sweep.toDeg });
+  const text = scheduleTable(pattern, result, header(scheduleCommand(pattern, fileName, sweep, options)), path.driveCrease, holds, options.format, undefined, {
+    fromDegrees: sweep.fromDeg, toDegrees: sweep.toDeg, ...(project.units ? { units: project.units } : {}),
+  });
   return { data: text, extension: options.format };
 }
 

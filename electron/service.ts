@@ -144,7 +144,7 @@ export function createService(deps: ServiceDeps) {
     };
   }
 
-  async function writeTo(filePath: string, data: string): Promise<WriteResult> {
+  async function writeTo(filePath: string, data: string | Buffer): Promise<WriteResult> {
     try {
       await writeFileAtomic(filePath, data);
     } catch (err) {
@@ -247,6 +247,17 @@ export function createService(deps: ServiceDeps) {
       return writeTo(target, outcome.value.data);
     },
 
+    async 'doc:export-chart'({ format, data, suggestedName }) {
+      // the picture comes from the window; only the person's choice of file decides where it goes
+      const target = await host.chooseSaveFile({
+        title: `Export chart (${format.toUpperCase()})`,
+        defaultName: `${baseName(suggestedName)}.${format}`,
+        filters: [format === 'svg' ? { name: 'SVG image', extensions: ['svg'] } : { name: 'PNG image', extensions: ['png'] }],
+      });
+      if (!target) return { status: 'canceled' };
+      return writeTo(target, format === 'png' ? Buffer.from(data, 'base64') : data);
+    },
+
     async 'doc:state'(state) {
       host.documentState(state);
       return { ok: true };
@@ -303,6 +314,15 @@ export function createService(deps: ServiceDeps) {
         onProgress: (done, total, phase) => host.emit('job:progress', { requestId, done, total, ...(phase ? { phase } : {}) }),
       });
       return jobAnswer(outcome) as ResponseOf<'sweep'>;
+    },
+
+    async tolerance({ requestId, key, options }) {
+      const outcome = await solver.run('long', 'tolerance', { key, options }, {
+        requestId,
+        supersedeKey: 'tolerance',
+        onProgress: (done, total, phase) => host.emit('job:progress', { requestId, done, total, ...(phase ? { phase } : {}) }),
+      });
+      return jobAnswer(outcome) as ResponseOf<'tolerance'>;
     },
 
     async shape({ key, anglesDeg, basePanel }) {

@@ -40,7 +40,9 @@ function sunshadePanel(): Project {
     'alpha = 70 degrees. Labels: s{i}_{j} straight segment from vertex (i, j) to (i+1, j); z{i}_{j} zigzag segment from (i, j) to (i, j+1). ' +
     'One degree of freedom once folded: one zigzag drive (z6_4, valley, 60 degrees) fixes it; at the flat state itself the sheet can also leave ' +
     'along single straight crease lines, so the solver may list several solutions: pick the one that matches the assignment. ' +
+    'Loads for the holding torque: 1 mm aluminium sheet, 2.7 kg/m2, under standard gravity with the base panel flat. ' +
     CAUTIONS;
+  p.loads = { arealDensity: 2.7 };
   return p;
 }
 
@@ -58,8 +60,8 @@ function gripperCell(): Project {
   const p = take('gripper-cell', waterbomb({ size: 80, name: 'gripper cell' }));
   p.units = 'mm';
   p.notes =
-    'Gripper cell: the waterbomb base on an 80 mm square. Diagonals d0-d3 are valleys, the x midline (m0, m2) mountains, the y midline ' +
-    '(m1, m3) is flat (F) as in the flat-folded base (4 V + 2 M). Three degrees of freedom (six hinges - 3): three drives are needed to fix ' +
+    'Gripper cell: the waterbomb base on an 80 mm square. Diagonals d0-d3 are valleys, the x midline (x0, x1) mountains, the y midline ' +
+    '(y0, y1) is flat (F) as in the flat-folded base (4 V + 2 M). Three degrees of freedom (six hinges - 3): three drives are needed to fix ' +
     'the state; this file drives d0, d1 and d2 to 60 degrees (the symmetric closing). With fewer drives the solver reports the state as ' +
     'underspecified and suggests creases to drive. ' +
     CAUTIONS;

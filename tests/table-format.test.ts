@@ -98,13 +98,13 @@ describe('angle table (format version 2)', () => {
     }
   });
 
-  it('a per-sample field declared once appears in the header, as CSV columns and as a JSON member', () => {
+  it('a per-sample field declared once appears in the header, as CSV columns, as JSON members and in the tail', () => {
     const field: RowField<SweepSample> = {
-      key: 'bent',
       header: { bent: { checked: true, threshold: 45 } },
       columns: ['bent'],
       csv: (s) => [Math.abs(s.angles[1]) > 45 * D ? '1' : '0'],
-      json: (s) => Math.abs(s.angles[1]) > 45 * D,
+      json: (s) => ({ bent: Math.abs(s.angles[1]) > 45 * D }),
+      tail: () => ({ bentSamples: r.samples.filter((s) => Math.abs(s.angles[1]) > 45 * D).length }),
     };
     const csv = angleTable(p, r, header, [], { format: 'csv', driveDegrees, fields: [field] });
     expect(csv).toContain('# bent: {"checked":true,"threshold":45}');
@@ -113,6 +113,9 @@ describe('angle table (format version 2)', () => {
     const j = JSON.parse(angleTable(p, r, header, [], { format: 'json', driveDegrees, fields: [field] }));
     expect(j.bent).toEqual({ checked: true, threshold: 45 });
     expect(j.samples.map((s: { bent: boolean }) => s.bent)).toEqual(r.samples.map((s) => Math.abs(s.angles[1]) > 45 * D));
+    const bentCount = r.samples.filter((s) => Math.abs(s.angles[1]) > 45 * D).length;
+    expect(j.bentSamples).toBe(bentCount);
+    expect(csv).toContain(`# bentSamples: ${bentCount}`);
   });
 
   it('written piece by piece while the sweep runs, the table is the same as written at the end', () => {

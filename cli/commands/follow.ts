@@ -5,11 +5,13 @@ import { hashBytes, loadFile, printMessages } from '../load';
 import { EXIT } from '../exit-codes';
 import { openOutput } from '../output';
 import { followSteps, parseScheduleCsv } from '../../solver/outputs/schedule';
-import { writeFollowTable } from '../../solver/outputs/table';
+import { checksField, writeFollowTable } from '../../solver/outputs/table';
+import { checkFollowedRows } from '../../solver/outputs/path-physics';
+import type { FollowRow } from '../../solver/outputs/schedule';
 import { decodeUtf8 } from '../../solver/formats/text';
 import {
   digitsOption, EXIT_INTERRUPTED, formatOption, holdsOption, intOrUndefined, OUT_HELP, OUTPUT_OPTIONS_HELP, outputOptions, printSolverMessages,
-  REQUEST_CODES, requestError, runResponsive, tableHeader, joinNegativeNumbers,
+  REQUEST_CODES, requestError, runResponsive, tableHeader, joinNegativeNumbers, checksOption, checksOptions, CHECKS_HELP,
 } from './path-common';
 
 export const followCommand: Command = {
@@ -17,6 +19,8 @@ export const followCommand: Command = {
   summary: 'follow a drive schedule (CSV of time and drive angles): every hinge angle per row, or a flag',
   help: `Usage: hingeplan follow <file> --schedule <csv> [--hold <crease>=<deg> …] [--branch <id> | --solution <k>]
                         [--rates] [--format csv|json] [--pretty] [--digits <n>] [--out <file>]
+                        [--contact on|off] [--clearance <length>] [--stop-at contact]
+                        [--areal-density <kg/m²>] [--gravity gx,gy,gz] [--spring <crease>=<N·m/rad>[:<rest>] …]
 
 Reads the schedule an actuator team supplies and solves every hinge angle at every row. The schedule CSV has a
 header "time,<crease>,<crease>,…" (time in seconds, non-decreasing; drive angles in degrees, valley positive)
@@ -40,6 +44,10 @@ has those values) and the other rows are still solved.
                          "maxResidual", "rates"?: [..]} or {"time", "line", "drives", "unreachable"}], then
                          "status", "rowCount", "unreachableRows", "largestResidual", "events", "messages".
   --progress             as for \`hingeplan sweep\`.
+${CHECKS_HELP}
+                         Every solved row is checked for contact (with one drive moving, the first contact
+                         is refined between rows to 0.01°); a contact column and, with loads, a torque column
+                         per drive follow the flag.
 ${OUTPUT_OPTIONS_HELP}
 ${OUT_HELP}
 Exit status: 0 every row solved; 3 some rows flagged; 2 invalid input (with the line of the schedule);
@@ -48,6 +56,7 @@ Exit status: 0 every row solved; 3 some rows flagged; 2 invalid input (with the 
     const spec: OptionSpec = {
       schedule: { type: 'string' }, hold: { type: 'string', multiple: true }, branch: { type: 'string' }, solution: { type: 'string' },
       rates: { type: 'boolean' }, format: { type: 'string' }, out: { type: 'string' }, progress: { type: 'boolean' }, ...outputOptions,
+      ...checksOptions,
     };
     const { values, positionals } = parseCommandArgs(joinNegativeNumbers(argv, spec), spec);
     const format = formatOption(values.format, ['csv', 'json'], 'csv') as 'csv' | 'json';
@@ -74,21 +83,34 @@ Exit status: 0 every row solved; 3 some rows flagged; 2 invalid input (with the 
     }
     const clash = holds.find((h) => schedule.drives.includes(h.crease));
     if (clash) throw new UsageError(`--hold: ${pattern.creases[clash.crease].label} is a column of the schedule`);
+    // contact and torque: the drive that places a row on the path, the others held
+    const rows = schedule.rows;
+    const moving = schedule.drives.filter((c) => rows.some((x) => x.values.get(c) !== rows[0]?.values.get(c)));
+    const drive = moving[0] ?? schedule.drives[0];
+    const others = [...holds, ...schedule.drives.filter((c) => c !== drive).map((c) => ({ crease: c, value: rows[0]?.values.get(c) ?? 0 }))];
+    const checks = checksOption(io, loaded, values, file!, drive, others, moving.length <= 1);
+    if (!checks) return EXIT.usage;
+    const wantRates = !!values.rates || (!!checks.options.loads && moving.length <= 1);
     const out = openOutput(io, 'follow', values.out as string | undefined, [file, csvPath], 'escaped');
     if (!out) return EXIT.usage;
     let r;
     try {
       r = await runResponsive(io, 'follow', (hooks) => followSteps(pattern, schedule, {
-        holds, branch: intOrUndefined(values.branch, 'branch'), solution: intOrUndefined(values.solution, 'solution'), rates: !!values.rates,
+        holds, branch: intOrUndefined(values.branch, 'branch'), solution: intOrUndefined(values.solution, 'solution'), rates: wantRates,
       }, hooks), !!values.progress);
     } catch (e) {
       out.abort();
       throw e;
     }
     const { result, interrupted } = r;
+    checkFollowedRows(result, checks, drive);
+    if (!values.rates) for (const x of result.rows) x.rates = undefined;
     printSolverMessages(io, result.messages, 'follow');
     const header = tableHeader(loaded, file!, 'follow', argv, [{ role: 'schedule', file: csvPath, sha256: hashBytes(read.bytes) }]);
-    writeFollowTable(pattern, result, header, holds, { format, rates: !!values.rates, digits, pretty: !!values.pretty }, out);
+    const units = loaded.project.units;
+    const torqueDrives = checks.options.loads ? [drive, ...others.map((h) => h.crease)] : [];
+    const field = checksField<FollowRow>(pattern, { contact: checks.summary().contact, torqueDrives, ...(units ? { units } : {}), summary: () => result.checks });
+    writeFollowTable(pattern, result, header, holds, { format, rates: !!values.rates, digits, pretty: !!values.pretty, fields: [field] }, out);
     if (!out.finish(out.toFile ? `${result.rows.length} rows` : undefined)) return EXIT.usage;
     if (interrupted || result.status === 'stopped') { io.stderr('hingeplan follow: stopped by Ctrl-C; the rows computed so far are written, the rest are flagged.\n'); return EXIT_INTERRUPTED; }
     return result.rows.some((x) => x.unreachable) ? EXIT.noSolution : EXIT.ok;

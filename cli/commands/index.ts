@@ -26,6 +26,7 @@ export const commands: CommandEntry[] = [
   { name: 'follow', resumable: true, summary: 'follow a drive schedule (CSV of time and drive angles): every hinge angle per row, or a flag', load: async () => (await import('./follow')).followCommand },
   { name: 'table', resumable: true, summary: 'write the actuator angle table (CSV or JSON) with its metadata header', load: async () => (await import('./table')).tableCommand },
   { name: 'schedule', resumable: true, summary: 'a time-stamped deployment schedule: every hinge angle, velocity and acceleration; limit flags', load: async () => (await import('./schedule')).scheduleCommand },
+  { name: 'tolerance', resumable: true, summary: 'will the manufactured sheet still fold? hinge spread, misfit and worst vertices over random sheets', load: async () => (await import('./tolerance')).toleranceCommand },
 ];
 
 /** Edit distance (insertions, deletions, substitutions, transpositions of neighbours), for "did you mean". */

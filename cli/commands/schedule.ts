@@ -5,11 +5,14 @@ import { loadFile } from '../load';
 import { EXIT } from '../exit-codes';
 import { openOutput } from '../output';
 import { scheduleSteps, type HingeLimits, type ProfileKind, type ScheduleOptions, type ScheduleResult, type ScheduleRow } from '../../solver/outputs/schedule';
-import { ScheduleTableWriter } from '../../solver/outputs/table';
+import { checksField, ScheduleTableWriter } from '../../solver/outputs/table';
+import { finishChecks } from '../../solver/outputs/path-physics';
+import type { SweepResult } from '../../solver/paths/sweep';
 import { findCrease } from '../../solver/model/pattern';
 import {
   creaseOption, digitsOption, EXIT_INTERRUPTED, formatOption, holdsOption, intOrUndefined, OUT_HELP, OUTPUT_OPTIONS_HELP, outputOptions, printSolverMessages,
-  REQUEST_CODES, requestError, runResponsive, tableHeader, joinNegativeNumbers,
+  REQUEST_CODES, requestError, runResponsive, startOption, tableHeader, joinNegativeNumbers,
+  checksOption, checksOptions, checksHook, CHECKS_HELP,
 } from './path-common';
 
 const RAD = Math.PI / 180;
@@ -42,7 +45,10 @@ export const scheduleCommand: Command = {
                           [--profile constant|trapezoid|s-curve] [--accel-time <s> | --accel <deg/s²>]
                           [--jerk-time <s>] [--dt <s> | --rows <n>] [--max-rate <deg/s>] [--max-accel <deg/s²>]
                           [--limit <crease>=<deg/s>[:<deg/s²>] …] [--hold <crease>=<deg> …]
-                          [--branch <id> | --solution <k>] [--format csv|json] [--pretty] [--digits <n>] [--out <file>]
+                          [--branch <id> | --solution <k> | --start <file>] [--format csv|json] [--pretty]
+                          [--digits <n>] [--out <file>]
+                          [--contact on|off] [--clearance <length>] [--stop-at contact]
+                          [--areal-density <kg/m²>] [--gravity gx,gy,gz] [--spring <crease>=<N·m/rad>[:<rest>] …]
 
 Moves the drive from --from to --to in --time seconds with the chosen profile, and solves every hinge at each
 time row exactly on the path (as \`hingeplan sweep\`). Hinge velocity = rate × drive velocity; hinge
@@ -65,7 +71,10 @@ An option the chosen profile does not use is refused, never recorded as if it ap
                          row is at exactly T.
   --max-rate, --max-accel   limits for every hinge (deg/s, deg/s²).
   --limit <crease>=<rate>[:<accel>]   a limit for one hinge (overrides the global ones); repeat.
-  --hold, --branch, --solution, --progress   as for \`hingeplan sweep\`.
+  --hold, --branch, --solution, --start, --progress   as for \`hingeplan sweep\`.
+${CHECKS_HELP}
+                         A contact column (1 at and past the first contact) and, with loads, a torque column
+                         per drive ("torque:<crease>", N·m) follow the flags; the tail gives the peaks.
   --format csv|json      csv (default): metadata header ("# key: value", as \`hingeplan table\`, plus the
                          profile), then columns t, drive, drive_velocity, drive_acceleration, every hinge angle,
                          velocity:<crease> …, acceleration:<crease> …, max_residual, flags ("rate:<crease>",
@@ -89,8 +98,8 @@ over a limit; 2 invalid input; 130 stopped by Ctrl-C (the rows computed are writ
       profile: { type: 'string' }, 'accel-time': { type: 'string' }, accel: { type: 'string' }, 'jerk-time': { type: 'string' },
       dt: { type: 'string' }, rows: { type: 'string' }, 'max-rate': { type: 'string' }, 'max-accel': { type: 'string' },
       limit: { type: 'string', multiple: true }, hold: { type: 'string', multiple: true }, branch: { type: 'string' },
-      solution: { type: 'string' }, format: { type: 'string' }, out: { type: 'string' }, progress: { type: 'boolean' },
-      ...outputOptions,
+      solution: { type: 'string' }, start: { type: 'string' }, format: { type: 'string' }, out: { type: 'string' }, progress: { type: 'boolean' },
+      ...outputOptions, ...checksOptions,
     };
     const { values, positionals } = parseCommandArgs(joinNegativeNumbers(argv, spec), spec);
     const format = formatOption(values.format, ['csv', 'json'], 'csv') as 'csv' | 'json';
@@ -125,6 +134,8 @@ over a limit; 2 invalid input; 130 stopped by Ctrl-C (the rows computed are writ
     const holds = holdsOption(io, loaded, values.hold as string[] | undefined, file!);
     if (!holds) return EXIT.usage;
     if (holds.some((h) => h.crease === drive)) throw new UsageError(`--hold: the drive ${pattern.creases[drive].label} cannot also be held`);
+    const start = startOption(io, pattern, values.start as string | undefined);
+    if (start === null) return EXIT.usage;
     const hingeLimits = new Map<number, HingeLimits>();
     for (const l of (values.limit as string[] | undefined) ?? []) {
       const { ref, limits } = parseLimit(l);
@@ -148,14 +159,21 @@ over a limit; 2 invalid input; 130 stopped by Ctrl-C (the rows computed are writ
       holds,
       branch: intOrUndefined(values.branch, 'branch'),
       solution: intOrUndefined(values.solution, 'solution'),
+      ...(start ? { start: start.angles } : {}),
       limits: global,
       hingeLimits: new Map([...hingeLimits].map(([c, l]) => [c, { ...global, ...l }])),
       keepRows: false,
     };
-    const out = openOutput(io, 'schedule', values.out as string | undefined, [file], 'escaped');
+    const checks = checksOption(io, loaded, values, file!, drive, holds);
+    if (!checks) return EXIT.usage;
+    const out = openOutput(io, 'schedule', values.out as string | undefined, [file, start?.input.file], 'escaped');
     if (!out) return EXIT.usage;
-    const writer = new ScheduleTableWriter(pattern, tableHeader(loaded, file!, 'schedule', argv), drive, holds, options.profile, {
-      format, digits, pretty: !!values.pretty, fromDegrees: from, toDegrees: to,
+    const units = loaded.project.units;
+    let path: SweepResult | undefined;
+    const torqueDrives = checks.options.loads ? [drive, ...holds.map((h) => h.crease)] : [];
+    const field = checksField<ScheduleRow>(pattern, { contact: checks.summary().contact, torqueDrives, ...(units ? { units } : {}), summary: () => path?.checks });
+    const writer = new ScheduleTableWriter(pattern, tableHeader(loaded, file!, 'schedule', argv, start ? [start.input] : []), drive, holds, options.profile, {
+      format, digits, pretty: !!values.pretty, fromDegrees: from, toDegrees: to, fields: [field], ...(units ? { units } : {}),
     }, out);
     let begun = false, unreachable = 0, over = 0;
     const onRow = (r: ScheduleRow) => {
@@ -166,7 +184,13 @@ over a limit; 2 invalid input; 130 stopped by Ctrl-C (the rows computed are writ
     };
     let result: ScheduleResult, interrupted: boolean;
     try {
-      ({ result, interrupted } = await runResponsive(io, 'schedule', (hooks) => scheduleSteps(pattern, options, { ...hooks, onRow }), !!values.progress));
+      ({ result, interrupted } = await runResponsive(io, 'schedule', (hooks) => scheduleSteps(pattern, options, {
+        ...hooks,
+        onSample: checksHook(checks),
+        onRow,
+        // the first contact (an event) is known once the path has ended, before the rows it did not reach
+        onPathEnd: (p) => { finishChecks(p, checks, Math.sign(to - from) || 1); path = p; },
+      }), !!values.progress));
     } catch (e) {
       out.abort();
       throw e;

@@ -5,9 +5,10 @@
 
 export const validate = validate20;
 export default validate20;
-const schema31 = {"$schema":"https://json-schema.org/draft/2020-12/schema","$id":"urn:hingeplan:schema:project:1","title":"Hingeplan project, version 1","description":"A flat crease pattern of rigid panels with its hinge limits and drives. Coordinates are in the project's units (free text, e.g. mm); angles are degrees; fold angles are 0 when flat, positive for a valley, negative for a mountain, in -180 ... 180. Files may hold at most 250000 vertices and 250000 creases and 32 MiB of text.","type":"object","required":["format","version","name","vertices","creases"],"additionalProperties":false,"properties":{"format":{"description":"Always \"hingeplan-project\": tells this file from other JSON.","const":"hingeplan-project"},"version":{"description":"Version of this file format. This schema describes version 1.","const":1},"name":{"description":"Name of the pattern, shown in titles and written into exports.","type":"string"},"units":{"description":"Length unit of the coordinates, free text (e.g. \"mm\"). Angles are always degrees.","type":"string"},"notes":{"description":"Free text for the people who use the file: what it is, what drives it needs.","type":"string"},"vertices":{"description":"Flat-sheet coordinates [x, y] of every vertex; a vertex is referred to by its zero-based position in this list.","type":"array","maxItems":250000,"items":{"type":"array","prefixItems":[{"type":"number"},{"type":"number"}],"minItems":2,"maxItems":2}},"creases":{"description":"Every edge of the pattern: fold lines and the sheet's rim. A crease is referred to by its label, or by its zero-based position in this list when it has none.","type":"array","maxItems":250000,"items":{"type":"object","required":["vertices","assignment"],"additionalProperties":false,"properties":{"vertices":{"description":"The two vertex indices the crease joins.","type":"array","prefixItems":[{"type":"integer","minimum":0},{"type":"integer","minimum":0}],"minItems":2,"maxItems":2},"assignment":{"description":"M mountain, V valley, U unassigned (either way), F flat (held at 0), B boundary (the sheet's rim).","enum":["M","V","U","F","B"]},"label":{"description":"Unique name for drives, messages and tables. Without one, the crease's index is its name.","type":"string","minLength":1},"limits":{"description":"Hinge stops in degrees: the fold angle stays within min ... max. Either side may be left out.","type":"object","additionalProperties":false,"properties":{"min":{"description":"Lowest fold angle, degrees.","type":"number","minimum":-180,"maximum":180},"max":{"description":"Highest fold angle, degrees.","type":"number","minimum":-180,"maximum":180}}}}}},"faces":{"description":"Optional panels as vertex cycles (either direction). When given they must be exactly the panels the creases make; their order then numbers the panels.","type":"array","items":{"type":"array","minItems":3,"items":{"type":"integer","minimum":0}}},"basePanel":{"description":"Index of the panel held still when the folded shape is placed. Default: the panel nearest the centre of the sheet.","type":"integer","minimum":0},"drives":{"description":"Fold angles set by the user or by motors; the solver finds the other creases' angles.","type":"array","items":{"type":"object","required":["crease","angle"],"additionalProperties":false,"properties":{"crease":{"description":"Label (or index as text) of the driven crease.","type":"string","minLength":1},"angle":{"description":"Fold angle in degrees, -180 ... 180, valley positive.","type":"number"}}}},"foldAngles":{"description":"Optional folded state to start from, one fold angle in degrees per crease (same order as creases). Not drives: the solver may move every crease from here.","type":"array","items":{"type":"number","minimum":-180,"maximum":180}}}};
+const schema31 = {"$schema":"https://json-schema.org/draft/2020-12/schema","$id":"urn:hingeplan:schema:project:1","title":"Hingeplan project, version 1","description":"A flat crease pattern of rigid panels with its hinge limits and drives. Coordinates are in the project's units (free text, e.g. mm); angles are degrees; fold angles are 0 when flat, positive for a valley, negative for a mountain, in -180 ... 180. Files may hold at most 250000 vertices and 250000 creases and 32 MiB of text.","type":"object","required":["format","version","name","vertices","creases"],"additionalProperties":false,"properties":{"format":{"description":"Always \"hingeplan-project\": tells this file from other JSON.","const":"hingeplan-project"},"version":{"description":"Version of this file format. This schema describes version 1.","const":1},"name":{"description":"Name of the pattern, shown in titles and written into exports.","type":"string"},"units":{"description":"Length unit of the coordinates, free text (e.g. \"mm\"). Angles are always degrees.","type":"string"},"notes":{"description":"Free text for the people who use the file: what it is, what drives it needs.","type":"string"},"vertices":{"description":"Flat-sheet coordinates [x, y] of every vertex; a vertex is referred to by its zero-based position in this list.","type":"array","maxItems":250000,"items":{"type":"array","prefixItems":[{"type":"number"},{"type":"number"}],"minItems":2,"maxItems":2}},"creases":{"description":"Every edge of the pattern: fold lines and the sheet's rim. A crease is referred to by its label, or by its zero-based position in this list when it has none.","type":"array","maxItems":250000,"items":{"type":"object","required":["vertices","assignment"],"additionalProperties":false,"properties":{"vertices":{"description":"The two vertex indices the crease joins.","type":"array","prefixItems":[{"type":"integer","minimum":0},{"type":"integer","minimum":0}],"minItems":2,"maxItems":2},"assignment":{"description":"M mountain, V valley, U unassigned (either way), F flat (held at 0), B boundary (the sheet's rim).","enum":["M","V","U","F","B"]},"label":{"description":"Unique name for drives, messages and tables. Without one, the crease's index is its name.","type":"string","minLength":1},"limits":{"description":"Hinge stops in degrees: the fold angle stays within min ... max. Either side may be left out.","type":"object","additionalProperties":false,"properties":{"min":{"description":"Lowest fold angle, degrees.","type":"number","minimum":-180,"maximum":180},"max":{"description":"Highest fold angle, degrees.","type":"number","minimum":-180,"maximum":180}}}}}},"faces":{"description":"Optional panels as vertex cycles (either direction). When given they must be exactly the panels the creases make; their order then numbers the panels.","type":"array","items":{"type":"array","minItems":3,"items":{"type":"integer","minimum":0}}},"basePanel":{"description":"Index of the panel held still when the folded shape is placed. Default: the panel nearest the centre of the sheet.","type":"integer","minimum":0},"panelNames":{"description":"Optional names of panels, by panel index (the order of faces, or the derived panel order): {\"3\": \"hinge plate\"}. Names are unique.","type":"object","propertyNames":{"pattern":"^(0|[1-9][0-9]{0,5})$"},"additionalProperties":{"type":"string","minLength":1,"maxLength":200}},"drives":{"description":"Fold angles set by the user or by motors; the solver finds the other creases' angles.","type":"array","items":{"type":"object","required":["crease","angle"],"additionalProperties":false,"properties":{"crease":{"description":"Label (or index as text) of the driven crease.","type":"string","minLength":1},"angle":{"description":"Fold angle in degrees, -180 ... 180, valley positive.","type":"number"}}}},"loads":{"description":"Loads for the static drive torque (SI units): panel mass from an areal density or per panel, gravity in the base panel's frame, torsion springs on creases. Lengths convert from the project's units, which must then be mm, cm, m or in.","type":"object","additionalProperties":false,"properties":{"arealDensity":{"description":"Mass per area of every panel without a mass of its own, kg/m².","type":"number","minimum":0},"gravity":{"description":"Acceleration of gravity [gx, gy, gz] in m/s², in the base panel's frame. Default [0, 0, -9.80665]: the base panel flat, its top side up.","type":"array","minItems":3,"maxItems":3,"items":{"type":"number"}},"panelMasses":{"description":"Masses of single panels, kg (they replace the areal density for those panels).","type":"array","items":{"type":"object","required":["panel","mass"],"additionalProperties":false,"properties":{"panel":{"description":"Panel index (as in faces, or the derived panel order).","type":"integer","minimum":0},"mass":{"description":"Mass of the panel, kg.","type":"number","minimum":0}}}},"springs":{"description":"Torsion springs on hinges: torque stiffness × (fold angle − rest angle).","type":"array","items":{"type":"object","required":["crease","stiffness"],"additionalProperties":false,"properties":{"crease":{"description":"Label (or index as text) of the crease.","type":"string","minLength":1},"stiffness":{"description":"Torsional stiffness, N·m/rad.","type":"number","minimum":0},"rest":{"description":"Fold angle at which the spring is relaxed, degrees (default 0).","type":"number","minimum":-180,"maximum":180}}}}}},"foldAngles":{"description":"Optional folded state to start from, one fold angle in degrees per crease (same order as creases). Not drives: the solver may move every crease from here.","type":"array","items":{"type":"number","minimum":-180,"maximum":180}}}};
 const func1 = Object.prototype.hasOwnProperty;
 const func2 = ((s) => [...s].length);
+const pattern4 = new RegExp("^(0|[1-9][0-9]{0,5})$", "u");
 
 function validate20(data, {instancePath="", parentData, parentDataProperty, rootData=data, dynamicAnchors={}}={}){
 /*# sourceURL="urn:hingeplan:schema:project:1" */;
@@ -617,15 +618,14 @@ errors++;
 }
 }
 }
-if(data.drives !== undefined){
-let data23 = data.drives;
-if(Array.isArray(data23)){
-const len6 = data23.length;
-for(let i4=0; i4<len6; i4++){
-let data24 = data23[i4];
-if(data24 && typeof data24 == "object" && !Array.isArray(data24)){
-if(data24.crease === undefined){
-const err49 = {instancePath:instancePath+"/drives/" + i4,schemaPath:"#/properties/drives/items/required",keyword:"required",params:{missingProperty: "crease"},message:"must have required property '"+"crease"+"'"};
+if(data.panelNames !== undefined){
+let data23 = data.panelNames;
+if(data23 && typeof data23 == "object" && !Array.isArray(data23)){
+for(const key3 in data23){
+const _errs49 = errors;
+if(typeof key3 === "string"){
+if(!pattern4.test(key3)){
+const err49 = {instancePath:instancePath+"/panelNames",schemaPath:"#/properties/panelNames/propertyNames/pattern",keyword:"pattern",params:{pattern: "^(0|[1-9][0-9]{0,5})$"},message:"must match pattern \""+"^(0|[1-9][0-9]{0,5})$"+"\"",propertyName:key3};
 if(vErrors === null){
 vErrors = [err49];
 }
@@ -634,8 +634,10 @@ vErrors.push(err49);
 }
 errors++;
 }
-if(data24.angle === undefined){
-const err50 = {instancePath:instancePath+"/drives/" + i4,schemaPath:"#/properties/drives/items/required",keyword:"required",params:{missingProperty: "angle"},message:"must have required property '"+"angle"+"'"};
+}
+var valid13 = _errs49 === errors;
+if(!valid13){
+const err50 = {instancePath:instancePath+"/panelNames",schemaPath:"#/properties/panelNames/propertyNames",keyword:"propertyNames",params:{propertyName: key3},message:"property name must be valid"};
 if(vErrors === null){
 vErrors = [err50];
 }
@@ -644,9 +646,12 @@ vErrors.push(err50);
 }
 errors++;
 }
-for(const key3 in data24){
-if(!((key3 === "crease") || (key3 === "angle"))){
-const err51 = {instancePath:instancePath+"/drives/" + i4,schemaPath:"#/properties/drives/items/additionalProperties",keyword:"additionalProperties",params:{additionalProperty: key3},message:"must NOT have additional properties"};
+}
+for(const key4 in data23){
+let data24 = data23[key4];
+if(typeof data24 === "string"){
+if(func2(data24) > 200){
+const err51 = {instancePath:instancePath+"/panelNames/" + key4.replace(/~/g, "~0").replace(/\//g, "~1"),schemaPath:"#/properties/panelNames/additionalProperties/maxLength",keyword:"maxLength",params:{limit: 200},message:"must NOT have more than 200 characters"};
 if(vErrors === null){
 vErrors = [err51];
 }
@@ -655,12 +660,8 @@ vErrors.push(err51);
 }
 errors++;
 }
-}
-if(data24.crease !== undefined){
-let data25 = data24.crease;
-if(typeof data25 === "string"){
-if(func2(data25) < 1){
-const err52 = {instancePath:instancePath+"/drives/" + i4+"/crease",schemaPath:"#/properties/drives/items/properties/crease/minLength",keyword:"minLength",params:{limit: 1},message:"must NOT have fewer than 1 characters"};
+if(func2(data24) < 1){
+const err52 = {instancePath:instancePath+"/panelNames/" + key4.replace(/~/g, "~0").replace(/\//g, "~1"),schemaPath:"#/properties/panelNames/additionalProperties/minLength",keyword:"minLength",params:{limit: 1},message:"must NOT have fewer than 1 characters"};
 if(vErrors === null){
 vErrors = [err52];
 }
@@ -671,7 +672,7 @@ errors++;
 }
 }
 else {
-const err53 = {instancePath:instancePath+"/drives/" + i4+"/crease",schemaPath:"#/properties/drives/items/properties/crease/type",keyword:"type",params:{type: "string"},message:"must be string"};
+const err53 = {instancePath:instancePath+"/panelNames/" + key4.replace(/~/g, "~0").replace(/\//g, "~1"),schemaPath:"#/properties/panelNames/additionalProperties/type",keyword:"type",params:{type: "string"},message:"must be string"};
 if(vErrors === null){
 vErrors = [err53];
 }
@@ -681,10 +682,9 @@ vErrors.push(err53);
 errors++;
 }
 }
-if(data24.angle !== undefined){
-let data26 = data24.angle;
-if(!((typeof data26 == "number") && (isFinite(data26)))){
-const err54 = {instancePath:instancePath+"/drives/" + i4+"/angle",schemaPath:"#/properties/drives/items/properties/angle/type",keyword:"type",params:{type: "number"},message:"must be number"};
+}
+else {
+const err54 = {instancePath:instancePath+"/panelNames",schemaPath:"#/properties/panelNames/type",keyword:"type",params:{type: "object"},message:"must be object"};
 if(vErrors === null){
 vErrors = [err54];
 }
@@ -694,9 +694,15 @@ vErrors.push(err54);
 errors++;
 }
 }
-}
-else {
-const err55 = {instancePath:instancePath+"/drives/" + i4,schemaPath:"#/properties/drives/items/type",keyword:"type",params:{type: "object"},message:"must be object"};
+if(data.drives !== undefined){
+let data25 = data.drives;
+if(Array.isArray(data25)){
+const len6 = data25.length;
+for(let i4=0; i4<len6; i4++){
+let data26 = data25[i4];
+if(data26 && typeof data26 == "object" && !Array.isArray(data26)){
+if(data26.crease === undefined){
+const err55 = {instancePath:instancePath+"/drives/" + i4,schemaPath:"#/properties/drives/items/required",keyword:"required",params:{missingProperty: "crease"},message:"must have required property '"+"crease"+"'"};
 if(vErrors === null){
 vErrors = [err55];
 }
@@ -705,10 +711,8 @@ vErrors.push(err55);
 }
 errors++;
 }
-}
-}
-else {
-const err56 = {instancePath:instancePath+"/drives",schemaPath:"#/properties/drives/type",keyword:"type",params:{type: "array"},message:"must be array"};
+if(data26.angle === undefined){
+const err56 = {instancePath:instancePath+"/drives/" + i4,schemaPath:"#/properties/drives/items/required",keyword:"required",params:{missingProperty: "angle"},message:"must have required property '"+"angle"+"'"};
 if(vErrors === null){
 vErrors = [err56];
 }
@@ -717,16 +721,9 @@ vErrors.push(err56);
 }
 errors++;
 }
-}
-if(data.foldAngles !== undefined){
-let data27 = data.foldAngles;
-if(Array.isArray(data27)){
-const len7 = data27.length;
-for(let i5=0; i5<len7; i5++){
-let data28 = data27[i5];
-if((typeof data28 == "number") && (isFinite(data28))){
-if(data28 > 180 || isNaN(data28)){
-const err57 = {instancePath:instancePath+"/foldAngles/" + i5,schemaPath:"#/properties/foldAngles/items/maximum",keyword:"maximum",params:{comparison: "<=", limit: 180},message:"must be <= 180"};
+for(const key5 in data26){
+if(!((key5 === "crease") || (key5 === "angle"))){
+const err57 = {instancePath:instancePath+"/drives/" + i4,schemaPath:"#/properties/drives/items/additionalProperties",keyword:"additionalProperties",params:{additionalProperty: key5},message:"must NOT have additional properties"};
 if(vErrors === null){
 vErrors = [err57];
 }
@@ -735,8 +732,12 @@ vErrors.push(err57);
 }
 errors++;
 }
-if(data28 < -180 || isNaN(data28)){
-const err58 = {instancePath:instancePath+"/foldAngles/" + i5,schemaPath:"#/properties/foldAngles/items/minimum",keyword:"minimum",params:{comparison: ">=", limit: -180},message:"must be >= -180"};
+}
+if(data26.crease !== undefined){
+let data27 = data26.crease;
+if(typeof data27 === "string"){
+if(func2(data27) < 1){
+const err58 = {instancePath:instancePath+"/drives/" + i4+"/crease",schemaPath:"#/properties/drives/items/properties/crease/minLength",keyword:"minLength",params:{limit: 1},message:"must NOT have fewer than 1 characters"};
 if(vErrors === null){
 vErrors = [err58];
 }
@@ -747,7 +748,7 @@ errors++;
 }
 }
 else {
-const err59 = {instancePath:instancePath+"/foldAngles/" + i5,schemaPath:"#/properties/foldAngles/items/type",keyword:"type",params:{type: "number"},message:"must be number"};
+const err59 = {instancePath:instancePath+"/drives/" + i4+"/crease",schemaPath:"#/properties/drives/items/properties/crease/type",keyword:"type",params:{type: "string"},message:"must be string"};
 if(vErrors === null){
 vErrors = [err59];
 }
@@ -757,9 +758,10 @@ vErrors.push(err59);
 errors++;
 }
 }
-}
-else {
-const err60 = {instancePath:instancePath+"/foldAngles",schemaPath:"#/properties/foldAngles/type",keyword:"type",params:{type: "array"},message:"must be array"};
+if(data26.angle !== undefined){
+let data28 = data26.angle;
+if(!((typeof data28 == "number") && (isFinite(data28)))){
+const err60 = {instancePath:instancePath+"/drives/" + i4+"/angle",schemaPath:"#/properties/drives/items/properties/angle/type",keyword:"type",params:{type: "number"},message:"must be number"};
 if(vErrors === null){
 vErrors = [err60];
 }
@@ -771,12 +773,449 @@ errors++;
 }
 }
 else {
-const err61 = {instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object"};
+const err61 = {instancePath:instancePath+"/drives/" + i4,schemaPath:"#/properties/drives/items/type",keyword:"type",params:{type: "object"},message:"must be object"};
 if(vErrors === null){
 vErrors = [err61];
 }
 else {
 vErrors.push(err61);
+}
+errors++;
+}
+}
+}
+else {
+const err62 = {instancePath:instancePath+"/drives",schemaPath:"#/properties/drives/type",keyword:"type",params:{type: "array"},message:"must be array"};
+if(vErrors === null){
+vErrors = [err62];
+}
+else {
+vErrors.push(err62);
+}
+errors++;
+}
+}
+if(data.loads !== undefined){
+let data29 = data.loads;
+if(data29 && typeof data29 == "object" && !Array.isArray(data29)){
+for(const key6 in data29){
+if(!((((key6 === "arealDensity") || (key6 === "gravity")) || (key6 === "panelMasses")) || (key6 === "springs"))){
+const err63 = {instancePath:instancePath+"/loads",schemaPath:"#/properties/loads/additionalProperties",keyword:"additionalProperties",params:{additionalProperty: key6},message:"must NOT have additional properties"};
+if(vErrors === null){
+vErrors = [err63];
+}
+else {
+vErrors.push(err63);
+}
+errors++;
+}
+}
+if(data29.arealDensity !== undefined){
+let data30 = data29.arealDensity;
+if((typeof data30 == "number") && (isFinite(data30))){
+if(data30 < 0 || isNaN(data30)){
+const err64 = {instancePath:instancePath+"/loads/arealDensity",schemaPath:"#/properties/loads/properties/arealDensity/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0"};
+if(vErrors === null){
+vErrors = [err64];
+}
+else {
+vErrors.push(err64);
+}
+errors++;
+}
+}
+else {
+const err65 = {instancePath:instancePath+"/loads/arealDensity",schemaPath:"#/properties/loads/properties/arealDensity/type",keyword:"type",params:{type: "number"},message:"must be number"};
+if(vErrors === null){
+vErrors = [err65];
+}
+else {
+vErrors.push(err65);
+}
+errors++;
+}
+}
+if(data29.gravity !== undefined){
+let data31 = data29.gravity;
+if(Array.isArray(data31)){
+if(data31.length > 3){
+const err66 = {instancePath:instancePath+"/loads/gravity",schemaPath:"#/properties/loads/properties/gravity/maxItems",keyword:"maxItems",params:{limit: 3},message:"must NOT have more than 3 items"};
+if(vErrors === null){
+vErrors = [err66];
+}
+else {
+vErrors.push(err66);
+}
+errors++;
+}
+if(data31.length < 3){
+const err67 = {instancePath:instancePath+"/loads/gravity",schemaPath:"#/properties/loads/properties/gravity/minItems",keyword:"minItems",params:{limit: 3},message:"must NOT have fewer than 3 items"};
+if(vErrors === null){
+vErrors = [err67];
+}
+else {
+vErrors.push(err67);
+}
+errors++;
+}
+const len7 = data31.length;
+for(let i5=0; i5<len7; i5++){
+let data32 = data31[i5];
+if(!((typeof data32 == "number") && (isFinite(data32)))){
+const err68 = {instancePath:instancePath+"/loads/gravity/" + i5,schemaPath:"#/properties/loads/properties/gravity/items/type",keyword:"type",params:{type: "number"},message:"must be number"};
+if(vErrors === null){
+vErrors = [err68];
+}
+else {
+vErrors.push(err68);
+}
+errors++;
+}
+}
+}
+else {
+const err69 = {instancePath:instancePath+"/loads/gravity",schemaPath:"#/properties/loads/properties/gravity/type",keyword:"type",params:{type: "array"},message:"must be array"};
+if(vErrors === null){
+vErrors = [err69];
+}
+else {
+vErrors.push(err69);
+}
+errors++;
+}
+}
+if(data29.panelMasses !== undefined){
+let data33 = data29.panelMasses;
+if(Array.isArray(data33)){
+const len8 = data33.length;
+for(let i6=0; i6<len8; i6++){
+let data34 = data33[i6];
+if(data34 && typeof data34 == "object" && !Array.isArray(data34)){
+if(data34.panel === undefined){
+const err70 = {instancePath:instancePath+"/loads/panelMasses/" + i6,schemaPath:"#/properties/loads/properties/panelMasses/items/required",keyword:"required",params:{missingProperty: "panel"},message:"must have required property '"+"panel"+"'"};
+if(vErrors === null){
+vErrors = [err70];
+}
+else {
+vErrors.push(err70);
+}
+errors++;
+}
+if(data34.mass === undefined){
+const err71 = {instancePath:instancePath+"/loads/panelMasses/" + i6,schemaPath:"#/properties/loads/properties/panelMasses/items/required",keyword:"required",params:{missingProperty: "mass"},message:"must have required property '"+"mass"+"'"};
+if(vErrors === null){
+vErrors = [err71];
+}
+else {
+vErrors.push(err71);
+}
+errors++;
+}
+for(const key7 in data34){
+if(!((key7 === "panel") || (key7 === "mass"))){
+const err72 = {instancePath:instancePath+"/loads/panelMasses/" + i6,schemaPath:"#/properties/loads/properties/panelMasses/items/additionalProperties",keyword:"additionalProperties",params:{additionalProperty: key7},message:"must NOT have additional properties"};
+if(vErrors === null){
+vErrors = [err72];
+}
+else {
+vErrors.push(err72);
+}
+errors++;
+}
+}
+if(data34.panel !== undefined){
+let data35 = data34.panel;
+if(!(((typeof data35 == "number") && (!(data35 % 1) && !isNaN(data35))) && (isFinite(data35)))){
+const err73 = {instancePath:instancePath+"/loads/panelMasses/" + i6+"/panel",schemaPath:"#/properties/loads/properties/panelMasses/items/properties/panel/type",keyword:"type",params:{type: "integer"},message:"must be integer"};
+if(vErrors === null){
+vErrors = [err73];
+}
+else {
+vErrors.push(err73);
+}
+errors++;
+}
+if((typeof data35 == "number") && (isFinite(data35))){
+if(data35 < 0 || isNaN(data35)){
+const err74 = {instancePath:instancePath+"/loads/panelMasses/" + i6+"/panel",schemaPath:"#/properties/loads/properties/panelMasses/items/properties/panel/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0"};
+if(vErrors === null){
+vErrors = [err74];
+}
+else {
+vErrors.push(err74);
+}
+errors++;
+}
+}
+}
+if(data34.mass !== undefined){
+let data36 = data34.mass;
+if((typeof data36 == "number") && (isFinite(data36))){
+if(data36 < 0 || isNaN(data36)){
+const err75 = {instancePath:instancePath+"/loads/panelMasses/" + i6+"/mass",schemaPath:"#/properties/loads/properties/panelMasses/items/properties/mass/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0"};
+if(vErrors === null){
+vErrors = [err75];
+}
+else {
+vErrors.push(err75);
+}
+errors++;
+}
+}
+else {
+const err76 = {instancePath:instancePath+"/loads/panelMasses/" + i6+"/mass",schemaPath:"#/properties/loads/properties/panelMasses/items/properties/mass/type",keyword:"type",params:{type: "number"},message:"must be number"};
+if(vErrors === null){
+vErrors = [err76];
+}
+else {
+vErrors.push(err76);
+}
+errors++;
+}
+}
+}
+else {
+const err77 = {instancePath:instancePath+"/loads/panelMasses/" + i6,schemaPath:"#/properties/loads/properties/panelMasses/items/type",keyword:"type",params:{type: "object"},message:"must be object"};
+if(vErrors === null){
+vErrors = [err77];
+}
+else {
+vErrors.push(err77);
+}
+errors++;
+}
+}
+}
+else {
+const err78 = {instancePath:instancePath+"/loads/panelMasses",schemaPath:"#/properties/loads/properties/panelMasses/type",keyword:"type",params:{type: "array"},message:"must be array"};
+if(vErrors === null){
+vErrors = [err78];
+}
+else {
+vErrors.push(err78);
+}
+errors++;
+}
+}
+if(data29.springs !== undefined){
+let data37 = data29.springs;
+if(Array.isArray(data37)){
+const len9 = data37.length;
+for(let i7=0; i7<len9; i7++){
+let data38 = data37[i7];
+if(data38 && typeof data38 == "object" && !Array.isArray(data38)){
+if(data38.crease === undefined){
+const err79 = {instancePath:instancePath+"/loads/springs/" + i7,schemaPath:"#/properties/loads/properties/springs/items/required",keyword:"required",params:{missingProperty: "crease"},message:"must have required property '"+"crease"+"'"};
+if(vErrors === null){
+vErrors = [err79];
+}
+else {
+vErrors.push(err79);
+}
+errors++;
+}
+if(data38.stiffness === undefined){
+const err80 = {instancePath:instancePath+"/loads/springs/" + i7,schemaPath:"#/properties/loads/properties/springs/items/required",keyword:"required",params:{missingProperty: "stiffness"},message:"must have required property '"+"stiffness"+"'"};
+if(vErrors === null){
+vErrors = [err80];
+}
+else {
+vErrors.push(err80);
+}
+errors++;
+}
+for(const key8 in data38){
+if(!(((key8 === "crease") || (key8 === "stiffness")) || (key8 === "rest"))){
+const err81 = {instancePath:instancePath+"/loads/springs/" + i7,schemaPath:"#/properties/loads/properties/springs/items/additionalProperties",keyword:"additionalProperties",params:{additionalProperty: key8},message:"must NOT have additional properties"};
+if(vErrors === null){
+vErrors = [err81];
+}
+else {
+vErrors.push(err81);
+}
+errors++;
+}
+}
+if(data38.crease !== undefined){
+let data39 = data38.crease;
+if(typeof data39 === "string"){
+if(func2(data39) < 1){
+const err82 = {instancePath:instancePath+"/loads/springs/" + i7+"/crease",schemaPath:"#/properties/loads/properties/springs/items/properties/crease/minLength",keyword:"minLength",params:{limit: 1},message:"must NOT have fewer than 1 characters"};
+if(vErrors === null){
+vErrors = [err82];
+}
+else {
+vErrors.push(err82);
+}
+errors++;
+}
+}
+else {
+const err83 = {instancePath:instancePath+"/loads/springs/" + i7+"/crease",schemaPath:"#/properties/loads/properties/springs/items/properties/crease/type",keyword:"type",params:{type: "string"},message:"must be string"};
+if(vErrors === null){
+vErrors = [err83];
+}
+else {
+vErrors.push(err83);
+}
+errors++;
+}
+}
+if(data38.stiffness !== undefined){
+let data40 = data38.stiffness;
+if((typeof data40 == "number") && (isFinite(data40))){
+if(data40 < 0 || isNaN(data40)){
+const err84 = {instancePath:instancePath+"/loads/springs/" + i7+"/stiffness",schemaPath:"#/properties/loads/properties/springs/items/properties/stiffness/minimum",keyword:"minimum",params:{comparison: ">=", limit: 0},message:"must be >= 0"};
+if(vErrors === null){
+vErrors = [err84];
+}
+else {
+vErrors.push(err84);
+}
+errors++;
+}
+}
+else {
+const err85 = {instancePath:instancePath+"/loads/springs/" + i7+"/stiffness",schemaPath:"#/properties/loads/properties/springs/items/properties/stiffness/type",keyword:"type",params:{type: "number"},message:"must be number"};
+if(vErrors === null){
+vErrors = [err85];
+}
+else {
+vErrors.push(err85);
+}
+errors++;
+}
+}
+if(data38.rest !== undefined){
+let data41 = data38.rest;
+if((typeof data41 == "number") && (isFinite(data41))){
+if(data41 > 180 || isNaN(data41)){
+const err86 = {instancePath:instancePath+"/loads/springs/" + i7+"/rest",schemaPath:"#/properties/loads/properties/springs/items/properties/rest/maximum",keyword:"maximum",params:{comparison: "<=", limit: 180},message:"must be <= 180"};
+if(vErrors === null){
+vErrors = [err86];
+}
+else {
+vErrors.push(err86);
+}
+errors++;
+}
+if(data41 < -180 || isNaN(data41)){
+const err87 = {instancePath:instancePath+"/loads/springs/" + i7+"/rest",schemaPath:"#/properties/loads/properties/springs/items/properties/rest/minimum",keyword:"minimum",params:{comparison: ">=", limit: -180},message:"must be >= -180"};
+if(vErrors === null){
+vErrors = [err87];
+}
+else {
+vErrors.push(err87);
+}
+errors++;
+}
+}
+else {
+const err88 = {instancePath:instancePath+"/loads/springs/" + i7+"/rest",schemaPath:"#/properties/loads/properties/springs/items/properties/rest/type",keyword:"type",params:{type: "number"},message:"must be number"};
+if(vErrors === null){
+vErrors = [err88];
+}
+else {
+vErrors.push(err88);
+}
+errors++;
+}
+}
+}
+else {
+const err89 = {instancePath:instancePath+"/loads/springs/" + i7,schemaPath:"#/properties/loads/properties/springs/items/type",keyword:"type",params:{type: "object"},message:"must be object"};
+if(vErrors === null){
+vErrors = [err89];
+}
+else {
+vErrors.push(err89);
+}
+errors++;
+}
+}
+}
+else {
+const err90 = {instancePath:instancePath+"/loads/springs",schemaPath:"#/properties/loads/properties/springs/type",keyword:"type",params:{type: "array"},message:"must be array"};
+if(vErrors === null){
+vErrors = [err90];
+}
+else {
+vErrors.push(err90);
+}
+errors++;
+}
+}
+}
+else {
+const err91 = {instancePath:instancePath+"/loads",schemaPath:"#/properties/loads/type",keyword:"type",params:{type: "object"},message:"must be object"};
+if(vErrors === null){
+vErrors = [err91];
+}
+else {
+vErrors.push(err91);
+}
+errors++;
+}
+}
+if(data.foldAngles !== undefined){
+let data42 = data.foldAngles;
+if(Array.isArray(data42)){
+const len10 = data42.length;
+for(let i8=0; i8<len10; i8++){
+let data43 = data42[i8];
+if((typeof data43 == "number") && (isFinite(data43))){
+if(data43 > 180 || isNaN(data43)){
+const err92 = {instancePath:instancePath+"/foldAngles/" + i8,schemaPath:"#/properties/foldAngles/items/maximum",keyword:"maximum",params:{comparison: "<=", limit: 180},message:"must be <= 180"};
+if(vErrors === null){
+vErrors = [err92];
+}
+else {
+vErrors.push(err92);
+}
+errors++;
+}
+if(data43 < -180 || isNaN(data43)){
+const err93 = {instancePath:instancePath+"/foldAngles/" + i8,schemaPath:"#/properties/foldAngles/items/minimum",keyword:"minimum",params:{comparison: ">=", limit: -180},message:"must be >= -180"};
+if(vErrors === null){
+vErrors = [err93];
+}
+else {
+vErrors.push(err93);
+}
+errors++;
+}
+}
+else {
+const err94 = {instancePath:instancePath+"/foldAngles/" + i8,schemaPath:"#/properties/foldAngles/items/type",keyword:"type",params:{type: "number"},message:"must be number"};
+if(vErrors === null){
+vErrors = [err94];
+}
+else {
+vErrors.push(err94);
+}
+errors++;
+}
+}
+}
+else {
+const err95 = {instancePath:instancePath+"/foldAngles",schemaPath:"#/properties/foldAngles/type",keyword:"type",params:{type: "array"},message:"must be array"};
+if(vErrors === null){
+vErrors = [err95];
+}
+else {
+vErrors.push(err95);
+}
+errors++;
+}
+}
+}
+else {
+const err96 = {instancePath,schemaPath:"#/type",keyword:"type",params:{type: "object"},message:"must be object"};
+if(vErrors === null){
+vErrors = [err96];
+}
+else {
+vErrors.push(err96);
 }
 errors++;
 }

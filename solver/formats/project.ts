@@ -1,5 +1,5 @@
 // The Hingeplan project file: versioned JSON described by schema/project.schema.json (degrees in the
-// file, radians inside). Also loadPatternText, the one entry point the shells use for any pattern file.
+// file, radians inside). Also loadStructuredText, the reader of project and FOLD files (./load.ts adds drawings).
 //
 // Limits (see ./limits.ts): at most MAX_TEXT_BYTES (32 MiB) of text, MAX_VERTICES (250,000) vertices
 // and MAX_CREASES (250,000) creases; more is refused before any other work is done.
@@ -12,6 +12,7 @@ import { MAX_CREASES, MAX_TEXT_BYTES, MAX_VERTICES, readJsonText } from './limit
 import { parseFoldValue } from './fold';
 import { decodeUtf8 } from './text';
 import { decodeDxf } from './dxf-text';
+import { loadsValue, readLoads, type FileLoads } from './loads';
 import type { CleanCounts } from '../model/clean';
 
 export { MAX_CREASES, MAX_TEXT_BYTES, MAX_VERTICES };
@@ -28,6 +29,8 @@ export interface Project {
   notes?: string;
   /** a folded state to start from: one fold angle per crease, radians, valley positive; not drives */
   foldAngles?: number[];
+  /** loads for the static drive torque (SI; springs by crease label, rest angles in degrees) */
+  loads?: FileLoads;
   /** what a FOLD file carried that the project does not use, so it can be written back */
   fold?: {
     /** top-level keys this program does not read, untouched, in file order */
@@ -207,6 +210,11 @@ export function parseProjectValue(value: unknown): ParseResult {
   };
   if (obj.faces !== undefined) source.faces = (obj.faces as number[][]).map((f) => f.slice());
   if (obj.basePanel !== undefined) source.basePanel = obj.basePanel as number;
+  if (obj.panelNames !== undefined) {
+    const names: (string | undefined)[] = [];
+    for (const [k, v] of Object.entries(obj.panelNames as Record<string, string>)) names[Number(k)] = v;
+    source.panelNames = Array.from(names, (v) => v);
+  }
   const drives: DriveSpec[] = ((obj.drives as { crease: string; angle: number }[] | undefined) ?? []).map((d, k) => ({
     crease: d.crease,
     angleDeg: d.angle,
@@ -215,6 +223,11 @@ export function parseProjectValue(value: unknown): ParseResult {
   const project: Project = { source, drives };
   if (typeof obj.units === 'string') project.units = obj.units;
   if (typeof obj.notes === 'string') project.notes = obj.notes;
+  if (obj.loads !== undefined) {
+    const r = readLoads(obj.loads, 'loads');
+    if (!r.loads) return { messages: r.messages };
+    project.loads = r.loads;
+  }
   if (obj.foldAngles !== undefined) {
     const fa = obj.foldAngles as number[];
     if (fa.length !== creases.length) {
@@ -266,8 +279,11 @@ export function writeProject(project: Project): string {
   entries.push(['creases', arrayLines(creases)]);
   if (src.faces !== undefined) entries.push(['faces', arrayLines(src.faces)]);
   if (src.basePanel !== undefined) entries.push(['basePanel', j(src.basePanel)]);
+  const named = (src.panelNames ?? []).map((n, k) => [String(k), n] as const).filter(([, n]) => n !== undefined && n !== '');
+  if (named.length) entries.push(['panelNames', j(Object.fromEntries(named))]);
   if (project.drives.length > 0) entries.push(['drives', arrayLines(project.drives.map((d) => ({ crease: d.crease, angle: d.angleDeg })))]);
   if (project.foldAngles !== undefined) entries.push(['foldAngles', j(project.foldAngles.map(toDegrees))]);
+  if (project.loads !== undefined) entries.push(['loads', j(loadsValue(project.loads))]);
   return '{\n' + entries.map(([k, v]) => `  ${j(k)}: ${v}`).join(',\n') + '\n}\n';
 }
 
@@ -340,7 +356,7 @@ function withField(m: Message, format: 'project' | 'fold', hasFaces: boolean): M
   if (!w) return m;
   if (w.field !== undefined) {
     if (format !== 'fold') return m;
-    const renamed = w.field.replace(/^faces\b/, 'faces_vertices').replace(/^basePanel$/, 'hingeplan:basePanel');
+    const renamed = w.field.replace(/^faces\b/, 'faces_vertices').replace(/^basePanel$/, 'hingeplan:basePanel').replace(/^panelNames\.(\d+)$/, 'hingeplan:faces_name[$1]');
     return renamed === w.field ? m : { ...m, where: { ...w, field: renamed } };
   }
   let field: string | undefined;

@@ -5,6 +5,7 @@
 // supplies (time and drive angles per row), with a clear flag on rows that have no consistent state.
 
 import type { Drive, Message, Pattern } from '../types';
+import type { ChecksSummary, StateChecks } from './path-physics';
 import { runSteps, sweepSteps, type SweepEvent, type SweepHooks, type SweepOptions, type SweepResult, type SweepSample } from '../paths/sweep';
 import { solveDrives } from '../search/solve';
 import { ClosureProblem, RESIDUAL_TOLERANCE } from '../closure/newton';
@@ -146,6 +147,8 @@ export interface ScheduleOptions {
   holds?: Drive[];
   branch?: number;
   solution?: number;
+  /** a closed state to start from (full crease vector, radians), as the sweep's start */
+  start?: Float64Array;
   /** limits for every hinge */
   limits?: HingeLimits;
   /** limits per crease index (override the global ones) */
@@ -169,6 +172,8 @@ export interface ScheduleRow {
   overAcceleration: number[];
   /** why the row has no state */
   unreachable?: string;
+  /** contact and torque at the row's state, when the path checks them */
+  checks?: StateChecks;
 }
 
 export interface HingeSummary {
@@ -251,6 +256,8 @@ export function deploymentSchedule(pattern: Pattern, opts: ScheduleOptions, hook
 export interface ScheduleHooks extends SweepHooks {
   /** every row as soon as it is known, in time order (k = 0, 1, …), for output written while the schedule is computed */
   onRow?(row: ScheduleRow, k: number): void;
+  /** the path has ended (before the rows it did not reach are made): a caller's checks may add their events */
+  onPathEnd?(path: SweepResult): void;
 }
 
 /**
@@ -284,19 +291,10 @@ export function* scheduleSteps(pattern: Pattern, opts: ScheduleOptions & { keepR
     next++;
   };
   const n = pattern.creases.length;
-  const solvedRow = (st: ProfileState, s: SweepSample): ScheduleRow => {
-    const velocities = new Float64Array(n);
-    const accelerations = new Float64Array(n);
-    const overRate: number[] = [], overAcceleration: number[] = [];
-    for (let c = 0; c < n; c++) {
-      velocities[c] = s.rates[c] * st.velocity;
-      accelerations[c] = s.rates[c] * st.acceleration + (s.curvature?.[c] ?? 0) * st.velocity * st.velocity;
-      const lim = limitOf(c);
-      if (lim.maxRate !== undefined && Math.abs(velocities[c]) > lim.maxRate) overRate.push(c);
-      if (lim.maxAcceleration !== undefined && Math.abs(accelerations[c]) > lim.maxAcceleration) overAcceleration.push(c);
-    }
-    return { t: st.t, drive: st.position, driveVelocity: st.velocity, driveAcceleration: st.acceleration, angles: s.angles, velocities, accelerations, maxResidual: s.maxResidual, overRate, overAcceleration };
-  };
+  const solvedRow = (st: ProfileState, s: SweepSample): ScheduleRow => ({
+    t: st.t, drive: st.position, driveVelocity: st.velocity, driveAcceleration: st.acceleration, angles: s.angles, maxResidual: s.maxResidual,
+    ...hingeMotion(s, st, n, limitOf), ...(s.checks ? { checks: s.checks } : {}),
+  });
   const sweepOpts: SweepOptions = {
     drive: opts.drive,
     from: values[0],
@@ -305,17 +303,25 @@ export function* scheduleSteps(pattern: Pattern, opts: ScheduleOptions & { keepR
     holds: opts.holds,
     branch: opts.branch,
     solution: opts.solution,
+    ...(opts.start ? { start: opts.start } : {}),
     curvature: true,
     method: opts.method,
     keepSamples: false,
   };
   const path = yield* sweepSteps(pattern, sweepOpts, {
     ...hooks,
-    // the rows at this drive value (consecutive in time: the profile is monotonic)
-    onSample: (s) => { while (next < states.length && states[next].position === s.drive) emit(solvedRow(states[next], s)); },
+    // the caller's checks first (they mark the sample), then the rows at this drive value (consecutive in
+    // time: the profile is monotonic)
+    onSample: (s, k) => {
+      const verdict = hooks.onSample?.(s, k);
+      while (next < states.length && states[next].position === s.drive) emit(solvedRow(states[next], s));
+      return verdict;
+    },
   });
+  hooks.onPathEnd?.(path);
   messages.push(...path.messages);
-  const endText = path.events.find((e) => e.type !== 'branch-point')?.text ?? (path.status === 'stopped' ? 'the computation was stopped' : 'the path ends before this drive value');
+  const ended = path.events.find((e) => e.type !== 'branch-point');
+  const endText = ended ? (ended.type === 'contact' ? `past the first contact: ${ended.text}` : ended.text) : path.status === 'stopped' ? 'the computation was stopped' : 'the path ends before this drive value';
   while (next < states.length) {
     const st = states[next];
     emit({ t: st.t, drive: st.position, driveVelocity: st.velocity, driveAcceleration: st.acceleration, overRate: [], overAcceleration: [], unreachable: endText });
@@ -353,6 +359,23 @@ export function* scheduleSteps(pattern: Pattern, opts: ScheduleOptions & { keepR
     sweep: path,
     status: path.status === 'stopped' ? 'stopped' : path.status === 'failed' ? 'failed' : unreachable ? 'partial' : 'complete',
   };
+}
+
+/**
+ * Every hinge's velocity ρ̇ = r·θ̇ and acceleration ρ̈ = r·θ̈ + r′·θ̇² at a solved sample and a profile state
+ * (r the rate, r′ the curvature), and the hinges over their limits.
+ */
+function hingeMotion(s: SweepSample, st: ProfileState, n: number, limitOf: (c: number) => HingeLimits) {
+  const velocities = new Float64Array(n), accelerations = new Float64Array(n);
+  const overRate: number[] = [], overAcceleration: number[] = [];
+  for (let c = 0; c < n; c++) {
+    velocities[c] = s.rates[c] * st.velocity;
+    accelerations[c] = s.rates[c] * st.acceleration + (s.curvature?.[c] ?? 0) * st.velocity * st.velocity;
+    const lim = limitOf(c);
+    if (lim.maxRate !== undefined && Math.abs(velocities[c]) > lim.maxRate) overRate.push(c);
+    if (lim.maxAcceleration !== undefined && Math.abs(accelerations[c]) > lim.maxAcceleration) overAcceleration.push(c);
+  }
+  return { velocities, accelerations, overRate, overAcceleration };
 }
 
 /**
@@ -435,17 +458,7 @@ function* peaksBetweenRows(
     }, { shouldStop: hooks.shouldStop });
     const s = res.samples[0];
     if (!s) return undefined;
-    const n = pattern.creases.length;
-    const velocities = new Float64Array(n), accelerations = new Float64Array(n);
-    const overRate: number[] = [], overAcceleration: number[] = [];
-    for (let c = 0; c < n; c++) {
-      velocities[c] = s.rates[c] * st.velocity;
-      accelerations[c] = s.rates[c] * st.acceleration + (s.curvature?.[c] ?? 0) * st.velocity * st.velocity;
-      const lim = limitOf(c);
-      if (lim.maxRate !== undefined && Math.abs(velocities[c]) > lim.maxRate) overRate.push(c);
-      if (lim.maxAcceleration !== undefined && Math.abs(accelerations[c]) > lim.maxAcceleration) overAcceleration.push(c);
-    }
-    return { t, drive: st.position, reason: 'peak', velocities, accelerations, maxResidual: s.maxResidual, overRate, overAcceleration };
+    return { t, drive: st.position, reason: 'peak', maxResidual: s.maxResidual, ...hingeMotion(s, st, pattern.creases.length, limitOf) };
   };
   // 1. both sides of every phase boundary of the profile
   const eps = 1e-9 * T;
@@ -608,6 +621,8 @@ export interface FollowRow {
   maxResidual?: number;
   /** why the row has no consistent state */
   unreachable?: string;
+  /** contact and torque at the row's state, when checked */
+  checks?: StateChecks;
 }
 
 export interface FollowResult {
@@ -618,6 +633,8 @@ export interface FollowResult {
   events: SweepEvent[];
   messages: Message[];
   status: 'complete' | 'partial' | 'stopped' | 'failed';
+  /** what the checks found over the rows (contact, peak torque), when checked */
+  checks?: ChecksSummary;
 }
 
 /**

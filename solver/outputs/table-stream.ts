@@ -85,15 +85,15 @@ export function numberForm(digits?: number): NumberForm {
 
 /**
  * An optional per-row field, declared once for both formats: `header` entries written before the rows,
- * `columns` CSV columns after the standard ones with `csv` giving their cells, and `json` the member `key` of
- * each row object (undefined leaves it out of that row).
+ * `columns` CSV columns after the standard ones with `csv` giving their cells, `json` the members it adds to
+ * each row object (none: undefined), and `tail` entries written after the rows (what the computation found).
  */
 export interface RowField<R> {
-  key: string;
   header?: Record<string, HeaderValue>;
   columns: string[];
   csv(row: R, n: NumberForm): string[];
-  json(row: R, n: NumberForm): unknown;
+  json(row: R, n: NumberForm): Record<string, unknown> | undefined;
+  tail?(format: TableFormat): Record<string, HeaderValue | undefined>;
 }
 
 /**
@@ -139,7 +139,7 @@ export class Degrees {
   }
 }
 
-export function holdsText(pattern: Pattern, holds: Drive[], n: NumberForm): string {
+export function holdsText(pattern: Pattern, holds: Drive[], n: NumberForm = numberForm()): string {
   return holds.map((h) => `${pattern.creases[h.crease].label}=${n.csv(h.degrees ?? h.value * DEG)}`).join(' ') || 'none';
 }
 
@@ -151,6 +151,7 @@ export function eventsJson(pattern: Pattern, events: SweepEvent[], n: NumberForm
   return events.map((e) => ({
     type: e.type,
     drive: n.json(e.drive * DEG),
+    ...(e.panels ? { panels: e.panels, point: e.point!.map((x) => n.json(x)), distance: n.json(e.distance) } : {}),
     text: e.text,
     ...(e.crease !== undefined ? { crease: pattern.creases[e.crease].label } : {}),
   }));
@@ -217,10 +218,7 @@ export class TableStream<R> {
       this.sink.write(cells.join(',') + '\n');
     } else {
       const o = spec.jsonRow(r);
-      for (const f of spec.fields) {
-        const v = f.json(r, n);
-        if (v !== undefined) o[f.key] = v;
-      }
+      for (const f of spec.fields) Object.assign(o, f.json(r, n) ?? {});
       const p = !!opts.pretty;
       this.sink.write((this.rows ? ',' : '') + (p ? '\n    ' : '\n') + jsonText(o, p, 2));
     }
@@ -229,7 +227,9 @@ export class TableStream<R> {
 
   /** `tail`: members after the rows; `csvLines`: comment lines after the rows (CSV only). */
   end(tail: Record<string, HeaderValue | undefined>, csvLines: string[] = []): void {
-    const defined = Object.entries(tail).filter(([, v]) => v !== undefined) as [string, HeaderValue][];
+    const all = { ...tail };
+    for (const f of this.spec.fields) Object.assign(all, f.tail?.(this.opts.format) ?? {});
+    const defined = Object.entries(all).filter(([, v]) => v !== undefined) as [string, HeaderValue][];
     if (this.opts.format === 'csv') {
       const simple = defined.filter(([, v]) => v === null || typeof v !== 'object');
       this.sink.write(metadataLines(Object.fromEntries(simple)) + csvLines.map((l) => `# ${oneLine(l)}\n`).join(''));
@@ -250,7 +250,7 @@ function oneLine(s: string): string {
   return escapeControls(s.replace(/\r\n|\r|\n/g, ' '));
 }
 
-function metadataLines(meta: Record<string, HeaderValue>): string {
+export function metadataLines(meta: Record<string, HeaderValue>): string {
   // one "# key: value" line each; objects as JSON; values never carry line breaks or control characters
   return Object.entries(meta)
     .map(([k, v]) => `# ${k}: ${oneLine(v === null ? '' : typeof v === 'object' ? JSON.stringify(v) : String(v))}\n`)

@@ -25,6 +25,9 @@ import {
   FOLLOW_FORMAT, GRID_FORMAT, SCHEDULE_FORMAT, TABLE_FORMAT,
   type HeaderValue, type NumberForm, type RowField, type TableFormat, type TableHeader, type TableOptions, type TextSink,
 } from './table-stream';
+import { metadataLines as metadataText } from './table-stream';
+import type { ChecksSummary, StateChecks } from './path-physics';
+import { CAUTIONS } from '../formats/cautions';
 
 export * from './table-stream';
 
@@ -37,6 +40,102 @@ export interface AngleTableOptions extends TableOptions {
   driveDegrees?: Map<number, number>;
   /** optional per-sample fields (see RowField) */
   fields?: RowField<SweepSample>[];
+  /** the file's length units (the clearance of the contact check is in them) */
+  units?: string;
+}
+
+// ---------------------------------------------------------------------------------------------------------
+// contact and torque: the physical checks a path ran (./path-physics.ts), as row fields of every table kind
+
+/** What a path checks, known before its rows: contact (and its clearance) and the drives a torque is given for. */
+export interface ChecksColumns {
+  contact: { checked: boolean; clearance: number };
+  /** the drives with a holding torque per row (the path's drive, then the held creases); none without loads */
+  torqueDrives: number[];
+  /** the file's length units, for the clearance */
+  units?: string;
+  /** what the checks found over the path (the first contact, the peak torques), read when the table ends */
+  summary(): ChecksSummary | undefined;
+}
+
+/**
+ * The checks as a row field: the header entry "contact" ({checked, clearance}) and, with loads, "torqueUnits"
+ * and "torqueModel";
+ * per row a CSV column "contact" (1 at or past the first contact) and "torque:<drive>" per drive (N·m), and in
+ * JSON "contact": true (at or past the first contact), "contacts": [[p, q], …] (the panel pairs in contact)
+ * and "torque": {"<drive>": N·m}; after the rows the first contact and each drive's peak torque.
+ */
+export function checksField<R extends { checks?: StateChecks }>(pattern: Pattern, c: ChecksColumns): RowField<R> {
+  const label = (k: number) => pattern.creases[k].label;
+  const u = c.units ? ` ${c.units}` : '';
+  return {
+    header: {
+      // the clearance is in the file's units
+      contact: { checked: c.contact.checked, clearance: c.contact.clearance },
+      ...(c.torqueDrives.length
+        ? { torqueUnits: 'N·m', torqueModel: 'static holding torque per drive (virtual work; positive: the actuator pushes towards valley); static only: no dynamics, friction or hinge play' }
+        : {}),
+    },
+    columns: [...(c.contact.checked ? ['contact'] : []), ...c.torqueDrives.map((d) => `torque:${label(d)}`)],
+    csv: (r, n) => [...(c.contact.checked ? [r.checks ? (r.checks.contact ? '1' : '0') : ''] : []), ...c.torqueDrives.map((d) => n.csv(r.checks?.torque?.get(d)))],
+    json: (r, n) => {
+      const k = r.checks;
+      if (!k) return undefined;
+      return {
+        ...(k.contact ? { contact: true } : {}),
+        ...(k.contacts.length ? { contacts: k.contacts } : {}),
+        ...(k.torque ? { torque: Object.fromEntries([...k.torque].map(([d, v]) => [label(d), n.json(v)])) } : {}),
+      };
+    },
+    tail: (format) => {
+      const sum = c.summary();
+      if (!sum) return {};
+      const n = numberForm();
+      const e = sum.event;
+      const out: Record<string, HeaderValue | undefined> = {};
+      if (c.contact.checked) {
+        out.firstContact = format === 'json'
+          ? (e ? { drive: n.json(e.drive * DEG), panels: e.panels, point: e.point.map((x) => n.json(x)), distance: n.json(e.distance) } : null)
+          : e ? `at ${n.csv(e.drive * DEG)} deg, panels ${e.panels.join(' and ')} (clearance ${n.csv(c.contact.clearance)}${u})` : 'none';
+      }
+      if (sum.peakTorque) {
+        out.peakTorque = format === 'json'
+          ? Object.fromEntries([...sum.peakTorque].map(([d, p]) => [label(d), { torque: n.json(p.value), drive: n.json(p.at * DEG) }]))
+          : [...sum.peakTorque].map(([d, p]) => `${label(d)} ${decimalsText(p.value, 6)} N·m at ${n.csv(p.at * DEG)} deg`).join('; ') || 'none';
+      }
+      return out;
+    },
+  };
+}
+
+/** The checks' columns from a finished path's summary (the drives with a torque, in the order they were checked). */
+export function checksColumns(summary: ChecksSummary, units?: string): ChecksColumns {
+  return { contact: summary.contact, torqueDrives: summary.peakTorque ? [...summary.peakTorque.keys()] : [], ...(units ? { units } : {}), summary: () => summary };
+}
+
+// ---------------------------------------------------------------------------------------------------------
+// the header helpers of version 1, for tables that keep that form (the tolerance analysis)
+
+/** Numbers to 15 significant digits for JSON (see num). */
+export function jsonNum(x: number | undefined): number | null {
+  if (x === undefined || !Number.isFinite(x)) return null;
+  const r = +x.toPrecision(15);
+  return r === 0 ? 0 : r;
+}
+
+/** The header's first lines: what the table is and which file it comes from. */
+export function sourceMeta(format: string, header: TableHeader, version = 1) {
+  return { format, version, pattern: header.patternName, file: header.file, fileSha256: header.fileSha256 };
+}
+
+/** The header's last lines: program, date, the command that reproduces every number, and the cautions. */
+export function provenanceMeta(header: TableHeader) {
+  return { program: `hingeplan ${header.version}`, date: header.date, command: header.command, cautions: CAUTIONS };
+}
+
+/** "# key: value" lines, control characters escaped. */
+export function metadataLines(meta: Record<string, string | number | boolean | null>): string {
+  return metadataText(meta);
 }
 
 /** The branch a table followed, as its tail says it: id and name, and whether it follows the assignment. */
@@ -122,8 +221,9 @@ export class AngleTableWriter {
 
 /** The whole angle table of a finished sweep as one string (the app's export). */
 export function angleTable(pattern: Pattern, result: SweepResult, header: TableHeader, holds: Drive[], opts: AngleTableOptions): string {
+  const checks = result.checks ? [checksField<SweepSample>(pattern, checksColumns(result.checks, opts.units))] : [];
   return collect((sink) => {
-    const w = new AngleTableWriter(pattern, header, result.drive, holds, opts, sink);
+    const w = new AngleTableWriter(pattern, header, result.drive, holds, { ...opts, fields: [...(opts.fields ?? []), ...checks] }, sink);
     w.begin();
     for (const s of result.samples) w.sample(s);
     w.end(result);
@@ -134,6 +234,8 @@ export function angleTable(pattern: Pattern, result: SweepResult, header: TableH
 // deployment schedules
 
 export interface ScheduleTableOptions extends TableOptions {
+  /** the file's length units (the clearance of the contact check is in them) */
+  units?: string;
   /** the drive's start and end as given, in degrees (echoed exactly where a row is at them) */
   fromDegrees?: number;
   toDegrees?: number;
@@ -269,8 +371,9 @@ export function scheduleTable(
   opts: Omit<ScheduleTableOptions, 'format' | 'creases'> = {},
 ): string {
   const spec = result.profile?.spec ?? { kind: 'constant', from: 0, to: 0, duration: 0 };
+  const checks = result.sweep?.checks ? [checksField<ScheduleRow>(pattern, checksColumns(result.sweep.checks, opts.units))] : [];
   return collect((sink) => {
-    const w = new ScheduleTableWriter(pattern, header, drive, holds, spec, { ...opts, format, ...(creases ? { creases } : {}) }, sink);
+    const w = new ScheduleTableWriter(pattern, header, drive, holds, spec, { ...opts, format, ...(creases ? { creases } : {}), fields: [...(opts.fields ?? []), ...checks] }, sink);
     w.begin();
     for (const r of result.rows) w.row(r);
     w.end(result);
@@ -339,8 +442,10 @@ export function writeFollowTable(
   }, result.events.map((e) => `event: ${e.type} at ${n.csv(e.drive * DEG)} deg: ${e.text}`));
 }
 
-export function followTable(pattern: Pattern, result: FollowResult, header: TableHeader, holds: Drive[], format: TableFormat, opts: { rates?: boolean; creases?: number[] } = {}): string {
-  return collect((sink) => writeFollowTable(pattern, result, header, holds, { format, ...opts }, sink));
+export function followTable(pattern: Pattern, result: FollowResult, header: TableHeader, holds: Drive[], format: TableFormat, opts: { rates?: boolean; creases?: number[]; units?: string } = {}): string {
+  const { units, ...rest } = opts;
+  const checks = result.checks ? [checksField<FollowRow>(pattern, checksColumns(result.checks, units))] : [];
+  return collect((sink) => writeFollowTable(pattern, result, header, holds, { format, ...rest, fields: checks }, sink));
 }
 
 /**

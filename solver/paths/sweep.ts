@@ -22,6 +22,7 @@ import { matchesAssignment, solveDrives } from '../search/solve';
 import { wrapAngle } from '../math/rotation';
 import { maxRows, tableSizeMessage } from './request-limits';
 import { degreesText } from '../formats/numbers';
+import type { ChecksSummary, StateChecks } from '../outputs/path-physics';
 
 const DEG = 180 / Math.PI;
 /** A sample is kept when its largest vertex residual is at most this (radians); RESIDUAL_TOLERANCE is 1e-10. */
@@ -90,9 +91,11 @@ export interface SweepSample {
   /** 2-norm condition number of the free creases' Jacobian; NaN when not evaluated at this sample */
   condition: number;
   nearSingular: boolean;
+  /** what a caller's onSample hook found here (contact, torque), when it checks */
+  checks?: StateChecks;
 }
 
-export type SweepEventType = 'turning-point' | 'branch-point' | 'hinge-limit' | 'folded-flat' | 'corrector-failed';
+export type SweepEventType = 'turning-point' | 'branch-point' | 'hinge-limit' | 'folded-flat' | 'corrector-failed' | 'contact';
 
 export interface SweepEvent {
   type: SweepEventType;
@@ -104,6 +107,10 @@ export interface SweepEvent {
   angles: Float64Array;
   /** rays leaving a branch point */
   branches?: Branch[];
+  /** contact: the two panels, a point of the contact and their distance there (file units) */
+  panels?: [number, number];
+  point?: [number, number, number];
+  distance?: number;
 }
 
 export type SweepStatus = 'complete' | 'partial' | 'stopped' | 'failed';
@@ -122,13 +129,18 @@ export interface SweepResult {
   branch?: { id?: number; name: string; matchesAssignment: boolean; text: string };
   conditionEvery: number;
   stats: { steps: number; factorizations: number; propagations: number };
+  /** what the caller's per-sample checks found over the path (contact, peak torque), when it checks */
+  checks?: ChecksSummary;
 }
 
 export interface SweepHooks {
   onProgress?(done: number, total: number): void;
   shouldStop?(): boolean;
-  /** every sample as soon as it is solved, in order (k = 0, 1, …), for output written while the path is computed */
-  onSample?(sample: SweepSample, k: number): void;
+  /**
+   * every sample as soon as it is recorded, in order (k = 0, 1, …), for checks run on it and output written
+   * while the path is computed; 'stop' ends the path there (status partial)
+   */
+  onSample?(sample: SweepSample, k: number): 'stop' | void;
 }
 
 /**
@@ -206,7 +218,7 @@ export function sweep(pattern: Pattern, options: SweepOptions, hooks: SweepHooks
  * is asked before every step and stops the sweep with what it has.
  */
 export function* sweepSteps(pattern: Pattern, options: SweepOptions, hooks: SweepHooks = {}): Generator<void, SweepResult> {
-  const run = createSweep(pattern, options, hooks.onSample);
+  const run = createSweep(pattern, options, hooks);
   while (!run.finished) {
     if (hooks.shouldStop?.()) { run.stop(); break; }
     run.advance();
@@ -224,8 +236,8 @@ export function runSteps<T>(steps: Generator<void, T>): T {
   }
 }
 
-export function createSweep(pattern: Pattern, options: SweepOptions, onSample?: (s: SweepSample, k: number) => void): SweepRun {
-  return new SweepRun(pattern, options, onSample);
+export function createSweep(pattern: Pattern, options: SweepOptions, hooks: SweepHooks = {}): SweepRun {
+  return new SweepRun(pattern, options, hooks);
 }
 
 interface Point {
@@ -281,8 +293,8 @@ export class SweepRun {
   private sigmaHistory: { s: number; sigma: number }[] = [];
   private readonly rowsTmp: Float64Array;
 
-  /** `onSample` is called with every sample as it is recorded (k = 0, 1, …), the first ones during construction. */
-  constructor(readonly pattern: Pattern, readonly options: SweepOptions, private readonly onSample?: (s: SweepSample, k: number) => void) {
+  /** `hooks.onSample` is called with every sample as it is recorded (k = 0, 1, …), the first ones during construction. */
+  constructor(readonly pattern: Pattern, readonly options: SweepOptions, private readonly hooks: SweepHooks = {}) {
     const o = options;
     this.holdSet = new Set((o.holds ?? []).map((h) => h.crease));
     this.sys = buildClosureSystem(pattern);
@@ -419,6 +431,21 @@ export class SweepRun {
         this.beginAt(off, b.tangent);
         return;
       }
+      // the samples lie across the flat state from the start: the start's curve reaches flat along one of the
+      // flat state's branches, where a solve could step onto another; go on from flat along that branch
+      const s0 = r.angles[o.drive];
+      if (holdsZero && s0 !== 0 && first * s0 <= 0) {
+        const through = this.flatBranchThrough(r.angles);
+        if (through) {
+          this.travel = first !== 0 ? Math.sign(first) : Math.sign(this.targets[this.targets.length - 1] || 1);
+          const ray = Math.sign(through.tangent[o.drive]) === this.travel ? through.tangent : through.tangent.map((x) => -x);
+          const twin = Math.sign(through.tangent[o.drive]) === this.travel ? through : through.opposite ?? through;
+          this.branchInfo = { id: twin.id, name: twin.name, matchesAssignment: twin.matchesAssignment, text: `the curve through the given start state, from flat along branch ${twin.name}` };
+          this.messages.push({ severity: 'info', code: 'start-through-flat', text: `The start state's curve reaches the flat state along branch ${through.name}; the samples on the far side of flat follow ${twin.name}.` });
+          this.beginAtFlat(ray);
+          return;
+        }
+      }
       this.branchInfo = { name: 'start state', matchesAssignment: tangentMatchesAssignment(this.pattern, r.angles), text: 'the family through the given start state' };
       this.beginAt(r.angles, null);
       return;
@@ -544,6 +571,33 @@ export class SweepRun {
     }
     if (!ray && this.branchInfo) this.branchInfo.matchesAssignment = matchesAssignment(this.pattern, r.angles);
     this.beginAt(r.angles, ray);
+  }
+
+  /**
+   * The flat-state branch along which the curve through `start` reaches flat: the curve is followed to
+   * SERIES_ANCHOR from flat, where x(θ)/θ is the branch's tangent to O(θ²), and the nearest branch of the flat
+   * analysis is taken (and its opposite sense); undefined when the curve does not reach there or no branch is near.
+   */
+  private flatBranchThrough(start: Float64Array): (Branch & { opposite?: Branch }) | undefined {
+    const d = this.options.drive;
+    const s0 = start[d];
+    const near = Math.sign(s0) * SERIES_ANCHOR;
+    const approach = sweep(this.pattern, { drive: d, from: near, to: near, samples: [near], start, holds: this.options.holds, conditionEvery: 0, analyzeBranches: false, method: this.options.method });
+    const x = approach.samples[0]?.angles;
+    if (!x) return undefined;
+    let norm = 0;
+    for (const v of x) norm += v * v;
+    norm = Math.sqrt(norm);
+    const analysis = flatBranches(this.pattern, { held: this.holdSet, drive: d });
+    let best: Branch | undefined, bestDot = 0;
+    for (const b of analysis.branches) {
+      let dot = 0;
+      for (let c = 0; c < x.length; c++) dot += (b.tangent[c] * x[c]) / norm;
+      if (dot > bestDot) { bestDot = dot; best = b; }
+    }
+    if (!best || bestDot < 0.999) return undefined;
+    const opposite = analysis.branches.find((b) => b.group === best!.group && b.id !== best!.id);
+    return { ...best, ...(opposite ? { opposite } : {}) };
   }
 
   /**
@@ -722,8 +776,12 @@ export class SweepRun {
   private pushSample(s: SweepSample): void {
     if (this.keep) this.samples.push(s);
     this.lastSample = s;
-    this.onSample?.(s, this.count);
-    this.count++;
+    const k = this.count++;
+    if (this.hooks.onSample?.(s, k) === 'stop' && !this.finished) {
+      // the caller's check ends the path here (its own event says why)
+      if (this.status === 'complete') this.status = 'partial';
+      this.finished = true;
+    }
   }
 
   private end(type: SweepEventType, drive: number, text: string, angles: Float64Array, extra: Partial<SweepEvent> = {}): void {
