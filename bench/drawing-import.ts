@@ -11,7 +11,7 @@ import { miura } from '../solver/model/generators';
 import { buildPattern } from '../solver/model/pattern';
 import { writeDxf } from '../solver/formats/dxf-write';
 import { writeSvg } from '../solver/formats/svg-write';
-import { loadPatternText } from '../solver/formats/project';
+import { loadPatternText } from '../solver/formats/load';
 
 /** The sheet as a drafter might draw it: no labels, the outline's top and bottom as single long lines. */
 function longLinesDxf(n: number): string {

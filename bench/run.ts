@@ -1,165 +1,181 @@
-// Speed figures for the README (a benchmark, not a timed test): for Miura-ori sheets of 10 × 10, 20 × 20 and
-// 40 × 40 cells and a triangulated sheet of about 1,000 creases, the time for one solve, the time for a full
-// path from 1° to 179° at 1° samples (every sample exact, with residual, every hinge rate and the condition
-// number at the default spacing), and the peak memory. Each case runs in a child process of its own, so the
-// peak resident memory reported is that case's.
+// Speed figures for the README (a benchmark that prints figures, not a timed test): every command timed as a
+// person runs it — a whole, cold `node dist/cli.js …` process on a file, its output written to a file — with
+// the CPU time it used (user + sys), the wall time, its peak resident memory and the bytes it wrote, for
+// Miura-ori sheets of 6, 10, 20, 40 and 80 cells square and a triangulated sheet (degree-6 vertices, solved by
+// continuation). Start-up is measured against `node -e 0`, and what npx adds against the direct call.
 //
-//   npm run bench                 every case
-//   npm run bench -- miura10 tri  some cases
-//   npm run bench -- --all-conditions   also a path with the condition number at every sample
-import { execFileSync } from 'node:child_process';
-import { fileURLToPath } from 'node:url';
+//   npm run bench                       every case (the 80 × 80 sheet takes minutes)
+//   npm run bench -- miura6 miura20     some sheets
+//   npm run bench -- --no-80            every sheet but the largest
+//   npm run bench -- --repeat 20        repetitions of the start-up rows (default 10; min and median shown)
+//
+// CPU time and peak memory come from GNU time (/usr/bin/time, Debian package "time"); without it only the
+// wall time is shown. Each row is one process, so its peak memory is that command's own.
+import { execFileSync, spawnSync } from 'node:child_process';
+import { closeSync, existsSync, mkdtempSync, openSync, readFileSync, readSync, rmSync, statSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
 import { miura } from '../solver/model/generators';
 import { buildPattern } from '../solver/model/pattern';
-import { sweep } from '../solver/paths/sweep';
-import { buildClosureSystem } from '../solver/closure/blocks';
-import { planPropagation, propagate, propagationWork } from '../solver/paths/propagate';
-import { ClosureProblem } from '../solver/closure/newton';
-import { solveDrives } from '../solver/search/solve';
-import type { Assignment, Pattern, PatternSource } from '../solver/types';
+import { writeProject } from '../solver/formats/project';
+import type { Assignment, PatternSource } from '../solver/types';
 
-const D = Math.PI / 180;
+const CLI = 'dist/cli.js';
+const TIME = '/usr/bin/time';
+const LIMIT_S = 600;
 
-interface Case { name: string; title: string; make: () => { pattern: Pattern; drive: number; sign: number } }
+interface Measured { cpu?: number; wall: number; rssMiB?: number; bytes: number; code: number | null; out: string; err: string }
 
-function miuraCase(n: number): Case {
-  return {
-    name: `miura${n}`,
-    title: `Miura-ori ${n} × ${n} cells`,
-    make: () => {
-      const g = miura({ rows: n, cols: n, a: 40, b: 30, alphaDeg: 70 });
-      const pattern = buildPattern(g.project!.source).pattern!;
-      return { pattern, drive: pattern.labelIndex.get(g.project!.drives[0].crease)!, sign: Math.sign(g.project!.drives[0].angleDeg) };
-    },
-  };
-}
-
-/** A Miura sheet with every parallelogram split along one diagonal (a free hinge, unassigned): degree-6 vertices. */
-function triangulatedCase(): Case {
-  return {
-    name: 'tri',
-    title: 'triangulated Miura 9 × 9 (diagonals free)',
-    make: () => {
-      const rows = 9, cols = 9;
-      const g = miura({ rows, cols, a: 40, b: 30, alphaDeg: 70 });
-      const src = g.project!.source as PatternSource;
-      const ni = 2 * cols;
-      const vid = (i: number, j: number) => j * (ni + 1) + i;
-      const edges = [...src.edges];
-      const labels = [...src.labels];
-      const assignments: Assignment[] = [...src.assignments];
-      for (let j = 0; j < 2 * rows; j++) for (let i = 0; i < ni; i++) {
-        // the diagonal inside parallelogram (i, j): from (i, j) to (i + 1, j + 1) on even rows, (i + 1, j) to (i, j + 1) on odd
-        edges.push(j % 2 === 0 ? [vid(i, j), vid(i + 1, j + 1)] : [vid(i + 1, j), vid(i, j + 1)]);
-        labels.push(`d${i}_${j}`);
-        assignments.push('U');
-      }
-      const { pattern, messages } = buildPattern({ ...src, name: 'triangulated Miura', edges, labels, assignments, limits: edges.map(() => undefined), faces: undefined });
-      if (!pattern) throw new Error(messages.map((m) => m.text).join('; '));
-      return { pattern, drive: pattern.labelIndex.get(g.project!.drives[0].crease)!, sign: Math.sign(g.project!.drives[0].angleDeg) };
-    },
-  };
-}
-
-const cases: Case[] = [miuraCase(10), miuraCase(20), miuraCase(40), triangulatedCase()];
-
-function time<T>(f: () => T): { ms: number; value: T } {
-  const t0 = performance.now();
-  const value = f();
-  return { ms: performance.now() - t0, value };
-}
-
-/** One solve from nothing: the state at 60° of the drive, found from the flat state's first-order guess. */
-function oneSolve(pattern: Pattern, drive: number, sign: number): { ms: number; residual: number; how: string } {
-  const sys = buildClosureSystem(pattern);
-  const { plan } = planPropagation(pattern, sys, drive);
-  const target = sign * 60 * D;
-  if (plan) {
-    const signs = new Float64Array(pattern.creases.length).map((_, c) => (pattern.creases[c].assignment === 'V' ? 1 : pattern.creases[c].assignment === 'M' ? -1 : 0));
-    const work = propagationWork(sys, pattern.creases.length);
-    // one propagation at 60°, each vertex taking the root whose signs follow the assignment
-    const x = new Float64Array(pattern.creases.length);
-    x[drive] = target;
-    const r = time(() => propagate(sys, plan, x, { kind: 'assignment', signs, reference: new Float64Array(pattern.creases.length) }, work).maxResidual);
-    return { ms: r.ms, residual: r.value, how: 'vertex-by-vertex propagation' };
+/** One whole process: GNU time's user+sys and maximum resident set size, the wall time, what it wrote. */
+function measure(argv: string[], outFile?: string): Measured {
+  const useTime = existsSync(TIME);
+  const report = join(work, 'time.txt');
+  const t0 = process.hrtime.bigint();
+  const r = spawnSync(useTime ? TIME : argv[0], useTime ? ['-f', '%U %S %M', '-o', report, ...argv] : argv.slice(1), {
+    encoding: 'utf8', maxBuffer: 1 << 30, timeout: LIMIT_S * 1000,
+  });
+  const wall = Number(process.hrtime.bigint() - t0) / 1e9;
+  let cpu: number | undefined, rssMiB: number | undefined;
+  if (useTime && existsSync(report)) {
+    const last = readFileSync(report, 'utf8').trim().split('\n').pop()!.split(' ').map(Number);
+    if (last.length === 3 && last.every(Number.isFinite)) { cpu = last[0] + last[1]; rssMiB = last[2] / 1024; }
   }
-  const problem = new ClosureProblem(pattern, (c) => c === drive, sys);
-  const guess = new Float64Array(pattern.creases.length);
-  for (const c of pattern.creases) guess[c.index] = c.assignment === 'V' ? 60 * D : c.assignment === 'M' ? -60 * D : 0;
-  guess[drive] = target;
-  // warm the factor's ordering (built once per pattern), then time the solve itself
-  problem.normalMatrix();
-  const r = time(() => problem.solve(guess, { maxStep: 0.3, maxIterations: 80 }));
-  return { ms: r.ms, residual: r.value.maxResidual, how: `sparse Newton/LM, ${r.value.iterations} iterations` };
+  const bytes = outFile && existsSync(outFile) ? statSync(outFile).size : Buffer.byteLength(r.stdout ?? '');
+  return { cpu, wall, rssMiB, bytes, code: r.status, out: r.stdout ?? '', err: r.stderr ?? '' };
 }
 
-function runCase(name: string, allConditions: boolean): void {
-  const c = cases.find((x) => x.name === name)!;
-  const { pattern, drive, sign } = c.make();
-  const free = pattern.creases.filter((x) => x.assignment !== 'B' && x.assignment !== 'F').length;
-  const solve = oneSolve(pattern, drive, sign);
-  // first run in a fresh process (compilation included), then the same path again
-  const path = time(() => sweep(pattern, { drive, from: sign * 1 * D, to: sign * 179 * D, step: 1 * D }));
-  const warm = time(() => sweep(pattern, { drive, from: sign * 1 * D, to: sign * 179 * D, step: 1 * D }));
-  const r = path.value;
-  const worst = r.samples.reduce((m, s) => Math.max(m, s.maxResidual), 0);
-  const conds = r.samples.filter((s) => !Number.isNaN(s.condition)).length;
-  const out: Record<string, unknown> = {
-    name: c.title,
-    creases: pattern.creases.length,
-    free,
-    oneSolveMs: +solve.ms.toFixed(1),
-    oneSolveHow: solve.how,
-    oneSolveResidual: solve.residual,
-    pathMs: +path.ms.toFixed(0),
-    pathWarmMs: +warm.ms.toFixed(0),
-    samples: r.samples.length,
-    status: r.status,
-    method: r.method,
-    largestResidual: worst,
-    conditionEvery: r.conditionEvery,
-    conditionSamples: conds,
-  };
-  if (allConditions) {
-    const all = time(() => sweep(pattern, { drive, from: sign * 1 * D, to: sign * 179 * D, step: 1 * D, conditionEvery: 1 }));
-    out.pathAllConditionsMs = +all.ms.toFixed(0);
-  }
-  if (c.name === 'miura10' || c.name === 'tri') {
-    // the full report of `hingeplan solve` (every solution, classification, sensitivities) for comparison
-    const full = time(() => solveDrives(pattern, [{ crease: drive, value: sign * 60 * D }]));
-    out.solveReportMs = +full.ms.toFixed(0);
-    out.solveReportStatus = full.value.status;
-  }
-  out.peakRssMiB = +(process.resourceUsage().maxRSS / 1024).toFixed(0);
-  process.stdout.write(JSON.stringify(out) + '\n');
-}
-
+const work = mkdtempSync(join(tmpdir(), 'hingeplan-bench-'));
 const args = process.argv.slice(2);
-const caseIndex = args.indexOf('--case');
-if (caseIndex >= 0) {
-  runCase(args[caseIndex + 1], args.includes('--all-conditions'));
-} else {
-  const wanted = args.filter((a) => !a.startsWith('--'));
-  const chosen = wanted.length ? cases.filter((c) => wanted.includes(c.name)) : cases;
-  const self = fileURLToPath(import.meta.url);
-  const cpu = (await import('node:os')).cpus();
-  process.stdout.write(`hingeplan bench: Node ${process.version}, ${cpu.length} × ${cpu[0]?.model ?? 'cpu'}\n`);
-  process.stdout.write('Times in ms; a path is 1° … 179° at 1° samples, each exact (residual ≤ 1e-10 rad) with every hinge rate.\n\n');
-  const rows: Record<string, unknown>[] = [];
-  for (const c of chosen) {
-    const text = execFileSync(process.execPath, [...process.execArgv, self, '--case', c.name, ...(args.includes('--all-conditions') ? ['--all-conditions'] : [])], { encoding: 'utf8', maxBuffer: 1 << 24 });
-    const row = JSON.parse(text.trim().split('\n').pop()!);
-    rows.push(row);
-    const extra = [
-      row.pathAllConditionsMs !== undefined ? `path with condition at every sample ${row.pathAllConditionsMs} ms` : '',
-      row.solveReportMs !== undefined ? `full solve report ${row.solveReportMs} ms (${row.solveReportStatus})` : '',
-    ].filter(Boolean).join('; ');
-    process.stdout.write(
-      `${row.name}: ${row.creases} creases (${row.free} free)\n` +
-      `  one solve        ${row.oneSolveMs} ms  (${row.oneSolveHow}; residual ${Number(row.oneSolveResidual).toExponential(1)} rad)\n` +
-      `  full path        ${row.pathMs} ms first run, ${row.pathWarmMs} ms again  (${row.samples} samples, ${row.status}, ${row.method}; largest residual ${Number(row.largestResidual).toExponential(1)} rad; ${row.conditionEvery ? `condition every ${row.conditionEvery} → ${row.conditionSamples} samples` : 'condition not evaluated by default'})\n` +
-      `  peak memory      ${row.peakRssMiB} MiB resident\n` +
-      (extra ? `  also             ${extra}\n` : '') + '\n',
-    );
+const repeat = args.includes('--repeat') ? Number(args[args.indexOf('--repeat') + 1]) : 10;
+const wanted = args.filter((a, i) => !a.startsWith('--') && args[i - 1] !== '--repeat');
+
+if (!existsSync(CLI)) execFileSync(process.execPath, ['scripts/build-cli.mjs'], { stdio: 'inherit' });
+
+function fmt(x: number | undefined, digits = 2): string {
+  return x === undefined ? '–' : x.toFixed(digits);
+}
+function mib(x: number | undefined): string {
+  return x === undefined ? '–' : String(Math.round(x));
+}
+function size(bytes: number): string {
+  return bytes < 1024 ? `${bytes} B` : bytes < 1048576 ? `${(bytes / 1024).toFixed(1)} KiB` : `${(bytes / 1048576).toFixed(1)} MiB`;
+}
+const median = (xs: number[]) => { const s = [...xs].sort((a, b) => a - b); return s[Math.floor(s.length / 2)]; };
+
+// ---------------------------------------------------------------------------------------------------------
+// start-up
+
+const coupon = 'samples/hinge-coupon.hingeplan.json';
+const startRows: [string, string[]][] = [
+  ['node -e 0', [process.execPath, '-e', '0']],
+  ['node dist/cli.js --help', [process.execPath, CLI, '--help']],
+  ['node bin/hingeplan.js --help', [process.execPath, 'bin/hingeplan.js', '--help']],
+  ['npx hingeplan --help', ['npx', '--no-install', 'hingeplan', '--help']],
+  ['node dist/cli.js check (coupon, 10 creases)', [process.execPath, CLI, 'check', coupon]],
+  ['node dist/cli.js check --json (coupon)', [process.execPath, CLI, 'check', coupon, '--json']],
+];
+if (!wanted.length || wanted.includes('start')) {
+  console.log(`\nStart-up (${repeat} runs each; CPU = user + sys; min / median)\n`);
+  console.log('| command | CPU min | CPU median | wall median | peak memory |');
+  console.log('| --- | --- | --- | --- | --- |');
+  for (const [title, argv] of startRows) {
+    const runs = Array.from({ length: repeat }, () => measure(argv));
+    const cpus = runs.map((r) => r.cpu ?? r.wall);
+    console.log(`| ${title} | ${fmt(Math.min(...cpus), 3)} s | ${fmt(median(cpus), 3)} s | ${fmt(median(runs.map((r) => r.wall)), 3)} s | ${mib(Math.max(...runs.map((r) => r.rssMiB ?? 0)))} MiB |`);
   }
 }
+
+// ---------------------------------------------------------------------------------------------------------
+// the commands on sheets of growing size
+
+interface Sheet { name: string; title: string; file: string; drive: string; sign: number; creases: number }
+
+function miuraSheet(n: number): Sheet {
+  const file = join(work, `miura${n}.hingeplan.json`);
+  const g = miura({ rows: n, cols: n, a: 40, b: 30, alphaDeg: 70 });
+  writeFileSync(file, writeProject(g.project!));
+  return { name: `miura${n}`, title: `Miura ${n} × ${n}`, file, drive: g.project!.drives[0].crease, sign: Math.sign(g.project!.drives[0].angleDeg), creases: g.project!.source.edges.length };
+}
+
+/** A Miura 9 × 9 sheet with every parallelogram split along one diagonal (a free hinge, unassigned): degree-6 vertices. */
+function triangulatedSheet(): Sheet {
+  const rows = 9, cols = 9;
+  const g = miura({ rows, cols, a: 40, b: 30, alphaDeg: 70 });
+  const src = g.project!.source as PatternSource;
+  const ni = 2 * cols;
+  const vid = (i: number, j: number) => j * (ni + 1) + i;
+  const edges = [...src.edges], labels = [...src.labels];
+  const assignments: Assignment[] = [...src.assignments];
+  for (let j = 0; j < 2 * rows; j++) for (let i = 0; i < ni; i++) {
+    edges.push(j % 2 === 0 ? [vid(i, j), vid(i + 1, j + 1)] : [vid(i + 1, j), vid(i, j + 1)]);
+    labels.push(`d${i}_${j}`);
+    assignments.push('U');
+  }
+  const source = { ...src, name: 'triangulated Miura 9 × 9', edges, labels, assignments, limits: edges.map(() => undefined), faces: undefined };
+  if (!buildPattern(source).pattern) throw new Error('the triangulated sheet does not build');
+  const file = join(work, 'tri.hingeplan.json');
+  writeFileSync(file, writeProject({ ...g.project!, source }));
+  return { name: 'tri', title: 'triangulated 9 × 9', file, drive: g.project!.drives[0].crease, sign: Math.sign(g.project!.drives[0].angleDeg), creases: edges.length };
+}
+
+const sizes = [6, 10, 20, 40, ...(args.includes('--no-80') ? [] : [80])];
+const sheetNames = [...sizes.map((n) => `miura${n}`), 'tri'];
+const chosen = sheetNames.filter((n) => !wanted.length || wanted.includes(n));
+
+/** The commands timed on each sheet (deg is the drive's sign times degrees). */
+function commands(s: Sheet): { what: string; argv: (out: string) => string[]; ext: string }[] {
+  const d = (x: number) => String(s.sign * x);
+  const path = ['--drive', s.drive, '--from', d(1), '--to', d(179)];
+  return [
+    { what: 'check (text on stdout)', argv: () => ['check', s.file], ext: 'txt' },
+    { what: 'solve, the file’s drive (JSON on stdout)', argv: () => ['solve', s.file, '--json'], ext: 'json' },
+    { what: 'branches at flat (JSON on stdout)', argv: () => ['branches', s.file, '--json'], ext: 'json' },
+    { what: 'sweep 5° steps (JSON)', argv: (o) => ['sweep', s.file, '--drive', s.drive, '--from', d(5), '--to', d(175), '--step', '5', '--json', '--out', o], ext: 'json' },
+    { what: 'full path 1°→179° (JSON, rates)', argv: (o) => ['table', s.file, ...path, '--format', 'json', '--rates', '--out', o], ext: 'json' },
+    { what: 'full path 1°→179° (CSV, rates)', argv: (o) => ['table', s.file, ...path, '--rates', '--out', o], ext: 'csv' },
+    { what: 'schedule, 101 rows (CSV)', argv: (o) => ['schedule', s.file, '--drive', s.drive, '--from', d(1), '--to', d(179), '--time', '10', '--out', o], ext: 'csv' },
+  ];
+}
+
+/** The end of a file (a table's tail), however large the file. */
+function lastBytes(file: string, n: number): string {
+  const fd = openSync(file, 'r');
+  try {
+    const size = statSync(file).size;
+    const buf = Buffer.alloc(Math.min(n, size));
+    readSync(fd, buf, 0, buf.length, size - buf.length);
+    return buf.toString('utf8');
+  } finally {
+    closeSync(fd);
+  }
+}
+
+/** What a table says about itself (status, samples, largest residual), from its tail. */
+function tail(text: string): string {
+  const get = (k: string) => new RegExp(`(?:^# ${k}: |"${k}":)"?([^"\\n,]*)`, 'm').exec(text)?.[1];
+  const status = get('status');
+  if (!status) return '';
+  const res = get('largestResidual');
+  return `${status}${res ? `, largest residual ${Number(res).toExponential(1)} rad` : ''}`;
+}
+
+if (chosen.length) {
+  console.log('\nCommands on files, each a whole cold process, output written to a file (CPU = user + sys)\n');
+  console.log('| sheet | creases | command | CPU | wall | peak memory | output | result |');
+  console.log('| --- | --- | --- | --- | --- | --- | --- | --- |');
+  for (const name of chosen) {
+    const s = name === 'tri' ? triangulatedSheet() : miuraSheet(Number(name.slice(5)));
+    for (const c of commands(s)) {
+      const out = join(work, `out.${c.ext}`);
+      rmSync(out, { force: true });
+      const argv = c.argv(out);
+      const toFile = argv.includes('--out');
+      const m = measure([process.execPath, CLI, ...argv], toFile ? out : undefined);
+      const text = toFile && existsSync(out) ? lastBytes(out, 20000) : m.out.slice(-20000);
+      const result = m.code === null ? `stopped after ${LIMIT_S} s` : `exit ${m.code}${tail(text) ? `; ${tail(text)}` : ''}`;
+      console.log(`| ${s.title} | ${s.creases} | ${c.what} | ${fmt(m.cpu)} s | ${fmt(m.wall)} s | ${mib(m.rssMiB)} MiB | ${size(m.bytes)} | ${result} |`);
+      rmSync(out, { force: true });
+    }
+  }
+}
+rmSync(work, { recursive: true, force: true });

@@ -13,6 +13,8 @@ export const EXIT = {
   notDetermined: 4,
   /** stopped by Ctrl-C; what was computed so far was written (128 + SIGINT, the shell's convention) */
   interrupted: 130,
+  /** standard output was closed by its reader (`| head`): stopped quietly (128 + SIGPIPE, as the shell reports a program SIGPIPE ends) */
+  brokenPipe: 141,
 } as const;
 
 export function exitForStatus(status: SolveStatus): number {

@@ -8,9 +8,11 @@ export function finite(x: number | undefined): number | null {
   return x === undefined || !Number.isFinite(x) ? null : x;
 }
 
-export function anglesByLabel(pattern: Pattern, angles: Float64Array): Record<string, number> {
+/** Every crease's angle in degrees by label; a driven crease at its drive value as the person gave it (60, not 59.99999999999999). */
+export function anglesByLabel(pattern: Pattern, angles: Float64Array, drives: Drive[] = []): Record<string, number> {
   const out: Record<string, number> = {};
   for (const c of pattern.creases) out[c.label] = angles[c.index] * DEG;
+  for (const d of drives) if (d.degrees !== undefined && angles[d.crease] === d.value) out[pattern.creases[d.crease].label] = d.degrees;
   return out;
 }
 
@@ -21,7 +23,7 @@ export interface SolutionChecks {
   torque?: Map<number, number>;
 }
 
-export function solutionJson(pattern: Pattern, s: Solution, index: number, checks?: SolutionChecks) {
+export function solutionJson(pattern: Pattern, s: Solution, index: number, drives: Drive[] = [], checks?: SolutionChecks) {
   // per free crease (movable, not a drive): its rate against each drive, degrees per degree
   const sensitivity: Record<string, Record<string, number>> = {};
   for (const c of pattern.creases) {
@@ -32,7 +34,7 @@ export function solutionJson(pattern: Pattern, s: Solution, index: number, check
   }
   return {
     index,
-    angles: anglesByLabel(pattern, s.angles),
+    angles: anglesByLabel(pattern, s.angles, drives),
     maxResidual: s.maxResidual,
     matchesAssignment: s.matchesAssignment,
     localDof: s.localDof,
@@ -58,18 +60,18 @@ export function reportJson(pattern: Pattern, drives: Drive[], report: SolveRepor
     status: report.status,
     dof: report.dof,
     patternDof: finite(report.patternDof),
-    drives: Object.fromEntries(drives.map((d) => [pattern.creases[d.crease].label, d.value * DEG])),
-    solutions: report.solutions.map((s, i) => solutionJson(pattern, s, i + 1, checks?.solutions[i])),
+    drives: Object.fromEntries(drives.map((d) => [pattern.creases[d.crease].label, d.degrees ?? d.value * DEG])),
+    solutions: report.solutions.map((s, i) => solutionJson(pattern, s, i + 1, drives, checks?.solutions[i])),
     ...(checks ? { contact: checks.contact, ...(checks.torque ? { torqueUnits: 'N·m' } : {}) } : {}),
     families: report.families.map((f) => ({
       dof: f.dof,
-      representative: solutionJson(pattern, f.representative, 0).angles,
+      representative: solutionJson(pattern, f.representative, 0, drives).angles,
       directions: f.directions.map((d) => Object.fromEntries([...d].map(([c, v]) => [pattern.creases[c].label, v]))),
       matchesAssignment: f.matchesAssignment,
     })),
     search: report.search,
     ...(report.compromise ? { compromise: solutionJson(pattern, report.compromise, 0) } : {}),
-    ...(report.excluded?.length ? { excluded: report.excluded.map((s, i) => solutionJson(pattern, s, i + 1)) } : {}),
+    ...(report.excluded?.length ? { excluded: report.excluded.map((s, i) => solutionJson(pattern, s, i + 1, drives)) } : {}),
     ...(report.suggestedDrives ? { suggestedDrives: labels(report.suggestedDrives) } : {}),
     ...(report.conflictingDrives ? { conflictingDrives: labels(report.conflictingDrives) } : {}),
     ...(report.reachableRange ? { reachableRange: report.reachableRange.map(([a, b]) => [a * DEG, b * DEG]) } : {}),

@@ -9,7 +9,7 @@ import { isMainThread, parentPort, Worker, workerData } from 'node:worker_thread
 import { availableParallelism } from 'node:os';
 import { createRequire } from 'node:module';
 import { pathToFileURL } from 'node:url';
-import { loadPatternText } from '../solver/formats/project';
+import { loadPatternText } from '../solver/formats/load';
 import { SheetSolver, type SheetResult, type ToleranceSetup } from '../solver/outputs/tolerance/sheet';
 import { linearSteps, type LinearEstimate } from '../solver/outputs/tolerance/linear';
 import { runSteps } from '../solver/paths/sweep';

@@ -5,6 +5,7 @@ import { promises as fs } from 'node:fs';
 import path from 'node:path';
 import { randomBytes } from 'node:crypto';
 import { z } from 'zod';
+import { decodeUtf8 } from '../solver/formats/text';
 import { RecentFileSchema, RecoveryEntrySchema, ProjectSchema, type ProjectDto, type RecoveryEntry } from './contract';
 import { decodeDxf } from '../solver/formats/dxf-text';
 
@@ -24,13 +25,17 @@ export async function readTextFile(filePath: string): Promise<ReadOutcome> {
     const bytes = await fs.readFile(filePath);
     // a DXF from before AutoCAD 2007 is in a Windows code page, not UTF-8
     if (/\.dxf$/i.test(filePath)) return { ok: true, text: decodeDxf(bytes).text };
-    const text = new TextDecoder('utf-8', { fatal: true }).decode(bytes);
-    return { ok: true, text: text.charCodeAt(0) === 0xfeff ? text.slice(1) : text };
+    // the command line's reader: invalid UTF-8 refused with its line and byte, a byte-order mark dropped
+    const decoded = decodeUtf8(bytes, 'file');
+    if (decoded.text === undefined) {
+      const m = decoded.messages[0];
+      return { ok: false, code: m.code === 'not-utf8' ? 'not-text' : m.code, message: `${name}: ${m.text}` };
+    }
+    return { ok: true, text: decoded.text };
   } catch (err) {
     const code = (err as NodeJS.ErrnoException).code;
     if (code === 'ENOENT') return { ok: false, code: 'file-missing', message: `${name} no longer exists at ${path.dirname(filePath)}` };
     if (code === 'EACCES' || code === 'EPERM') return { ok: false, code: 'file-denied', message: `${name} cannot be read: permission denied` };
-    if (err instanceof TypeError) return { ok: false, code: 'not-text', message: `${name} is not UTF-8 text` };
     return { ok: false, code: 'read-failed', message: `${name} cannot be read: ${(err as Error).message}` };
   }
 }

@@ -44,7 +44,7 @@ import {
 } from './contract';
 import { JobFailure } from './worker-protocol';
 import { LruMap } from './lru';
-import { runSteps, type SweepResult } from '../solver/paths/sweep';
+import { runSteps, sampleDegrees, type SweepResult } from '../solver/paths/sweep';
 import { angleTable, scheduleTable, type TableHeader } from '../solver/outputs/table';
 import { scheduleSteps, type HingeLimits, type ScheduleOptions } from '../solver/outputs/schedule';
 import { appTableHeader, scheduleCommand, tableCommand } from './table-header';
@@ -320,6 +320,8 @@ function writeAngleTable(pattern: Pattern, path: StoredPath, options: Options, f
     format: options.format,
     rates: options.rates,
     ...(creases ? { creases } : {}),
+    // the drive column as the sweep was asked for (in degrees), as the command line writes it
+    driveDegrees: new Map((sampleDegrees(path.request.fromDeg, path.request.toDeg, path.request.stepDeg).values ?? []).map((d) => [d * RAD, d])),
     ...(project.units ? { units: project.units } : {}),
   });
   return { data: text, extension: options.format };
@@ -384,7 +386,9 @@ function writeSchedule(pattern: Pattern, path: StoredPath, options: Options, fil
   if (result.status === 'failed' && !result.rows.length) {
     throw new JobFailure(result.messages[0]?.code ?? 'schedule-failed', result.messages.map((m) => m.text).join(' ') || 'the schedule could not be solved');
   }
-  const text = scheduleTable(pattern, result, header(scheduleCommand(pattern, fileName, sweep, options)), path.driveCrease, holds, options.format, undefined, project.units);
+  const text = scheduleTable(pattern, result, header(scheduleCommand(pattern, fileName, sweep, options)), path.driveCrease, holds, options.format, undefined, {
+    fromDegrees: sweep.fromDeg, toDegrees: sweep.toDeg, ...(project.units ? { units: project.units } : {}),
+  });
   return { data: text, extension: options.format };
 }
 

@@ -7,7 +7,9 @@ export { foldedShape, applyTransform } from './outputs/shape';
 export { flatCone, straightCreaseLines, type ConeRay } from './paths/cone';
 export { ClosureProblem, RESIDUAL_TOLERANCE } from './closure/newton';
 export { analyzeState, NEAR_SINGULAR_CONDITION } from './closure/analysis';
-export { loadPatternText, drawingFormat, parseProject, writeProject, type Project, type PatternFormat } from './formats/project';
+export { drawingFormat, loadStructuredText, parseProject, writeProject, type Project, type PatternFormat, type LoadResult } from './formats/project';
+export { loadPatternText, loadPatternBytes } from './formats/load';
+export { decodeUtf8, firstInvalidUtf8 } from './formats/text';
 export { parseFold, writeFold } from './formats/fold';
 export { parseDxf } from './formats/dxf';
 export { writeDxf } from './formats/dxf-write';
@@ -20,7 +22,7 @@ export { shapeToJSON, shapeToOBJ, shapeToSTL } from './formats/shape-export';
 export { CAUTIONS } from './formats/cautions';
 export { singleVertex, miura, waterbomb, degree5 } from './model/generators';
 export {
-  sweep, sweepSteps, runSteps, createSweep, sampleValues, defaultConditionEvery, secondOrderRows,
+  sweep, sweepSteps, runSteps, createSweep, sampleValues, sampleDegrees, defaultConditionEvery, secondOrderRows,
   type SweepOptions, type SweepResult, type SweepSample, type SweepEvent, type SweepEventType, type SweepHooks, type SweepStatus, type SweepMethod,
 } from './paths/sweep';
 export { flatBranches, branchesAt, tangentMatchesAssignment, type Branch, type BranchAnalysis, type BranchGroup } from './paths/branches';
@@ -29,6 +31,7 @@ export {
   type ProfileSpec, type ProfileKind, type DriveProfile, type ScheduleOptions, type ScheduleResult, type ScheduleRow, type HingeLimits,
   type ParsedSchedule, type FollowOptions, type FollowResult, type FollowRow,
 } from './outputs/schedule';
+export { MAX_TABLE_VALUES, ROW_OVERHEAD, tableWork, maxRows } from './paths/request-limits';
 export { gridSweep, gridSteps, type GridOptions, type GridResult, type GridNode } from './outputs/grid';
 export { angleTable, scheduleTable, followTable, gridTable, type TableHeader, type TableFormat } from './outputs/table';
 export { planPropagation, propagate, degree4States } from './paths/propagate';

@@ -114,6 +114,8 @@ export interface Drive {
   crease: number;
   /** radians */
   value: number;
+  /** the value in degrees as the person or file gave it, so outputs echo 60 rather than 59.99999999999999 */
+  degrees?: number;
 }
 
 export type SolveStatus =

@@ -75,8 +75,11 @@ describe('contact on the path commands', () => {
     const r = await run(['table', stripFile(), '--drive', 'c1', '--from', '100', '--to', '115', '--hold', 'c2=120', '--areal-density', '3', '--spring', 'c2=0.5:90']);
     expect(r.code).toBe(0);
     const lines = r.out.split('\n');
-    expect(lines.find((l) => l.startsWith('# contact:'))).toMatch(/checked at every row, clearance 0 mm; first contact at 109\.1\d* deg, panels 0 and 2/);
-    expect(lines.find((l) => l.startsWith('# torque:'))).toMatch(/N·m/);
+    // what was checked before the rows, what was found after them (table format 2)
+    expect(lines.find((l) => l.startsWith('# contact:'))).toBe('# contact: {"checked":true,"clearance":0}');
+    expect(lines.find((l) => l.startsWith('# firstContact:'))).toMatch(/^# firstContact: at 109\.1\d* deg, panels 0 and 2 \(clearance 0 mm\)$/);
+    expect(lines.find((l) => l.startsWith('# torqueUnits:'))).toBe('# torqueUnits: N·m');
+    expect(lines.find((l) => l.startsWith('# peakTorque:'))).toMatch(/^# peakTorque: c1 .* N·m at \d+ deg; c2 /);
     const head = lines.find((l) => l.startsWith('drive,'))!.split(',');
     expect(head.slice(-3)).toEqual(['contact', 'torque:c1', 'torque:c2']);
     const rows = lines.filter((l) => /^\d/.test(l)).map((l) => l.split(','));

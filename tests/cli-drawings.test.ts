@@ -7,7 +7,7 @@ import { join } from 'node:path';
 import Drawing from 'dxf-writer';
 import { main } from '../cli/main';
 import { nodeIo, type Io } from '../cli/io';
-import { loadPatternText } from '../solver/formats/project';
+import { loadPatternText } from '../solver/formats/load';
 
 function run(args: string[]) {
   let out = '';
@@ -48,7 +48,7 @@ describe('hingeplan reads drawings', () => {
     expect(j.valid).toBe(true);
     expect(j.interiorVertices).toBe(1);
     expect(j.panels).toBe(4);
-    expect(j.assignments).toEqual({ B: 8, V: 1, M: 3 });
+    expect(j.assignments).toEqual({ M: 3, V: 1, U: 0, F: 0, B: 8 });
     const codes = j.messages.map((m: { code: string }) => m.code);
     for (const c of ['drawing-read', 't-junctions-split', 'duplicates-dropped', 'zero-length-dropped', 'collinear-joined', 'ends-trimmed']) expect(codes).toContain(c);
     expect(j.cleaning).toMatchObject({ segments: 11, duplicates: 1, zeroLength: 1, endsTrimmed: 2, collinearJoined: 1, crossings: 0, edges: 12, vertices: 9 });
@@ -78,7 +78,7 @@ describe('hingeplan reads drawings', () => {
     expect(plain.assignments.U).toBe(4);
     expect(plain.messages.filter((m: { code: string }) => m.code === 'layer-unassigned').map((m: { text: string }) => m.text.match(/layer "([^"]+)"/)![1]).sort()).toEqual(['A-1', 'A-2']);
     const named = JSON.parse((await run(['check', file, '--json', '--layer', 'a-1=V', '--layer=A-2=M'])).out);
-    expect(named.assignments).toEqual({ B: 4, V: 2, M: 2 });
+    expect(named.assignments).toEqual({ M: 2, V: 2, U: 0, F: 0, B: 4 });
     expect(named.messages.some((m: { code: string }) => m.code === 'layer-unassigned')).toBe(false);
   });
 
@@ -86,9 +86,9 @@ describe('hingeplan reads drawings', () => {
     const file = join(dir, 'coloured.dxf');
     writeFileSync(file, crossDxf([['first', Drawing.ACI.RED], ['second', Drawing.ACI.BLUE]]));
     const j = JSON.parse((await run(['check', file, '--json', '--stroke', 'red=V', '--stroke', '5=M'])).out);
-    expect(j.assignments).toEqual({ B: 4, V: 2, M: 2 });
+    expect(j.assignments).toEqual({ M: 2, V: 2, U: 0, F: 0, B: 4 });
     const k = JSON.parse((await run(['check', file, '--json', '--stroke', '#ff0000=V', '--stroke', 'blue=M', '--layer', 'first=M'])).out);
-    expect(k.assignments).toEqual({ B: 4, M: 4 });
+    expect(k.assignments).toEqual({ M: 4, V: 0, U: 0, F: 0, B: 4 });
   });
 
   it('--snap closes a gap the default snap leaves open', async () => {
@@ -112,7 +112,7 @@ describe('hingeplan reads drawings', () => {
     const back = join(dir, 'back.hingeplan.json');
     const r = await run(['convert', svg, back]);
     expect(r.code).toBe(0);
-    expect(r.err).toMatch(/wrote .*back\.hingeplan\.json \(project: /);
+    expect(r.err).toMatch(/wrote .*back\.hingeplan\.json: project, /);
     const original = JSON.parse(readFileSync(project, 'utf8'));
     const again = JSON.parse(readFileSync(back, 'utf8'));
     expect(again.creases.map((c: { label: string; assignment: string }) => `${c.label}:${c.assignment}`).sort()).toEqual(

@@ -140,3 +140,14 @@ describe('hingeplan command line', () => {
     expect(bad.status).toBe(2);
   });
 });
+
+describe('the command list', () => {
+  it('names each command as its module does, so the help lists what runs', async () => {
+    const { commands } = await import('../cli/commands/index');
+    for (const entry of commands) {
+      const c = await entry.load();
+      expect(c.name).toBe(entry.name);
+      expect(c.summary).toBe(entry.summary);
+    }
+  });
+});

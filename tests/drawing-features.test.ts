@@ -3,7 +3,7 @@
 // SVG units (CSS: 96 px per inch), <use>, nested <svg>, <style> classes, hidden layers. Lengths and units are
 // checked against the DXF reference's $INSUNITS codes and CSS Values and Units (common practice).
 import { describe, expect, it } from 'vitest';
-import { loadPatternText } from '../solver/formats/project';
+import { loadPatternText } from '../solver/formats/load';
 import { decodeDxf } from '../solver/formats/dxf-text';
 import type { Pattern } from '../solver/types';
 

@@ -1,7 +1,8 @@
 // What a drawing reader cannot read is refused with a stable code, a message a person understands and where
 // it is: the DXF line number, the SVG element (id, else its tag and line). Never a throw.
 import { describe, expect, it } from 'vitest';
-import { loadPatternText, type LoadResult } from '../solver/formats/project';
+import { type LoadResult } from '../solver/formats/project';
+import { loadPatternText } from '../solver/formats/load';
 import type { DrawingOptions } from '../solver/formats/drawing';
 
 /** A DXF text from groups [code, value], one per two lines, as R12 writes them. */

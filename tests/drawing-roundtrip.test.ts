@@ -4,7 +4,8 @@
 import { describe, expect, it } from 'vitest';
 import DxfParserModule from 'dxf-parser';
 import { DOMParser } from '@xmldom/xmldom';
-import { loadPatternText, type Project } from '../solver/formats/project';
+import { type Project } from '../solver/formats/project';
+import { loadPatternText } from '../solver/formats/load';
 import { writeDxf } from '../solver/formats/dxf-write';
 import { writeSvg } from '../solver/formats/svg-write';
 import { CAUTIONS } from '../solver/formats/cautions';

@@ -6,7 +6,8 @@ import { describe, expect, it } from 'vitest';
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import Drawing from 'dxf-writer';
-import { loadPatternText, type LoadResult } from '../solver/formats/project';
+import { type LoadResult } from '../solver/formats/project';
+import { loadPatternText } from '../solver/formats/load';
 import { solveDrives } from '../solver/search/solve';
 import type { Pattern } from '../solver/types';
 

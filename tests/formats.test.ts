@@ -2,18 +2,12 @@
 // line, and the folded-shape exports (OBJ, STL, JSON). Malformed files are refused with a code and the
 // place in the file, never a throw.
 import { describe, expect, it } from 'vitest';
+import { readFileSync } from 'node:fs';
 import Ajv2020Module from 'ajv/dist/2020.js';
 import { Matrix4, Vector3 } from 'three';
 import schema from '../schema/project.schema.json' with { type: 'json' };
-import {
-  jsonPath,
-  loadPatternText,
-  MAX_TEXT_BYTES,
-  MAX_VERTICES,
-  parseProject,
-  writeProject,
-  type Project,
-} from '../solver/formats/project';
+import { jsonPath, MAX_TEXT_BYTES, MAX_VERTICES, parseProject, parseProjectValue, writeProject, type Project } from '../solver/formats/project';
+import { loadPatternText } from '../solver/formats/load';
 import { parseFold, writeFold } from '../solver/formats/fold';
 import { firstJsonError, lineColumn, utf8Length } from '../solver/formats/limits';
 import { shapeToJSON, shapeToOBJ, shapeToSTL, triangulatePanel } from '../solver/formats/shape-export';
@@ -25,6 +19,7 @@ import type { Message, Pattern, Shape } from '../solver/types';
 
 const Ajv = ((Ajv2020Module as unknown as { default?: unknown }).default ?? Ajv2020Module) as new (o: object) => {
   validateSchema(s: object): boolean;
+  compile(s: object): (v: unknown) => boolean;
   errors?: unknown;
 };
 
@@ -62,6 +57,18 @@ describe('project file', () => {
   it('the schema is a valid JSON Schema draft 2020-12 document (checked by ajv, a reference validator from the npm registry)', () => {
     const ajv = new Ajv({ strict: true });
     expect(ajv.validateSchema(schema as object)).toBe(true);
+  });
+
+  it('the readers’ validator is the schema compiled by ajv, and up to date with it (scripts/build-validator.mjs)', async () => {
+    // @ts-expect-error a build script in plain JavaScript, without types
+    const { validatorSource } = await import('../scripts/build-validator.mjs');
+    const fresh = validatorSource(readFileSync('schema/project.schema.json', 'utf8'));
+    expect(readFileSync('solver/formats/project-validator.ts', 'utf8'), 'run `node scripts/build-validator.mjs` after changing the schema').toBe(fresh);
+    // and it judges as ajv's own compiled schema does, on the coupon and on a broken copy
+    const reference = new Ajv({ strict: true, allErrors: true }).compile(schema as object);
+    const good = JSON.parse(writeProject(coupon()));
+    const bad = { ...good, creases: [{ vertices: [0, -1], assignment: 'Q', extra: 1 }] };
+    for (const v of [good, bad]) expect(parseProjectValue(v).messages.length === 0).toBe(reference(v));
   });
 
   it('round-trips a project exactly: coordinates, assignments, labels, limits, faces, base panel, drives, units, notes, start state', () => {
@@ -187,7 +194,7 @@ describe('project file', () => {
     expect(ok.format).toBe('project');
     expect(ok.messages).toEqual([]);
     expect(ok.pattern!.interiorVertices.length).toBe(1);
-    expect(ok.drives).toEqual([{ crease: 0, value: Math.PI / 4 }]);
+    expect(ok.drives).toEqual([{ crease: 0, value: Math.PI / 4, degrees: 45 }]);
 
     const crossing = loadPatternText(
       editedProject((o) => {
@@ -382,8 +389,8 @@ describe('drives', () => {
     ]);
     expect(r.messages).toEqual([]);
     expect(r.drives).toEqual([
-      { crease: 1, value: Math.PI / 6 },
-      { crease: 0, value: -Math.PI },
+      { crease: 1, value: Math.PI / 6, degrees: 30 },
+      { crease: 0, value: -Math.PI, degrees: -180 },
     ]);
   });
 
@@ -397,7 +404,7 @@ describe('drives', () => {
       { crease: 'c3', angleDeg: -10, field: '--set' },
       { crease: '3', angleDeg: -20 },
     ]);
-    expect(r.drives).toEqual([{ crease: 3, value: (-10 * Math.PI) / 180 }]);
+    expect(r.drives).toEqual([{ crease: 3, value: (-10 * Math.PI) / 180, degrees: -10 }]);
     expect(r.messages.map((m) => m.code)).toEqual(['unknown-crease', 'drive-on-boundary', 'drive-on-flat', 'drive-out-of-range', 'drive-out-of-range', 'duplicate-drive']);
     expect(r.messages[0].text).toContain('c0, c1, c3');
     expect(r.messages[0].text).not.toContain('c2'); // a flat crease cannot be driven, so it is not offered

@@ -7,7 +7,7 @@ import { join } from 'node:path';
 import { Quaternion, Vector3 } from 'three';
 import { degree4Assignment, degree5, isKawasaki, miura, singleVertex, waterbomb } from '../solver/model/generators';
 import { buildPattern } from '../solver/model/pattern';
-import { loadPatternText } from '../solver/formats/project';
+import { loadPatternText } from '../solver/formats/load';
 import { CAUTIONS } from '../solver/formats/cautions';
 import { sampleFiles, SAMPLES_DIR } from '../scripts/make-samples';
 import type { InteriorVertex, Pattern } from '../solver/types';

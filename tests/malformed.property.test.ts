@@ -1,10 +1,15 @@
 // Property tests (fast-check): whatever text arrives, the readers answer with a pattern or with error
-// messages, never a throw; valid random patterns build with the planar facts they must satisfy.
+// messages, never a throw; valid random patterns build with the planar facts they must satisfy; whatever
+// option values arrive, the command line answers with a result or a usage error naming the option.
 import { describe, expect, it } from 'vitest';
 import fc from 'fast-check';
-import { readFileSync } from 'node:fs';
+import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { loadPatternText, parseProject, writeProject, type LoadResult, type Project } from '../solver/formats/project';
+import { main } from '../cli/main';
+import { nodeIo } from '../cli/io';
+import { parseProject, writeProject, type LoadResult, type Project } from '../solver/formats/project';
+import { loadPatternText } from '../solver/formats/load';
 import { parseFold, writeFold } from '../solver/formats/fold';
 import { firstJsonError } from '../solver/formats/limits';
 import { buildPattern } from '../solver/model/pattern';
@@ -348,4 +353,71 @@ describe('random valid patterns build with the facts of plane geometry', () => {
       { numRuns: 200 },
     );
   });
+});
+
+// ---------------------------------------------------------------------------------------------------
+// Random option values on the command line (in-process, on a small pattern): every value is answered with a
+// result or with exit status 2 and a message naming the option, never a crash, a trace or NaN, and never an
+// unbounded run (oversized requests are refused before any work; a run still going after 300 ms is stopped
+// by a simulated Ctrl-C, which must then end in exit status 130).
+
+const optionValue = fc.oneof(
+  fc.constantFrom('0', '-0', '1', '-1', '0.5', '1e-300', '1e-12', '1e-9', '1e9', '1e300', '1e999', '-1e999', 'NaN', 'Infinity', '', ' ', 'abc', '0x10', '1,5', '5°', '--', '=', '17', '18', '2'),
+  fc.double({ noNaN: false }).map(String),
+  fc.integer({ min: -10, max: 2_000_000_000 }).map(String),
+  fc.string({ maxLength: 6 }),
+);
+
+describe('random option values: exit 2 naming the option, or a result; never a crash', () => {
+  const dir = mkdtempSync(join(tmpdir(), 'hingeplan-fuzz-'));
+  const coupon = join(dir, 'coupon.hingeplan.json');
+  writeFileSync(coupon, readFileSync(join(SAMPLES_DIR, 'hinge-coupon.hingeplan.json')));
+  const rig = join(dir, 'rig.hingeplan.json');
+  writeFileSync(rig, readFileSync(join(SAMPLES_DIR, 'two-motor-rig.hingeplan.json')));
+
+  /** One command line with one option set to a random value (the others sensible). */
+  const commandLines = fc.oneof(
+    fc.record({ option: fc.constantFrom('--time', '--dt', '--rows', '--accel', '--accel-time', '--jerk-time', '--max-rate', '--max-accel', '--from', '--to', '--digits'), value: optionValue, profile: fc.constantFrom('constant', 'trapezoid', 's-curve') })
+      .map(({ option, value, profile }) => {
+        const base: Record<string, string> = { '--drive': 'c0', '--from': '0', '--to': '90', '--time': '4', '--profile': profile, '--rows': '5' };
+        if (option === '--dt') delete base['--rows'];
+        base[option] = value;
+        return { option, args: ['schedule', coupon, ...Object.entries(base).flat()] };
+      }),
+    fc.record({ option: fc.constantFrom('--step', '--from', '--to', '--digits', '--condition-every', '--branch', '--solution'), value: optionValue, command: fc.constantFrom('sweep', 'table') })
+      .map(({ option, value, command }) => {
+        const base: Record<string, string> = { '--drive': 'c0', '--from': '0', '--to': '90', '--step': '10' };
+        base[option] = value;
+        return { option, args: [command, coupon, ...Object.entries(base).flat(), ...(command === 'sweep' ? ['--csv'] : [])] };
+      }),
+    fc.record({ a: optionValue, b: optionValue, c: optionValue })
+      .map(({ a, b, c }) => ({ option: '--range', args: ['grid', rig, '--range', `c0=${a}:${b}:${c}`, '--range', 'c2=-30:0:15'] })),
+    fc.record({ value: optionValue })
+      .map(({ value }) => ({ option: '--set', args: ['solve', coupon, '--set', `c0=${value}`, '--json'] })),
+  );
+
+  it('schedule, sweep, table, grid and solve', async () => {
+    await fc.assert(
+      fc.asyncProperty(commandLines, async ({ option, args }) => {
+        let out = '', err = '';
+        let handler: (() => void) | undefined;
+        const timer = setTimeout(() => handler?.(), 300);
+        const code = await main(args, {
+          ...nodeIo(),
+          stdout: (t) => { out += t; },
+          stderr: (t) => { err += t; },
+          progress: () => {},
+          stderrIsTTY: false,
+          onInterrupt: (h) => { handler = h; return () => {}; },
+          interrupts: () => 0,
+        });
+        clearTimeout(timer);
+        expect([0, 2, 3, 4, 130], `${args.join(' ')}\n${err}`).toContain(code);
+        expect(err, args.join(' ')).not.toMatch(/internal error|\n\s+at |NaN°/);
+        if (code === 2) expect(err, args.join(' ')).toContain(option === '--set' ? 'c0' : option.replace(/^--/, ''));
+        if (code === 0 && !args.includes('solve')) expect(out.length).toBeGreaterThan(0);
+      }),
+      { numRuns: 300 },
+    );
+  }, 120_000);
 });

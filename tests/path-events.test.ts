@@ -153,7 +153,7 @@ describe('folded flat', () => {
 
 describe('a path started from a folded state whose samples lie across flat', () => {
   it('reaches flat along the start state\'s own branch and goes on along it: the same samples as the path from flat, through the start', async () => {
-    const { loadPatternText } = await import('../solver/formats/project');
+    const { loadPatternText } = await import('../solver/formats/load');
     const { solveDrives } = await import('../solver/search/solve');
     const { readFileSync } = await import('node:fs');
     const loaded = loadPatternText(readFileSync('samples/sunshade-panel.hingeplan.json', 'utf8'), 'sunshade-panel.hingeplan.json');

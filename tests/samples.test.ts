@@ -1,7 +1,7 @@
 // Every built-in sample, in both formats, loads and solves with the drives it carries.
 import { describe, expect, it } from 'vitest';
 import { readFileSync } from 'node:fs';
-import { loadPatternText } from '../solver/formats/project';
+import { loadPatternText } from '../solver/formats/load';
 import { solveDrives } from '../solver/search/solve';
 import { foldedShape } from '../solver/outputs/shape';
 import { DRAWN_SAMPLES } from '../scripts/make-samples';

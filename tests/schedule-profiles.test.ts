@@ -62,7 +62,7 @@ describe('trapezoidal velocity profile: the closed form (common practice for poi
     expect(driveProfile({ kind: 'trapezoid', from: 0, to: 1, duration: 2, accelTime: 1.5 }).message!.where!.field).toBe('accelTime');
     expect(driveProfile({ kind: 's-curve', from: 0, to: 1, duration: 2, accelTime: 0.5, jerkTime: 0.4 }).message!.where!.field).toBe('jerkTime');
     expect(driveProfile({ kind: 'constant', from: 0, to: 1, duration: 0 }).message!.where!.field).toBe('duration');
-    expect(timeRows(2, 0.3)).toEqual([0, 0.3, 0.6, 0.8999999999999999, 1.2, 1.5, 1.7999999999999998, 2]);
+    expect(timeRows(2, 0.3).times).toEqual([0, 0.3, 0.6, 0.8999999999999999, 1.2, 1.5, 1.7999999999999998, 2]);
   });
 });
 

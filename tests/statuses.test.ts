@@ -94,7 +94,7 @@ describe('specification statuses', () => {
 
 describe('a continuum is one family, not its members', () => {
   it('the two-motor rig (a degree-5 vertex) with one drive: no solutions, one one-DOF family with its free direction', async () => {
-    const { loadPatternText } = await import('../solver/formats/project');
+    const { loadPatternText } = await import('../solver/formats/load');
     const { readFileSync } = await import('node:fs');
     const loaded = loadPatternText(readFileSync('samples/two-motor-rig.hingeplan.json', 'utf8'), 'two-motor-rig.hingeplan.json');
     const p = loaded.pattern!;
@@ -115,7 +115,7 @@ describe('a continuum is one family, not its members', () => {
 
 describe('the sparse null space (used above the dense size) agrees with the dense one', () => {
   it('at a state of the two-motor rig family: the same one-dimensional null space as pivoted QR', async () => {
-    const { loadPatternText } = await import('../solver/formats/project');
+    const { loadPatternText } = await import('../solver/formats/load');
     const { ClosureProblem } = await import('../solver/closure/newton');
     const { analyzeState } = await import('../solver/closure/analysis');
     const { familyDirections } = await import('../solver/search/classify');

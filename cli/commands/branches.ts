@@ -7,11 +7,12 @@ import { messageJson } from '../report-json';
 import { textTable } from '../table-text';
 import { branchesAt, flatBranches, type BranchAnalysis } from '../../solver/paths/branches';
 import { solveDrives } from '../../solver/search/solve';
-import type { Pattern } from '../../solver/types';
+import type { Drive, Pattern } from '../../solver/types';
+import { writeWhole, writeWholeJson } from '../output';
 import { CAUTIONS } from '../../solver/formats/cautions';
 import { creaseOption, holdsOption, joinNegativeNumbers } from './path-common';
 
-function analysisJson(pattern: Pattern, a: BranchAnalysis, at: Float64Array | undefined) {
+function analysisJson(pattern: Pattern, a: BranchAnalysis, at: Float64Array | undefined, given: Drive[]) {
   const label = (c: number) => pattern.creases[c].label;
   const listed = pattern.creases.filter((c) => c.assignment !== 'B').map((c) => c.index);
   const DEG = 180 / Math.PI;
@@ -19,7 +20,7 @@ function analysisJson(pattern: Pattern, a: BranchAnalysis, at: Float64Array | un
     state: a.state,
     nullity: Number.isFinite(a.nullity) ? a.nullity : null,
     partial: a.partial,
-    ...(at ? { angles: Object.fromEntries(listed.map((c) => [label(c), at[c] * DEG])) } : {}),
+    ...(at ? { angles: Object.fromEntries(listed.map((c) => [label(c), given.find((d) => d.crease === c && d.value === at[c])?.degrees ?? at[c] * DEG])) } : {}),
     branches: a.branches.map((b) => ({
       id: b.id,
       name: b.name,
@@ -41,7 +42,7 @@ export const branchesCommand: Command = {
   name: 'branches',
   summary: 'the directions a pattern can fold from the flat state (or from any state): rays, ratios, names',
   help: `Usage: hingeplan branches <file> [--at <crease>=<deg> …] [--solution <k>] [--hold <crease>=<deg> …]
-                          [--drive <crease>] [--json]
+                          [--drive <crease>] [--json [--pretty]]
 
 Lists the rays that leave a state: the tangent-cone analysis at the flat state (first order Σρu = 0 at every
 vertex, second order Σρρ sin = 0), or at a folded state from the real Jacobian and the second order of the
@@ -61,22 +62,24 @@ mountain/valley assignment, and the id for \`hingeplan sweep --branch\`.
   --hold <crease>=<deg>  creases held in the analysis (they do not move along any ray; use the same holds as
                          the sweep that will follow a ray). At the flat state holds must be 0.
   --drive <crease>       ratios relative to this crease (ids and names do not change with it).
+  --pretty               indent the JSON.
   --json                 {"state", "nullity", "partial", "angles"?, "branches": [{"id": <int>, "name": <string>,
                          "group", "kind": "curve"|"line"|"direction", "matchesAssignment": <bool>, "tangent":
                          {"<crease>": <num>}, "reference", "ratios": {"<crease>": <num>}, "line"?, "verified"}],
                          "groups": [{"name", "kind", "branches": [ids], "text"}], "messages"}
 Exit status 0; 2 invalid input; 3 the --at values have no state.`,
-  run(argv, io) {
+  async run(argv, io) {
     const spec: OptionSpec = {
       at: { type: 'string', multiple: true },
       solution: { type: 'string' },
       hold: { type: 'string', multiple: true },
       drive: { type: 'string' },
       json: { type: 'boolean' },
+      pretty: { type: 'boolean' },
     };
     const { values, positionals } = parseCommandArgs(joinNegativeNumbers(argv, spec), spec);
     const file = positionals[0];
-    const loaded = loadFile(io, file, 'branches');
+    const loaded = await loadFile(io, file, 'branches');
     if (!loaded) return EXIT.usage;
     const { pattern } = loaded;
     const holds = holdsOption(io, loaded, values.hold as string[] | undefined, file!);
@@ -85,11 +88,13 @@ Exit status 0; 2 invalid input; 3 the --at values have no state.`,
     const held = holds.map((h) => h.crease);
     let analysis: BranchAnalysis;
     let at: Float64Array | undefined;
+    let given: Drive[] = [];
     const ats = values.at as string[] | undefined;
     if (ats && ats.length) {
       const drives = drivesFor(io, loaded, ats.map((a) => a), file!);
       if (!drives) return EXIT.usage;
       const all = [...drives, ...holds.filter((h) => !drives.some((d) => d.crease === h.crease))];
+      given = all;
       const report = solveDrives(pattern, all, { detail: 0, conditions: 0 });
       // isolated solutions, else a point of the family the values leave
       const states = report.solutions.length ? report.solutions : report.families.map((f) => f.representative);
@@ -109,11 +114,13 @@ Exit status 0; 2 invalid input; 3 the --at values have no state.`,
       analysis = flatBranches(pattern, { held, drive });
     }
     if (values.json) {
-      io.stdout(JSON.stringify(analysisJson(pattern, analysis, at), null, 2) + '\n');
+      writeWholeJson(io, 'branches', analysisJson(pattern, analysis, at, given), !!values.pretty);
       return EXIT.ok;
     }
+    if (values.pretty) throw new UsageError('--pretty is for --json');
     const out: string[] = [];
-    out.push(`${pattern.name}: ${at ? 'state at ' + (ats ?? []).join(', ') : 'flat state'}: ${analysis.state}, ${analysis.branches.length} rays${analysis.partial ? ' (partial analysis)' : ''}`);
+    const kind = analysis.state === 'flat' ? '' : ` (${analysis.state})`;
+    out.push(`${pattern.name}: ${analysis.branches.length} rays leave the ${at ? `state at ${(ats ?? []).join(', ')}` : 'flat state'}${kind}${analysis.partial ? '; partial analysis' : ''}`);
     for (const m of analysis.messages) out.push(`  ${m.severity}: ${m.text}`);
     if (analysis.branches.length) {
       out.push('');
@@ -127,7 +134,7 @@ Exit status 0; 2 invalid input; 3 the --at values have no state.`,
       for (const g of analysis.groups) out.push(`${g.name}: ${g.text} (ids ${g.branches.join(', ')})`);
     }
     out.push(CAUTIONS);
-    io.stdout(out.join('\n') + '\n');
+    writeWhole(io, 'branches', out.join('\n') + '\n', undefined, [], 'text');
     return EXIT.ok;
   },
 };

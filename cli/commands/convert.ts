@@ -2,6 +2,7 @@ import type { Command } from '../command';
 import { parseCommandArgs, UsageError } from '../args';
 import { formatMessage, loadFile } from '../load';
 import { EXIT } from '../exit-codes';
+import { writeWhole } from '../output';
 import { writeProject } from '../../solver/formats/project';
 import { writeFold } from '../../solver/formats/fold';
 import { writeDxf } from '../../solver/formats/dxf-write';
@@ -30,14 +31,15 @@ fields this program does not use are carried over from a FOLD input), .json for 
 outline as one closed polyline; crease labels as TEXT on the layer "labels"; $INSUNITS from the units),
 .svg for SVG (a group per assignment with the same names, width and height in the units, y up on paper).
 DXF and SVG carry the flat pattern only: drives, hinge limits and fold angles stay in the project file.
-The output is written to a temporary file and renamed, so an existing <out> is never left half-written.`,
-  run(argv, io) {
+The output is written to a temporary file beside <out>, flushed and renamed, so an existing <out> is never
+left half-written; <out> may not be <in> (see \`hingeplan table --help\` for the rules of --out).`,
+  async run(argv, io) {
     const { positionals } = parseCommandArgs(argv, {});
     const [input, output] = positionals;
     if (!input || !output) throw new UsageError('two files are needed: <in> <out>');
     const kind = kindOf(output);
     if (!kind) throw new UsageError(`cannot tell the output format from "${output}": use .json, .fold, .dxf or .svg`);
-    const loaded = loadFile(io, input, 'convert');
+    const loaded = await loadFile(io, input, 'convert');
     if (!loaded) return EXIT.usage;
     const { project, pattern } = loaded;
     const text =
@@ -45,13 +47,8 @@ The output is written to a temporary file and renamed, so an existing <out> is n
       : kind === 'dxf' ? writeDxf(project)
       : kind === 'svg' ? writeSvg(project)
       : writeProject(project);
-    const w = io.writeFile(output, text);
-    if (w.error) {
-      io.stderr(`hingeplan convert: ${w.error}\n`);
-      return EXIT.usage;
-    }
     for (const m of loaded.messages) if (m.severity !== 'error') io.stderr(`${input}: ${formatMessage(m)}\n`);
-    io.stderr(`wrote ${output} (${KIND_NAMES[kind]}: ${pattern.vertices.length} vertices, ${pattern.creases.length} creases)\n`);
-    return EXIT.ok;
+    const note = `${KIND_NAMES[kind]}, ${pattern.vertices.length} vertices, ${pattern.creases.length} creases`;
+    return writeWhole(io, 'convert', text, output, [input], kind === 'fold' || kind === 'project' ? 'json' : 'file', note) ? EXIT.ok : EXIT.usage;
   },
 };

@@ -1,6 +1,7 @@
 import type { Command } from '../command';
 import { intOption, numberOption, parseCommandArgs, UsageError } from '../args';
 import { EXIT } from '../exit-codes';
+import { writeWhole } from '../output';
 import { printMessages } from '../load';
 import { degree5, miura, singleVertex, waterbomb, type GeneratorResult } from '../../solver/model/generators';
 import { writeProject } from '../../solver/formats/project';
@@ -31,8 +32,9 @@ Kinds:
   degree5    a generic degree-5 vertex with two suggested drives: [--sectors <five angles>] [--radius <len>]
 
 The file holds the pattern and the generator's suggested drives. --out <file> writes it (a .fold ending
-writes FOLD, anything else our project file); without --out the project file goes to stdout. --units names
-the unit of the lengths given (free text, e.g. mm); it is written into the file.`,
+writes FOLD, anything else our project file; written atomically, see \`hingeplan table --help\`); without
+--out the project file goes to stdout. --units names the unit of the lengths given (free text, e.g. mm); it
+is written into the file.`,
   run(argv, io) {
     const { values, positionals } = parseCommandArgs(argv, {
       sectors: { type: 'string' }, assign: { type: 'string' }, radius: { type: 'string' },
@@ -84,13 +86,7 @@ the unit of the lengths given (free text, e.g. mm); it is written into the file.
     }
     const out = values.out as string | undefined;
     const text = out && /\.fold$/i.test(out) ? writeFold(result.project) : writeProject(result.project);
-    if (out) {
-      const w = io.writeFile(out, text);
-      if (w.error) { io.stderr(`hingeplan new: ${w.error}\n`); return EXIT.usage; }
-      io.stderr(`wrote ${out}: ${built.pattern.vertices.length} vertices, ${built.pattern.creases.length} creases, ${built.pattern.panels.length} panels\n`);
-    } else {
-      io.stdout(text);
-    }
-    return EXIT.ok;
+    const note = `${built.pattern.vertices.length} vertices, ${built.pattern.creases.length} creases, ${built.pattern.panels.length} panels`;
+    return writeWhole(io, 'new', text, out, [], 'json', note) ? EXIT.ok : EXIT.usage;
   },
 };

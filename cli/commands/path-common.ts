@@ -1,13 +1,15 @@
 // What the path commands (sweep, table, schedule, follow, grid, branches) share: reading drives, holds and
 // start states, the sample list in degrees, running resumable solver steps while staying responsive to
-// Ctrl-C (with a progress line), the table header, and writing the output atomically.
+// Ctrl-C (with a progress line), the table header, the solver's refusals as option errors.
 import type { Drive, Message, Pattern } from '../../solver/types';
 import { findCrease } from '../../solver/model/pattern';
 import { parseSetOption, resolveDrives } from '../../solver/model/drives';
-import { sha256 } from '../../solver/outputs/sha256';
-import type { TableHeader } from '../../solver/outputs/table';
+import { sampleDegrees as coreSampleDegrees } from '../../solver/paths/sweep';
+import type { TableHeader, TableInput } from '../../solver/outputs/table';
+import { readJsonText } from '../../solver/formats/limits';
+import { decodeUtf8 } from '../../solver/formats/text';
 import { numberOption, UsageError, type OptionSpec } from '../args';
-import { printMessages, type Loaded } from '../load';
+import { hashBytes, printMessages, type Loaded } from '../load';
 import type { Io } from '../io';
 import { VERSION } from '../version';
 import { EXIT } from '../exit-codes';
@@ -19,6 +21,12 @@ const RAD = Math.PI / 180;
 
 /** Exit status when Ctrl-C stopped the work (128 + SIGINT, common practice for shells); the partial output is written. */
 export const EXIT_INTERRUPTED = EXIT.interrupted;
+
+/** Options every table command takes: --pretty (indented JSON) and --digits (fewer significant digits). */
+export const outputOptions: OptionSpec = {
+  pretty: { type: 'boolean' },
+  digits: { type: 'string' },
+};
 
 export const pathOptions: OptionSpec = {
   drive: { type: 'string' },
@@ -33,7 +41,18 @@ export const pathOptions: OptionSpec = {
   'condition-every': { type: 'string' },
   out: { type: 'string' },
   progress: { type: 'boolean' },
+  ...outputOptions,
 };
+
+export const OUTPUT_OPTIONS_HELP = `  --pretty               indent JSON for people (default: compact, one row per line).
+  --digits <n>           write every number with n significant digits (1 … 17; default: full precision, the
+                         shortest text that reads back to the same double).`;
+
+export const OUT_HELP = `  --out <file>           write to a file instead of stdout: a temporary file beside it, flushed and renamed
+                         into place, so an interrupt or failure leaves the old file or the complete new one
+                         (the file's permissions are kept; a symbolic link is followed; a FIFO or device such
+                         as /dev/null is written to directly; the input files and read-only files are refused).
+                         "wrote <file>" goes to stderr when it is complete.`;
 
 export const PATH_OPTIONS_HELP = `  --hold <crease>=<deg>  hold another crease at a value; repeat for more (a pattern with more than one
                          degree of freedom needs holds to make the path unique).
@@ -45,7 +64,8 @@ export const PATH_OPTIONS_HELP = `  --hold <crease>=<deg>  hold another crease a
                          at the first drive value to start from (1-based); default: the first that matches
                          the assignment.
   --start <file>         start from a solved state: a JSON file with "angles": {"<crease>": <deg>, …} (e.g.
-                         a solution of \`solve --json\`, a sample of \`sweep --json\`, or an event's state).
+                         a solution of \`solve --json\`, or a state written as such); the table header records
+                         the file and the SHA-256 of its bytes.
   --method auto|propagate|continue
                          auto (default): exact vertex-by-vertex propagation for meshes of degree-4
                          vertices with nothing held, else pseudo-arclength continuation.
@@ -54,8 +74,26 @@ export const PATH_OPTIONS_HELP = `  --hold <crease>=<deg>  hold another crease a
                          other samples show it as empty (CSV) or null. Branch points are detected where it is
                          evaluated; near-singular flags come from every vertex's own pivots at every sample.
   --progress             show a progress line on stderr even when it is not a terminal.
-  --out <file>           write to a file (atomically) instead of stdout. Ctrl-C stops the computation and
-                         writes what was computed so far, complete and parseable (exit status 130).`;
+${OUTPUT_OPTIONS_HELP}
+${OUT_HELP}
+Ctrl-C stops the computation and writes what was computed, complete and parseable (exit status 130).
+A table may hold at most 20 million hinge values (rows × (creases + 32)); larger requests are refused
+before any work (exit status 2, with the largest step that fits).`;
+
+/** The option a field of a solver message comes from. */
+const OPTION_OF: Record<string, string> = {
+  duration: '--time', accelTime: '--accel-time', acceleration: '--accel', jerkTime: '--jerk-time', dt: '--dt', rows: '--rows',
+  step: '--step', samples: '--step', from: '--from', to: '--to', range: '--range', schedule: '--schedule',
+};
+
+/** Codes of solver messages that refuse the request itself (exit status 2, not a result). */
+export const REQUEST_CODES = new Set(['invalid-sweep', 'too-many-samples', 'too-many-rows', 'too-many-nodes', 'bad-profile', 'bad-step', 'drive-out-of-range', 'empty-range']);
+
+/** A solver refusal of the request, named by the option it comes from. */
+export function requestError(m: Message, option?: string): UsageError {
+  const name = option ?? (m.where?.field ? OPTION_OF[m.where.field] : undefined);
+  return new UsageError(`${name ? `${name}: ` : ''}${m.text}`);
+}
 
 /** A crease reference given for an option, as an index, with a message naming the option. */
 export function creaseOption(pattern: Pattern, ref: string | undefined, option: string): number {
@@ -67,7 +105,7 @@ export function creaseOption(pattern: Pattern, ref: string | undefined, option: 
   return c;
 }
 
-/** --hold options as drives (radians). Prints the messages and returns undefined when one is refused. */
+/** --hold options as drives (radians, with the degrees as given). Prints the messages and returns undefined when one is refused. */
 export function holdsOption(io: Io, loaded: Loaded, holds: string[] | undefined, path: string): Drive[] | undefined {
   const specs = [];
   const messages: Message[] = [];
@@ -85,21 +123,33 @@ export function holdsOption(io: Io, loaded: Loaded, holds: string[] | undefined,
   return resolved.drives;
 }
 
-/** A start state from a JSON file with an "angles" map (degrees), or a solve report (its first solution). */
-export function startOption(io: Io, pattern: Pattern, file: string | undefined): Float64Array | undefined | null {
-  if (file === undefined) return undefined;
+/** A JSON input (a start state): its bytes checked as UTF-8 and JSON by the core readers. */
+function readJsonInput(io: Io, file: string, what: string): { value?: unknown; input?: TableInput; ok: boolean } {
   const read = io.readFile(file);
-  if (read.error !== undefined || read.text === undefined) { io.stderr(`--start: ${read.error}\n`); return null; }
-  let value: unknown;
-  try { value = JSON.parse(read.text); } catch { io.stderr(`${file}: error[start-not-json]: the start state file is not JSON\n`); return null; }
+  if (read.bytes === undefined) { io.stderr(`--start: ${read.error}\n`); return { ok: false }; }
+  const decoded = decodeUtf8(read.bytes, what);
+  const parsed = decoded.text === undefined ? { messages: decoded.messages } : readJsonText(decoded.text, what);
+  if (parsed.value === undefined) { printMessages(io, parsed.messages, `${file}: `); return { ok: false }; }
+  return { value: parsed.value, input: { role: 'start', file, sha256: hashBytes(read.bytes) }, ok: true };
+}
+
+/**
+ * A start state from a JSON file with an "angles" map (degrees), or a solve report (its first solution);
+ * with the file and the hash of its bytes for the table header. undefined when none is given, null when it
+ * was refused (printed).
+ */
+export function startOption(io: Io, pattern: Pattern, file: string | undefined): { angles: Float64Array; input: TableInput } | undefined | null {
+  if (file === undefined) return undefined;
+  const r = readJsonInput(io, file, 'start state file');
+  if (!r.ok) return null;
   const pick = (v: unknown): Record<string, unknown> | undefined => {
     if (!v || typeof v !== 'object') return undefined;
     const o = v as Record<string, unknown>;
-    if (o.angles && typeof o.angles === 'object') return o.angles as Record<string, unknown>;
+    if (o.angles && typeof o.angles === 'object' && !Array.isArray(o.angles)) return o.angles as Record<string, unknown>;
     if (Array.isArray(o.solutions) && o.solutions.length) return pick(o.solutions[0]);
     return undefined;
   };
-  const angles = pick(value);
+  const angles = pick(r.value);
   if (!angles) { io.stderr(`${file}: error[start-no-angles]: expected an object with "angles": {"<crease>": <degrees>, …}\n`); return null; }
   const x = new Float64Array(pattern.creases.length);
   for (const [label, deg] of Object.entries(angles)) {
@@ -108,38 +158,42 @@ export function startOption(io: Io, pattern: Pattern, file: string | undefined):
     if (typeof deg !== 'number' || !Number.isFinite(deg) || Math.abs(deg) > 180) { io.stderr(`${file}: error[bad-angle]: angle of "${label}" must be a number of degrees in −180 … 180\n`); return null; }
     x[c] = deg * RAD;
   }
-  return x;
+  return { angles: x, input: r.input! };
 }
 
 /**
  * Drive values from → to every step, computed in degrees (so 1°, 2°, … are exactly those decimal values) and
- * converted once each; the end is included also when the step does not divide the span.
+ * converted once each; the end is included also when the step does not divide the span. Refused (a usage
+ * error naming the option) when the table over `creases` creases would pass the request limits.
  */
-export function sampleDegrees(from: number, to: number, step: number): number[] {
-  if (!(step > 0)) throw new UsageError(`--step must be a positive number of degrees, got ${step}`);
-  for (const [v, n] of [[from, 'from'], [to, 'to']] as const) if (Math.abs(v) > 180) throw new UsageError(`--${n} must be within −180 … 180 degrees, got ${v}`);
-  const dir = to >= from ? 1 : -1;
-  const count = Math.floor(Math.abs(to - from) / step + 1e-9);
-  if (count > 100_000) throw new UsageError(`--step ${step} gives ${count + 1} samples; the limit is 100000`);
-  const out: number[] = [];
-  for (let k = 0; k <= count; k++) out.push(+(from + dir * k * step).toPrecision(15));
-  if (Math.abs(out[out.length - 1] - to) > 1e-9) out.push(to);
-  else out[out.length - 1] = to;
-  return out;
+export function sampleDegrees(from: number, to: number, step: number, creases = 0, option = '--step'): number[] {
+  const r = coreSampleDegrees(from, to, step, creases);
+  if (!r.values) throw requestError(r.message!, r.message!.where?.field === 'step' ? option : undefined);
+  return r.values;
 }
 
-export function rangeOptions(values: Record<string, unknown>): { from: number; to: number; step: number; samples: number[] } {
+export function rangeOptions(values: Record<string, unknown>, creases: number): { from: number; to: number; step: number; samples: number[]; degrees: number[] } {
   const from = numberOption(values.from as string | undefined, 'from');
   const to = numberOption(values.to as string | undefined, 'to');
   const step = numberOption(values.step as string | undefined, 'step', 1);
-  const deg = sampleDegrees(from, to, step);
-  return { from: from * RAD, to: to * RAD, step: step * RAD, samples: deg.map((d) => d * RAD) };
+  for (const [v, n] of [[from, 'from'], [to, 'to']] as const) if (Math.abs(v) > 180) throw new UsageError(`--${n} must be within −180 … 180 degrees, got ${v}`);
+  if (!(step > 0)) throw new UsageError(`--step must be a positive number of degrees, got ${step}`);
+  const deg = sampleDegrees(from, to, step, creases);
+  return { from: from * RAD, to: to * RAD, step: step * RAD, samples: deg.map((d) => d * RAD), degrees: deg };
 }
 
 export function intOrUndefined(v: unknown, name: string, min = 1): number | undefined {
   if (v === undefined) return undefined;
   const n = Number(v);
-  if (!Number.isInteger(n) || n < min) throw new UsageError(`--${name} must be a whole number ≥ ${min}, got "${String(v)}"`);
+  if (String(v).trim() === '' || !Number.isInteger(n) || n < min) throw new UsageError(`--${name} must be a whole number ≥ ${min}, got "${String(v)}"`);
+  return n;
+}
+
+/** --digits <n>: significant digits, 1 … 17 (17 always reads back to the same double). */
+export function digitsOption(v: unknown): number | undefined {
+  if (v === undefined) return undefined;
+  const n = Number(v);
+  if (String(v).trim() === '' || !Number.isInteger(n) || n < 1 || n > 17) throw new UsageError(`--digits must be a whole number from 1 to 17, got "${String(v)}"`);
   return n;
 }
 
@@ -149,34 +203,35 @@ export function methodOption(v: unknown): 'auto' | 'propagate' | 'continue' {
   return m as 'auto' | 'propagate' | 'continue';
 }
 
+export function formatOption(v: unknown, allowed: string[], fallback: string): string {
+  const f = (v as string | undefined) ?? fallback;
+  if (!allowed.includes(f)) throw new UsageError(`--format must be ${allowed.slice(0, -1).join(', ')} or ${allowed[allowed.length - 1]}, got "${f}"`);
+  return f;
+}
+
 /** The command as typed, quoted for a POSIX shell where needed, for the header. */
 export function commandLine(command: string, argv: string[]): string {
   const q = (a: string) => (/^[A-Za-z0-9_@%+=:,./-]+$/.test(a) ? a : `'${a.replace(/'/g, `'\\''`)}'`);
   return ['hingeplan', command, ...argv].map(q).join(' ');
 }
 
-export function tableHeader(loaded: Loaded, file: string, command: string, argv: string[]): TableHeader {
+export function tableHeader(loaded: Loaded, file: string, command: string, argv: string[], inputs: TableInput[] = []): TableHeader {
   return {
     patternName: loaded.pattern.name,
     file,
-    fileSha256: sha256(loaded.text),
+    fileSha256: loaded.sha256(),
     version: VERSION,
     date: new Date().toISOString(),
     command: commandLine(command, argv),
+    ...(inputs.length ? { inputs } : {}),
   };
-}
-
-export function writeOutput(io: Io, command: string, text: string, out: string | undefined): boolean {
-  if (out === undefined) { io.stdout(text); return true; }
-  const w = io.writeFile(out, text);
-  if (w.error) { io.stderr(`hingeplan ${command}: ${w.error}\n`); return false; }
-  return true;
 }
 
 /**
  * Run resumable solver steps to the end, returning to the event loop every few tens of milliseconds so that
  * Ctrl-C (io.onInterrupt) is seen; a progress line on stderr when it is a terminal or `progress` is set.
- * `stopped()` tells the steps to stop (they ask hooks.shouldStop).
+ * `stopped()` tells the steps to stop (they ask hooks.shouldStop). Ctrl-C stays watched after this returns,
+ * so one pressed while the output is finished still ends in exit status 130 with the output complete.
  */
 export async function runResponsive<T>(
   io: Io,
@@ -185,11 +240,12 @@ export async function runResponsive<T>(
   showProgress: boolean,
 ): Promise<{ result: T; interrupted: boolean }> {
   let interrupted = false;
-  const remove = io.onInterrupt(() => { interrupted = true; });
+  io.onInterrupt(() => { interrupted = true; });
   let lastDraw = 0;
   let drawn = false;
   const start = Date.now();
   const draw = showProgress || io.stderrIsTTY;
+  const progress = (t: string) => (io.progress ? io.progress(t) : io.stderr(t));
   const onProgress = (done: number, total: number) => {
     if (!draw) return;
     const now = Date.now();
@@ -198,24 +254,21 @@ export async function runResponsive<T>(
     drawn = true;
     const pct = total ? Math.floor((100 * done) / total) : 100;
     const line = `hingeplan ${command}: ${done}/${total} (${pct}%) ${((now - start) / 1000).toFixed(1)} s`;
-    io.stderr(io.stderrIsTTY ? `\r${line}\x1b[K` : `${line}\n`);
+    progress(io.stderrIsTTY ? `\r${line}\x1b[K` : `${line}\n`);
   };
-  const steps = make({ shouldStop: () => interrupted, onProgress });
-  try {
-    let slice = Date.now();
-    for (;;) {
-      const r = steps.next();
-      if (r.done) {
-        if (drawn && io.stderrIsTTY) io.stderr('\n');
-        return { result: r.value, interrupted };
-      }
-      if (Date.now() - slice > 30) {
-        await new Promise<void>((resolve) => setTimeout(resolve, 0));
-        slice = Date.now();
-      }
+  // a Ctrl-C counted before these steps began (while the files were read) stops them too
+  const steps = make({ shouldStop: () => interrupted || !!io.interrupts?.(), onProgress });
+  let slice = Date.now();
+  for (;;) {
+    const r = steps.next();
+    if (r.done) {
+      if (drawn && io.stderrIsTTY) progress('\n');
+      return { result: r.value, interrupted: interrupted || !!io.interrupts?.() };
     }
-  } finally {
-    remove();
+    if (Date.now() - slice > 30) {
+      await new Promise<void>((resolve) => setTimeout(resolve, 0));
+      slice = Date.now();
+    }
   }
 }
 

@@ -2,6 +2,8 @@ import type { Command } from '../command';
 import { intOption, parseCommandArgs, UsageError } from '../args';
 import { drivesFor, loadFile, printMessages } from '../load';
 import { EXIT, exitForStatus } from '../exit-codes';
+import { writeWhole, writeWholeJson } from '../output';
+import { CAUTIONS } from '../../solver/formats/cautions';
 import { solveDrives } from '../../solver/search/solve';
 import { foldedShape } from '../../solver/outputs/shape';
 import { shapeToJSON, shapeToOBJ, shapeToSTL } from '../../solver/formats/shape-export';
@@ -10,7 +12,7 @@ export const shape: Command = {
   name: 'shape',
   summary: 'the folded shape for the drives: vertex positions (JSON), OBJ or ASCII STL',
   help: `Usage: hingeplan shape <file> [--set <crease>=<deg> …] [--solution <k>] [--base-panel <p>]
-                       [--format json|obj|stl] [--out <file>]
+                       [--format json|obj|stl] [--pretty] [--out <file>]
 
 Solves for the drives (as \`hingeplan solve\`), then places every panel: the base panel stays fixed and every
 other panel turns about the creases between it and the base. Vertex positions are in the file's units.
@@ -21,19 +23,22 @@ other panel turns about the creases between it and the base. Vertex positions ar
   --base-panel <p>       the panel held fixed (zero-based panel index); default: the file's base panel.
   --format json|obj|stl  json (default): {"vertices": [[x, y, z], … in the file's vertex order],
                          "maxMismatch": <length>, "panels": …}; obj and stl are for CAD.
-  --out <file>           write to a file (atomically) instead of stdout.`,
-  run(argv, io) {
+  --pretty               indent the JSON.
+  --out <file>           write to a file (atomically, see \`hingeplan table --help\`) instead of stdout; "wrote
+                         <file>" on stderr, and for STL (which has no comments to carry it) the cautions line.`,
+  async run(argv, io) {
     const { values, positionals } = parseCommandArgs(argv, {
       set: { type: 'string', multiple: true },
       solution: { type: 'string' },
       'base-panel': { type: 'string' },
       format: { type: 'string' },
       out: { type: 'string' },
+      pretty: { type: 'boolean' },
     });
     const format = (values.format as string | undefined) ?? 'json';
     if (!['json', 'obj', 'stl'].includes(format)) throw new UsageError(`--format must be json, obj or stl, got "${format}"`);
     const path = positionals[0];
-    const loaded = loadFile(io, path, 'shape');
+    const loaded = await loadFile(io, path, 'shape');
     if (!loaded) return EXIT.usage;
     const drives = drivesFor(io, loaded, values.set as string[] | undefined, path!);
     if (!drives) return EXIT.usage;
@@ -60,19 +65,17 @@ other panel turns about the creases between it and the base. Vertex positions ar
       io.stderr(`warning: the drives leave a family of states (${family.dof} degree(s) of freedom); the shape written is one member of it, not a solution. Add drives to fix the pattern (see hingeplan solve).\n`);
     }
     const sh = foldedShape(pattern, sol.angles, base);
-    const text =
-      format === 'obj' ? shapeToOBJ(pattern, sh)
-      : format === 'stl' ? shapeToSTL(pattern, sh)
-      : JSON.stringify(shapeToJSON(pattern, sh, family
-        ? { family: { dof: family.dof }, status: report.status, maxResidual: sol.maxResidual }
-        : { solution: k + 1, status: report.status, maxResidual: sol.maxResidual }), null, 2) + '\n';
-    if (values.out) {
-      const w = io.writeFile(values.out as string, text);
-      if (w.error) { io.stderr(`hingeplan shape: ${w.error}\n`); return EXIT.usage; }
-    } else {
-      io.stdout(text);
-    }
     for (const m of report.messages.filter((m) => m.severity !== 'info')) io.stderr(`${m.severity}: ${m.text}\n`);
+    const out = values.out as string | undefined;
+    const note = `${format.toUpperCase()}, ${sh.vertices.length} vertices`;
+    const written = format === 'json'
+      ? writeWholeJson(io, 'shape', shapeToJSON(pattern, sh, family
+        ? { family: { dof: family.dof }, status: report.status, maxResidual: sol.maxResidual }
+        : { solution: k + 1, status: report.status, maxResidual: sol.maxResidual }), !!values.pretty, out, [path], note)
+      : writeWhole(io, 'shape', format === 'obj' ? shapeToOBJ(pattern, sh) : shapeToSTL(pattern, sh), out, [path], 'file', note);
+    if (!written) return EXIT.usage;
+    // STL has no comment lines to carry the cautions, so they are said here
+    if (format === 'stl') io.stderr(`${CAUTIONS}\n`);
     return exitForStatus(report.status);
   },
 };

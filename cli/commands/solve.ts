@@ -1,4 +1,5 @@
 import type { Command } from '../command';
+import { writeWhole, writeWholeJson } from '../output';
 import { intOption, numberOption, parseCommandArgs, UsageError } from '../args';
 import { drivesFor, loadFile } from '../load';
 import { exitForStatus, EXIT } from '../exit-codes';
@@ -16,7 +17,7 @@ import type { Pattern, SolveReport } from '../../solver/types';
 export const solve: Command = {
   name: 'solve',
   summary: 'find every fold angle from the drives: all solutions, status, sensitivities',
-  help: `Usage: hingeplan solve <file> [--set <crease>=<deg> …] [--solutions matching|all|<n>] [--max-states <n>] [--json]
+  help: `Usage: hingeplan solve <file> [--set <crease>=<deg> …] [--solutions matching|all|<n>] [--max-states <n>] [--json [--pretty]]
                        [--contact on|off] [--clearance <length>]
                        [--areal-density <kg/m²>] [--gravity gx,gy,gz] [--spring <crease>=<N·m/rad>[:<rest>] …]
 
@@ -38,7 +39,9 @@ degree-4 vertices) are enumerated exhaustively in closed form; others are search
                          condition, signs, stacked?, sensitivity, vertexResiduals, contacts, stackedPanels?,
                          torque?}], contact: {checked, clearance}, torqueUnits?, omitted?: {count, groups},
                          families: [{dof, representative, directions, matchesAssignment}], compromise?,
-                         suggestedDrives?, conflictingDrives?, reachableRange?, excluded?, messages}
+                         suggestedDrives?, conflictingDrives?, reachableRange?, excluded?, messages}; drives
+                         and the driven creases' angles are the values as given (60, not 59.99999999999999).
+  --pretty               indent the JSON (default compact).
   --contact on|off       check every printed solution's panels for contact (default on): "contacts": [[p, q], …]
                          lists the pairs of panels (indices) that pass through each other or come closer than
                          --clearance <length> (file units, default 0); panels stacked flat on each other
@@ -47,12 +50,13 @@ degree-4 vertices) are enumerated exhaustively in closed form; others are search
                          printed solution gives the static holding torque of every drive, "torque": {"<drive>": N·m}.
 Exit status: 0 solved / several solutions / overspecified but consistent / dependent drives;
 2 invalid input or usage; 3 inconsistent or unreachable; 4 underspecified or not isolated.`,
-  run(argv, io) {
+  async run(argv, io) {
     const { values, positionals } = parseCommandArgs(argv, {
       set: { type: 'string', multiple: true },
       solutions: { type: 'string' },
       'max-states': { type: 'string' },
       json: { type: 'boolean' },
+      pretty: { type: 'boolean' },
       contact: checksOptions.contact, clearance: checksOptions.clearance,
       'areal-density': checksOptions['areal-density'], gravity: checksOptions.gravity, spring: checksOptions.spring,
     });
@@ -65,7 +69,7 @@ Exit status: 0 solved / several solutions / overspecified but consistent / depen
     const clearance = values.clearance === undefined ? 0 : numberOption(values.clearance as string, 'clearance');
     if (clearance < 0) throw new UsageError(`--clearance must be a length ≥ 0 in the file's units, got ${clearance}`);
     const path = positionals[0];
-    const loaded = loadFile(io, path, 'solve');
+    const loaded = await loadFile(io, path, 'solve');
     if (!loaded) return EXIT.usage;
     const drives = drivesFor(io, loaded, values.set as string[] | undefined, path!);
     if (!drives) return EXIT.usage;
@@ -92,10 +96,11 @@ Exit status: 0 solved / several solutions / overspecified but consistent / depen
       const out = omitted.length
         ? { ...json, omitted: { count: omitted.length, groups: groups.map((g) => ({ count: g.count, solutions: g.solutions, text: g.text })) } }
         : json;
-      io.stdout(JSON.stringify(out, null, 2) + '\n');
+      writeWholeJson(io, 'solve', out, !!values.pretty);
       return exitForStatus(report.status);
     }
-    io.stdout(textReport(pattern, drives.map((d) => d.crease), report, shown.length, groups, checks) + '\n');
+    if (values.pretty) throw new UsageError('--pretty is for --json');
+    writeWhole(io, 'solve', textReport(pattern, drives.map((d) => d.crease), report, shown.length, groups, checks) + '\n', undefined, [], 'text');
     return exitForStatus(report.status);
   },
 };

@@ -16,8 +16,11 @@ import { CAUTIONS } from '../../solver/formats/cautions';
 import type { SweepOptions } from '../../solver/paths/sweep';
 import {
   creaseOption, EXIT_INTERRUPTED, holdsOption, intOrUndefined, joinNegativeNumbers, methodOption, pathOptions, printSolverMessages,
-  rangeOptions, runResponsive, startOption, tableHeader, writeOutput,
+  rangeOptions, runResponsive, startOption, tableHeader,
 } from './path-common';
+import { writeWhole } from '../output';
+import { patternFileText } from '../../solver/formats/project';
+import type { TableInput } from '../../solver/outputs/table';
 import { defaultWorkers, runPool } from '../tolerance-threads';
 
 const DEG = 180 / Math.PI;
@@ -38,9 +41,9 @@ const spec: OptionSpec = {
   csv: { type: 'boolean' },
 };
 
-function options(io: Io, values: OptionValues, positionals: string[]): { loaded: Loaded; file: string; options: ToleranceOptions } | undefined {
+async function options(io: Io, values: OptionValues, positionals: string[]): Promise<{ loaded: Loaded; file: string; options: ToleranceOptions; inputs: TableInput[] } | undefined> {
   const file = positionals[0];
-  const loaded = loadFile(io, file, 'tolerance');
+  const loaded = await loadFile(io, file, 'tolerance');
   if (!loaded) return undefined;
   const { pattern } = loaded;
   const drive = creaseOption(pattern, values.drive as string | undefined, 'drive');
@@ -55,7 +58,7 @@ function options(io: Io, values: OptionValues, positionals: string[]): { loaded:
     path = { from: at * RAD, to: at * RAD, samples: [at * RAD] };
   } else {
     if (values.from === undefined || values.to === undefined) throw new UsageError('give the drive value with --at <deg>, or a range with --from <deg> --to <deg> [--step <deg>]');
-    path = rangeOptions(values);
+    path = rangeOptions(values, pattern.creases.length);
   }
   const position = values['position-tol'] === undefined ? undefined : numberOption(values['position-tol'] as string, 'position-tol');
   const sector = values['sector-tol'] === undefined ? undefined : numberOption(values['sector-tol'] as string, 'sector-tol');
@@ -71,7 +74,7 @@ function options(io: Io, values: OptionValues, positionals: string[]): { loaded:
       drive, ...path, holds,
       branch: intOrUndefined(values.branch, 'branch'),
       solution: intOrUndefined(values.solution, 'solution'),
-      ...(start ? { start } : {}),
+      ...(start ? { start: start.angles } : {}),
       method: methodOption(values.method),
       conditionEvery: 0,
     },
@@ -82,7 +85,7 @@ function options(io: Io, values: OptionValues, positionals: string[]): { loaded:
   };
   const refused = checkToleranceOptions(o);
   if (refused) throw new UsageError(refused.replace(/^The number of samples/, '--samples: the number').replace(/^The seed/, '--seed: the seed'));
-  return { loaded, file: file!, options: o };
+  return { loaded, file: file!, options: o, inputs: start ? [start.input] : [] };
 }
 
 function fmt(x: number, digits = 4): string {
@@ -178,17 +181,17 @@ input; 130 stopped by Ctrl-C.`,
     const { values, positionals } = parseCommandArgs(joinNegativeNumbers(argv, spec), spec);
     if (values.json && values.csv) throw new UsageError('choose one of --json and --csv');
     const workers = intOrUndefined(values.workers, 'workers') ?? defaultWorkers();
-    const setup = options(io, values, positionals);
+    const setup = await options(io, values, positionals);
     if (!setup) return EXIT.usage;
-    const { loaded, file, options: o } = setup;
+    const { loaded, file, options: o, inputs } = setup;
     const { pattern } = loaded;
     const units = loaded.project.units || 'file units';
-    const header = tableHeader(loaded, file, 'tolerance', argv);
+    const header = tableHeader(loaded, file, 'tolerance', argv, inputs);
     const write = (r: ToleranceResult) => {
       const text = values.json ? toleranceTable(pattern, r, header, { format: 'json', units })
         : values.csv ? toleranceTable(pattern, r, header, { format: 'csv', units })
           : humanText(r, loaded, units);
-      return writeOutput(io, 'tolerance', text, values.out as string | undefined);
+      return writeWhole(io, 'tolerance', text, values.out as string | undefined, [file, ...inputs.map((i) => i.file)], values.json ? 'json' : values.csv ? 'file' : 'text');
     };
 
     const nominal = await runResponsive(io, 'tolerance', (hooks) => nominalSteps(pattern, o, hooks), !!values.progress);
@@ -216,11 +219,11 @@ input; 130 stopped by Ctrl-C.`,
       if (now - lastDraw < 200 && done < o.samples) return;
       lastDraw = now;
       const line = `hingeplan tolerance: ${done}/${o.samples} sheets (${Math.floor((100 * done) / o.samples)}%) ${((now - started) / 1000).toFixed(1)} s`;
-      io.stderr(io.stderrIsTTY ? `\r${line}\x1b[K` : `${line}\n`);
+      (io.progress ?? io.stderr)(io.stderrIsTTY ? `\r${line}\x1b[K` : `${line}\n`);
     };
     let run: Awaited<ReturnType<typeof runPool>['done']> = { sheets: [], stopped: true };
     if (!interrupted) {
-      const pool = runPool({ text: loaded.text, name: file, setup: nominal.result.setup }, o.samples, workers, o.linear !== false, progress);
+      const pool = runPool({ text: patternFileText(loaded.bytes, file).text ?? '', name: file, setup: nominal.result.setup }, o.samples, workers, o.linear !== false, progress);
       const remove = io.onInterrupt(() => { interrupted = true; pool.stop(); });
       try { run = await pool.done; } finally { remove(); }
       if (draw && io.stderrIsTTY) io.stderr('\n');

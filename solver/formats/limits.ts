@@ -218,26 +218,108 @@ export function readJsonText(text: unknown, what = 'file'): { value?: unknown; m
       ],
     };
   }
+  let value: unknown;
   try {
-    return { value: JSON.parse(text), messages: [] };
+    value = JSON.parse(text);
   } catch {
-    const err = firstJsonError(text);
-    const offset = err ? err.offset : 0;
-    const { line, column } = lineColumn(text, offset);
-    const near = JSON.stringify(text.slice(offset, offset + 12));
+    value = undefined;
+  }
+  if (value !== undefined) {
+    // JSON.parse keeps the last of two equal keys silently; other readers keep the first, so refuse both
+    const dup = firstDuplicateKey(text);
+    if (!dup) return { value, messages: [] };
+    const { line, column } = lineColumn(text, dup.offset);
     return {
       messages: [
         {
           severity: 'error',
-          code: 'not-json',
-          text:
-            `The ${what} is not valid JSON: at line ${line}, column ${column}` +
-            (err ? ` expected ${err.expected}` : '') +
-            (offset < text.length ? ` near ${near}` : ' (the text ends too early)') +
-            '.',
-          where: { line },
+          code: 'duplicate-key',
+          text: `The ${what} has the key ${JSON.stringify(dup.key)} twice in ${dup.path || 'its top-level object'} (the second at line ${line}, column ${column}); readers disagree on which one counts, so remove one.`,
+          where: { line, field: dup.path ? `${dup.path}.${dup.key}` : dup.key },
         },
       ],
     };
   }
+  const err = firstJsonError(text);
+  const offset = err ? err.offset : 0;
+  const { line, column } = lineColumn(text, offset);
+  const near = JSON.stringify(text.slice(offset, offset + 12));
+  return {
+    messages: [
+      {
+        severity: 'error',
+        code: 'not-json',
+        text:
+          `The ${what} is not valid JSON: at line ${line}, column ${column}` +
+          (err ? ` expected ${err.expected}` : '') +
+          (offset < text.length ? ` near ${near}` : ' (the text ends too early)') +
+          '.',
+        where: { line },
+      },
+    ],
+  };
+}
+
+/**
+ * The first key that appears twice in one object of a valid JSON text (RFC 8259 says names "SHOULD be
+ * unique" and leaves duplicates to the reader), with its offset and the path of the object holding it
+ * (e.g. `creases[3]`). Keys are compared after their escapes are decoded, so "a" and "\\u0061" are equal.
+ */
+export function firstDuplicateKey(text: string): { offset: number; key: string; path: string } | undefined {
+  // per open container: an object's keys so far (a short list; most objects have a few) or an array's index
+  type Frame = { object: true; keys: string[]; set?: Set<string>; key?: string } | { object: false; index: number };
+  const stack: Frame[] = [];
+  const path = () => {
+    let out = '';
+    for (let k = 0; k < stack.length - 1; k++) {
+      const f = stack[k];
+      out += f.object ? (out === '' ? f.key : `.${f.key}`) : `[${f.index}]`;
+    }
+    return out;
+  };
+  let expectKey = false;
+  const n = text.length;
+  for (let i = 0; i < n; i++) {
+    const c = text.charCodeAt(i);
+    if (c === 34) {
+      // a string: find its end, skipping escaped quotes
+      const start = i;
+      let escaped = false;
+      let j = i + 1;
+      for (;;) {
+        const q = text.indexOf('"', j);
+        if (q < 0) return undefined;
+        let b = q - 1;
+        while (b > start && text.charCodeAt(b) === 92) b--;
+        if ((q - 1 - b) % 2 === 0) { j = q; break; }
+        escaped = true;
+        j = q + 1;
+      }
+      if (expectKey) {
+        const raw = text.slice(start + 1, j);
+        const key = escaped || raw.includes('\\') ? (JSON.parse(text.slice(start, j + 1)) as string) : raw;
+        const top = stack[stack.length - 1] as { object: true; keys: string[]; set?: Set<string>; key?: string };
+        const seen = top.set ? top.set.has(key) : top.keys.includes(key);
+        top.key = key;
+        if (seen) return { offset: start, key, path: path() };
+        if (top.set) top.set.add(key);
+        else if (top.keys.push(key) > 16) top.set = new Set(top.keys);
+        expectKey = false;
+      }
+      i = j;
+    } else if (c === 123) {
+      stack.push({ object: true, keys: [] });
+      expectKey = true;
+    } else if (c === 91) {
+      stack.push({ object: false, index: 0 });
+    } else if (c === 125 || c === 93) {
+      stack.pop();
+      expectKey = false;
+    } else if (c === 44) {
+      const top = stack[stack.length - 1];
+      if (top?.object) expectKey = true;
+      else if (top) top.index++;
+    }
+  }
+  return undefined;
 }

@@ -1,20 +1,18 @@
 // The Hingeplan project file: versioned JSON described by schema/project.schema.json (degrees in the
-// file, radians inside). Also loadPatternText, the one entry point the shells use for any pattern file.
+// file, radians inside). Also loadStructuredText, the reader of project and FOLD files (./load.ts adds drawings).
 //
 // Limits (see ./limits.ts): at most MAX_TEXT_BYTES (32 MiB) of text, MAX_VERTICES (250,000) vertices
 // and MAX_CREASES (250,000) creases; more is refused before any other work is done.
-import Ajv2020Module from 'ajv/dist/2020.js';
-import type { ErrorObject, ValidateFunction } from 'ajv';
-import schema from '../../schema/project.schema.json' with { type: 'json' };
+import type { ErrorObject } from 'ajv';
+import { validate as validateSchema } from './project-validator';
 import type { Assignment, Drive, HingeLimit, Message, Pattern, PatternSource, Where } from '../types';
 import { buildPattern } from '../model/pattern';
 import { resolveDrives, type DriveSpec } from '../model/drives';
 import { MAX_CREASES, MAX_TEXT_BYTES, MAX_VERTICES, readJsonText } from './limits';
 import { parseFoldValue } from './fold';
+import { decodeUtf8 } from './text';
+import { decodeDxf } from './dxf-text';
 import { loadsValue, readLoads, type FileLoads } from './loads';
-import { drawingToProject, type DrawingOptions } from './drawing';
-import { parseDxf } from './dxf';
-import { parseSvg } from './svg';
 import type { CleanCounts } from '../model/clean';
 
 export { MAX_CREASES, MAX_TEXT_BYTES, MAX_VERTICES };
@@ -55,16 +53,13 @@ export const toRadians = (deg: number) => deg * RAD;
 
 const MAX_SCHEMA_MESSAGES = 40;
 
-// ajv ships CommonJS; under ESM its class is the default export's `default`.
-type AjvClass = new (opts: object) => { compile(schema: object): ValidateFunction };
-let validator: ValidateFunction | undefined;
-function validate(): ValidateFunction {
-  if (!validator) {
-    const mod = Ajv2020Module as unknown as { default?: AjvClass } & AjvClass;
-    const Ajv = (mod.default ?? mod) as AjvClass;
-    validator = new Ajv({ allErrors: true, strict: true }).compile(schema as object);
-  }
-  return validator;
+/**
+ * The schema's validator, compiled ahead of time by ajv (scripts/build-validator.mjs → ./project-validator.ts),
+ * so reading a file neither loads ajv nor compiles the schema.
+ */
+type Validator = ((data: unknown) => boolean) & { errors?: ErrorObject[] | null };
+function validate(): Validator {
+  return validateSchema as Validator;
 }
 
 /** `/creases/12/assignment` → `creases[12].assignment` */
@@ -325,13 +320,11 @@ export function drawingFormat(text: string, fileName?: string): 'dxf' | 'svg' | 
 }
 
 /**
- * Read any pattern file the program knows (a project or FOLD, told apart by the `.fold` extension or a
- * `vertices_coords` key; a DXF or SVG drawing, by extension or content), build the pattern and check the
- * drives. `drawing` says how to read a drawing's layers, colours and snap. Never throws.
+ * Read a project or FOLD file (told apart by the `.fold` extension or a `vertices_coords` key), build the
+ * pattern and check the drives. Never throws. Drawings (DXF, SVG) are read by ./load.ts, which this module
+ * does not import, so a reader of project files alone does not load the drawing readers.
  */
-export function loadPatternText(text: string, fileName?: string, drawing: DrawingOptions = {}): LoadResult {
-  const kind = drawingFormat(text, fileName);
-  if (kind) return loadDrawing(kind, text, fileName, drawing);
+export function loadStructuredText(text: string, fileName?: string): LoadResult {
   const read = readJsonText(text, 'file');
   if (read.value === undefined) return { messages: read.messages };
   const value = read.value;
@@ -351,17 +344,10 @@ export function loadPatternText(text: string, fileName?: string, drawing: Drawin
   return { format, project, pattern: built.pattern, drives: resolved.drives, messages };
 }
 
-function loadDrawing(format: 'dxf' | 'svg', text: string, fileName: string | undefined, options: DrawingOptions): LoadResult {
-  const drawing = format === 'dxf' ? parseDxf(text, fileName) : parseSvg(text, fileName);
-  const r = drawingToProject(drawing, options);
-  const base: LoadResult = { format, messages: r.messages };
-  if (r.cleaning) base.cleaning = r.cleaning;
-  if (!r.project) return base;
-  const built = buildPattern(r.project.source);
-  base.messages = [...r.messages, ...built.messages.map((m) => (r.locate ? r.locate(m) : m))];
-  base.project = r.project;
-  if (!built.pattern) return base;
-  return { ...base, pattern: built.pattern, drives: [] };
+/** A file's bytes as text: a DXF as DXF says (./dxf-text.ts), anything else as UTF-8, refused with its place when it is not. */
+export function patternFileText(bytes: Uint8Array, fileName?: string): { text?: string; messages: Message[] } {
+  if (typeof fileName === 'string' && /\.dxf$/i.test(fileName)) return { text: decodeDxf(bytes).text, messages: [] };
+  return decodeUtf8(bytes, 'file');
 }
 
 /** Point a pattern message at the place in the file, in that file's own field names. */

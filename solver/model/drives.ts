@@ -100,7 +100,7 @@ export function resolveDrives(pattern: Pattern, specs: readonly DriveSpec[]): { 
       });
     }
     first.set(c, k);
-    drives.push({ crease: c, value: deg * RAD_PER_DEG });
+    drives.push({ crease: c, value: deg * RAD_PER_DEG, degrees: deg });
   });
   return { drives, messages };
 }

@@ -4,6 +4,7 @@
 
 import type { Drive, Message, Pattern } from '../types';
 import { runSteps, sweepSteps, type SweepHooks } from '../paths/sweep';
+import { tableSizeMessage } from '../paths/request-limits';
 import { assignmentSigns } from '../search/states';
 
 export interface GridAxis {
@@ -49,6 +50,10 @@ export function* gridSteps(pattern: Pattern, opts: GridOptions, hooks: SweepHook
   const holds = opts.holds ?? [];
   const messages: Message[] = [];
   if (x.drive === y.drive) return { nodes: [], messages: [{ severity: 'error', code: 'same-drive', text: 'The two grid drives must be different creases.' }], status: 'failed' };
+  // nodes hold an angle and two rates per crease: count them before making any
+  const tooMany = tableSizeMessage('too-many-nodes', 'range', 'grid nodes', x.values.length * y.values.length, pattern.creases.length, 'use coarser steps or shorter ranges');
+  if (tooMany) return { nodes: [], messages: [tooMany], status: 'failed' };
+  if (!x.values.length || !y.values.length) return { nodes: [], messages: [{ severity: 'error', code: 'empty-range', text: 'A grid range has no values.', where: { field: 'range' } }], status: 'failed' };
   const nodes: GridNode[][] = y.values.map((yv) => x.values.map((xv) => ({ x: xv, y: yv })));
   const total = x.values.length * y.values.length;
   let done = 0;

@@ -149,13 +149,14 @@ export class PathChecks {
 }
 
 /** Put what the checks found into a sweep's result: the summary, the contact event (in path order), messages. */
-export function finishChecks(result: SweepResult, checks: PathChecks): void {
+export function finishChecks(result: SweepResult, checks: PathChecks, travel?: number): void {
   const summary = checks.summary();
   result.checks = summary;
   result.messages.push(...summary.messages);
   const e = summary.event;
   if (e) {
-    const sense = result.samples.length > 1 ? Math.sign(result.samples[result.samples.length - 1].drive - result.samples[0].drive) || 1 : 1;
+    // the way the drive travels (given when the samples were not kept)
+    const sense = travel ?? (result.samples.length > 1 ? Math.sign(result.samples[result.samples.length - 1].drive - result.samples[0].drive) || 1 : 1);
     const at = result.events.findIndex((x) => (x.drive - e.drive) * sense > 0);
     const event: SweepEvent = { type: 'contact', drive: e.drive, text: e.text, angles: e.angles, panels: e.panels, point: e.point, distance: e.distance };
     if (at < 0) result.events.push(event); else result.events.splice(at, 0, event);

@@ -10,6 +10,7 @@ import { runSteps, sweepSteps, type SweepEvent, type SweepHooks, type SweepOptio
 import { solveDrives } from '../search/solve';
 import { ClosureProblem, RESIDUAL_TOLERANCE } from '../closure/newton';
 import { wrapAngle } from '../math/rotation';
+import { maxRows, tableSizeMessage } from '../paths/request-limits';
 
 const DEG = 180 / Math.PI;
 
@@ -58,6 +59,19 @@ export function driveProfile(spec: ProfileSpec): { profile?: DriveProfile; messa
   const T = spec.duration;
   if (!(Number.isFinite(T) && T > 0)) return bad(`The duration must be a positive number of seconds, not ${spec.duration}.`, 'duration');
   if (![spec.from, spec.to].every(Number.isFinite)) return bad('The drive start and end must be numbers.', 'from');
+  // a parameter the profile does not use is refused rather than ignored (it would be recorded as if it applied)
+  const unused = (field: 'accelTime' | 'acceleration' | 'jerkTime', what: string) =>
+    bad(`The ${spec.kind} profile has no ${what}; leave it out (${spec.kind === 'constant' ? 'constant drive velocity throughout' : spec.kind === 'trapezoid' ? 'the trapezoid has no jerk ramps' : 'the S-curve is set by its acceleration time and jerk time'}).`, field);
+  if (spec.kind === 'constant') {
+    if (spec.accelTime !== undefined) return unused('accelTime', 'acceleration time');
+    if (spec.acceleration !== undefined) return unused('acceleration', 'acceleration');
+  }
+  if (spec.kind !== 's-curve' && spec.jerkTime !== undefined) return unused('jerkTime', 'jerk time');
+  if (spec.kind === 's-curve' && spec.acceleration !== undefined) return unused('acceleration', 'acceleration setting');
+  if (spec.accelTime !== undefined && spec.acceleration !== undefined) return bad('Give the acceleration time or the acceleration, not both.', 'acceleration');
+  for (const [v, field, what] of [[spec.accelTime, 'accelTime', 'acceleration time'], [spec.jerkTime, 'jerkTime', 'jerk time']] as const) {
+    if (v !== undefined && !Number.isFinite(v)) return bad(`The ${what} must be a number of seconds, not ${v}.`, field);
+  }
   const delta = spec.to - spec.from;
   const dist = Math.abs(delta);
   const sign = delta < 0 ? -1 : 1;
@@ -65,10 +79,10 @@ export function driveProfile(spec: ProfileSpec): { profile?: DriveProfile; messa
   if (spec.kind === 'trapezoid') {
     if (spec.acceleration !== undefined) {
       const A = spec.acceleration;
-      if (!(A > 0)) return bad(`The acceleration must be positive, not ${A}.`, 'acceleration');
+      if (!(A > 0 && Number.isFinite(A))) return bad(`The acceleration must be a positive number of degrees per second², not ${A * DEG}°/s².`, 'acceleration');
       // Δ = a t_a (T − t_a) → t_a = (T − √(T² − 4Δ/a)) / 2, real only when a ≥ 4Δ/T²
       const disc = T * T - (4 * dist) / A;
-      if (disc < 0) return bad(`An acceleration of ${(A * DEG).toPrecision(6)}°/s² cannot move ${(dist * DEG).toPrecision(6)}° in ${T} s; it needs at least ${((4 * dist) / (T * T) * DEG).toPrecision(6)}°/s².`, 'acceleration');
+      if (disc < 0) return bad(`An acceleration of ${+(A * DEG).toPrecision(6)}°/s² cannot move ${+(dist * DEG).toPrecision(6)}° in ${T} s; it needs at least ${+((4 * dist) / (T * T) * DEG).toPrecision(6)}°/s².`, 'acceleration');
       ta = (T - Math.sqrt(disc)) / 2;
     } else {
       ta = spec.accelTime ?? T / 4;
@@ -84,6 +98,13 @@ export function driveProfile(spec: ProfileSpec): { profile?: DriveProfile; messa
   const vmax = dist / (T - ta);
   const amax = ta > 0 ? vmax / (ta - tj) : 0;
   const jerk = tj > 0 ? amax / tj : 0;
+  // a duration so short (or phases so thin) that the peaks leave the doubles: refused, never NaN positions
+  if (![vmax, amax, jerk, (vmax * ta) / 2, vmax * T, vmax * vmax].every(Number.isFinite)) {
+    // name what the person gave: a jerk or acceleration time when it was theirs, else the duration
+    const field = Number.isFinite(vmax) && !Number.isFinite(jerk) && spec.jerkTime !== undefined ? 'jerkTime'
+      : Number.isFinite(vmax) && !(Number.isFinite(amax) && Number.isFinite(jerk)) && spec.accelTime !== undefined ? 'accelTime' : 'duration';
+    return bad(`The profile cannot be computed: moving ${+(dist * DEG).toPrecision(6)}° in ${T} s${ta > 0 ? ` with an acceleration time of ${ta} s` : ''}${tj > 0 ? ` and a jerk time of ${tj} s` : ''} needs a peak drive ${!Number.isFinite(vmax) ? 'velocity' : !Number.isFinite(amax) ? 'acceleration' : 'jerk'} beyond any number; give a longer time.`, field);
+  }
   // the acceleration phase as a function of τ ∈ [0, t_a]: position, velocity, acceleration (unsigned)
   const accelPhase = (tau: number): [number, number, number] => {
     if (ta === 0) return [0, vmax, 0];
@@ -103,7 +124,9 @@ export function driveProfile(spec: ProfileSpec): { profile?: DriveProfile; messa
     else if (tc <= T - ta) { x = (vmax * ta) / 2 + vmax * (tc - ta); v = vmax; a = 0; }
     else { const [xr, vr, ar] = accelPhase(T - tc); x = dist - xr; v = vr; a = -ar; }
     if (ta === 0) { x = vmax * tc; v = vmax; a = 0; }
-    return { t, position: spec.from + sign * x, velocity: sign * v, acceleration: sign * a };
+    // the ends are the values as given, exactly (from + (to − from) can miss `to` by a rounding)
+    const position = tc >= T ? spec.to : tc <= 0 ? spec.from : spec.from + sign * x;
+    return { t, position, velocity: sign * v, acceleration: sign * a };
   };
   return { profile: { spec, accelTime: ta, jerkTime: tj, peakVelocity: vmax, peakAcceleration: amax, at } };
 }
@@ -181,7 +204,10 @@ export interface ProfileCheck {
 }
 
 export interface ScheduleResult {
+  /** every row in time order (empty when the rows were not kept: see scheduleSteps) */
   rows: ScheduleRow[];
+  /** how many time rows the schedule has */
+  rowCount: number;
   /** states between rows where peaks were looked for (the limits hold between rows too) */
   checks: ProfileCheck[];
   hinges: HingeSummary[];
@@ -192,37 +218,83 @@ export interface ScheduleResult {
   status: 'complete' | 'partial' | 'stopped' | 'failed';
 }
 
-/** Time rows 0, dt, 2dt, … T (T always included). */
-export function timeRows(duration: number, dt?: number, rows?: number): number[] {
-  const step = dt ?? duration / Math.max(1, (rows ?? 101) - 1);
+/** Time rows of a schedule when neither a time step nor a row count is given. */
+export const DEFAULT_ROWS = 101;
+
+/**
+ * Time rows 0, dt, 2dt, … T (T always included), or a message when the step or row count is not usable or the
+ * schedule over `creases` creases would be larger than the request limits allow (counted before anything is
+ * allocated).
+ */
+export function timeRows(duration: number, dt?: number, rows?: number, creases = 0): { times?: number[]; message?: Message } {
+  const bad = (code: string, text: string, field: string) => ({ message: { severity: 'error' as const, code, text, where: { field } } });
+  if (!(Number.isFinite(duration) && duration > 0)) return bad('bad-profile', `The duration must be a positive number of seconds, not ${duration}.`, 'duration');
+  if (dt !== undefined && rows !== undefined) return bad('bad-step', 'Give the time step or the number of rows, not both.', 'rows');
+  if (dt !== undefined && !(Number.isFinite(dt) && dt > 0)) return bad('bad-step', `The time step must be a positive number of seconds, not ${dt}.`, 'dt');
+  if (rows !== undefined && !(Number.isInteger(rows) && rows >= 2)) return bad('bad-step', `A schedule needs a whole number of at least 2 rows (the start and the end), not ${rows}.`, 'rows');
+  const step = dt ?? duration / ((rows ?? DEFAULT_ROWS) - 1);
   const n = Math.floor(duration / step + 1e-9);
+  const aligned = Number.isFinite(n) && Math.abs(n * step - duration) <= 1e-12;
+  const count = n + (aligned ? 1 : 2);
+  const limit = maxRows(creases);
+  const tooMany = tableSizeMessage('too-many-rows', dt !== undefined ? 'dt' : 'rows', 'time rows', count, creases,
+    dt !== undefined ? `use a time step of at least ${+(duration / Math.max(1, limit - 2)).toPrecision(2)} s` : `ask for at most ${limit} rows`);
+  if (tooMany) return { message: tooMany };
+  // a step below the doubles' resolution at T would repeat times
+  if (n > 0 && !((n * step) > ((n - 1) * step))) return bad('bad-step', `The time step ${step} s is too small to tell the rows apart over ${duration} s.`, dt !== undefined ? 'dt' : 'rows');
   const out: number[] = [];
   for (let k = 0; k <= n; k++) out.push(k * step);
   if (Math.abs(out[out.length - 1] - duration) > 1e-12) out.push(duration);
   else out[out.length - 1] = duration;
-  return out;
+  return { times: out };
 }
 
 export function deploymentSchedule(pattern: Pattern, opts: ScheduleOptions, hooks: SweepHooks = {}): ScheduleResult {
   return runSteps(scheduleSteps(pattern, opts, hooks));
 }
 
-/** The schedule as resumable steps (see sweepSteps). */
-export function* scheduleSteps(pattern: Pattern, opts: ScheduleOptions, hooks: SweepHooks = {}): Generator<void, ScheduleResult> {
+export interface ScheduleHooks extends SweepHooks {
+  /** every row as soon as it is known, in time order (k = 0, 1, …), for output written while the schedule is computed */
+  onRow?(row: ScheduleRow, k: number): void;
+  /** the path has ended (before the rows it did not reach are made): a caller's checks may add their events */
+  onPathEnd?(path: SweepResult): void;
+}
+
+/**
+ * The schedule as resumable steps (see sweepSteps). Rows are made as the path reaches their drive values
+ * (hooks.onRow); with `keepRows: false` they are not kept in the result, so memory does not grow with them.
+ */
+export function* scheduleSteps(pattern: Pattern, opts: ScheduleOptions & { keepRows?: boolean }, hooks: ScheduleHooks = {}): Generator<void, ScheduleResult> {
   const messages: Message[] = [];
+  const failed = (m: Message): ScheduleResult => ({ rows: [], checks: [], hinges: [], events: [], messages: [m], status: 'failed', rowCount: 0 });
   const { profile, message } = driveProfile(opts.profile);
-  if (!profile) return { rows: [], checks: [], hinges: [], events: [], messages: [message!], status: 'failed' };
-  if (opts.dt !== undefined && !(opts.dt > 0)) {
-    return { rows: [], checks: [], hinges: [], events: [], messages: [{ severity: 'error', code: 'bad-step', text: `The time step must be positive, not ${opts.dt}.` }], status: 'failed' };
-  }
-  const times = timeRows(opts.profile.duration, opts.dt, opts.rows);
-  if (times.length > 100_000) {
-    return { rows: [], checks: [], hinges: [], events: [], messages: [{ severity: 'error', code: 'too-many-rows', text: `${times.length} rows is more than the 100000 a schedule takes; use a larger time step.` }], status: 'failed' };
-  }
-  const states = times.map((t) => profile.at(t));
+  if (!profile) return failed(message!);
+  const planned = timeRows(opts.profile.duration, opts.dt, opts.rows, pattern.creases.length);
+  if (!planned.times) return failed(planned.message!);
+  const states = planned.times.map((t) => profile.at(t));
   // the path is solved at distinct drive values in order (rest phases repeat a value)
   const values: number[] = [];
   for (const s of states) if (!values.length || s.position !== values[values.length - 1]) values.push(s.position);
+  const limitOf = (c: number): HingeLimits => opts.hingeLimits?.get(c) ?? opts.limits ?? {};
+  // the peaks between rows are looked for from the solved rows, so with limits the rows are kept
+  const limited = pattern.creases.some((c) => limitOf(c.index).maxRate !== undefined || limitOf(c.index).maxAcceleration !== undefined);
+  const keep = (opts.keepRows ?? true) || limited;
+  const rows: ScheduleRow[] = [];
+  const summary = new HingeTally(pattern);
+  let next = 0;
+  let unreachable = 0;
+  const emit = (row: ScheduleRow) => {
+    summary.add(row);
+    if (row.unreachable) unreachable++;
+    if (keep) rows.push(row);
+    hooks.onRow?.(row, next);
+    next++;
+  };
+  const n = pattern.creases.length;
+  const solvedRow = (st: ProfileState, s: SweepSample): ScheduleRow => ({
+    t: st.t, drive: st.position, driveVelocity: st.velocity, driveAcceleration: st.acceleration, angles: s.angles, maxResidual: s.maxResidual,
+    ...hingeMotion(s, st, n, limitOf), ...(s.checks ? { checks: s.checks } : {}),
+  });
   const sweepOpts: SweepOptions = {
     drive: opts.drive,
     from: values[0],
@@ -234,24 +306,31 @@ export function* scheduleSteps(pattern: Pattern, opts: ScheduleOptions, hooks: S
     ...(opts.start ? { start: opts.start } : {}),
     curvature: true,
     method: opts.method,
+    keepSamples: false,
   };
-  const path = yield* sweepSteps(pattern, sweepOpts, hooks);
-  messages.push(...path.messages);
-  const byValue = new Map<number, SweepSample>();
-  for (const s of path.samples) byValue.set(s.drive, s);
-  const endText = path.events.find((e) => e.type !== 'branch-point')?.text ?? (path.status === 'stopped' ? 'the computation was stopped' : 'the path ends before this drive value');
-  const limitOf = (c: number): HingeLimits => opts.hingeLimits?.get(c) ?? opts.limits ?? {};
-  const n = pattern.creases.length;
-  const rows: ScheduleRow[] = states.map((st) => {
-    const s = byValue.get(st.position);
-    if (!s) return { t: st.t, drive: st.position, driveVelocity: st.velocity, driveAcceleration: st.acceleration, overRate: [], overAcceleration: [], unreachable: endText };
-    return { t: st.t, drive: st.position, driveVelocity: st.velocity, driveAcceleration: st.acceleration, angles: s.angles, maxResidual: s.maxResidual, ...hingeMotion(s, st, n, limitOf), ...(s.checks ? { checks: s.checks } : {}) };
+  const path = yield* sweepSteps(pattern, sweepOpts, {
+    ...hooks,
+    // the caller's checks first (they mark the sample), then the rows at this drive value (consecutive in
+    // time: the profile is monotonic)
+    onSample: (s, k) => {
+      const verdict = hooks.onSample?.(s, k);
+      while (next < states.length && states[next].position === s.drive) emit(solvedRow(states[next], s));
+      return verdict;
+    },
   });
+  hooks.onPathEnd?.(path);
+  messages.push(...path.messages);
+  const ended = path.events.find((e) => e.type !== 'branch-point');
+  const endText = ended ? (ended.type === 'contact' ? `past the first contact: ${ended.text}` : ended.text) : path.status === 'stopped' ? 'the computation was stopped' : 'the path ends before this drive value';
+  while (next < states.length) {
+    const st = states[next];
+    emit({ t: st.t, drive: st.position, driveVelocity: st.velocity, driveAcceleration: st.acceleration, overRate: [], overAcceleration: [], unreachable: endText });
+  }
   const checks = yield* peaksBetweenRows(pattern, opts, profile, rows, limitOf, hooks);
-  const hinges = summarize(pattern, rows, checks);
-  const unreachable = rows.filter((r) => r.unreachable).length;
+  for (const k of checks) summary.addCheck(k);
+  const hinges = summary.hinges();
   if (unreachable) {
-    messages.push({ severity: 'error', code: 'unreachable-rows', text: `${unreachable} of ${rows.length} rows have no state on the path (${endText}); they are flagged and the others are solved.` });
+    messages.push({ severity: 'error', code: 'unreachable-rows', text: `${unreachable} of ${states.length} rows have no state on the path (${endText}); they are flagged and the others are solved.` });
   }
   const over = hinges.filter((h) => h.rowsOverRate || h.rowsOverAcceleration || h.overBetweenRows);
   if (over.length) {
@@ -271,6 +350,7 @@ export function* scheduleSteps(pattern: Pattern, opts: ScheduleOptions, hooks: S
   }
   return {
     rows,
+    rowCount: states.length,
     checks,
     hinges,
     events: path.events,
@@ -298,27 +378,51 @@ function hingeMotion(s: SweepSample, st: ProfileState, n: number, limitOf: (c: n
   return { velocities, accelerations, overRate, overAcceleration };
 }
 
-function summarize(pattern: Pattern, rows: ScheduleRow[], checks: ProfileCheck[]): HingeSummary[] {
-  const out: HingeSummary[] = [];
-  for (const c of pattern.creases) {
-    if (c.assignment === 'B' || c.assignment === 'F') continue;
-    const h: HingeSummary = { crease: c.index, peakRate: 0, peakRateAt: 0, peakAcceleration: 0, peakAccelerationAt: 0, rowsOverRate: 0, rowsOverAcceleration: 0, overBetweenRows: false };
-    const take = (t: number, v: Float64Array | undefined, a: Float64Array | undefined) => {
-      if (v && Math.abs(v[c.index]) > h.peakRate) { h.peakRate = Math.abs(v[c.index]); h.peakRateAt = t; }
-      if (a && Math.abs(a[c.index]) > h.peakAcceleration) { h.peakAcceleration = Math.abs(a[c.index]); h.peakAccelerationAt = t; }
-    };
-    for (const r of rows) {
-      take(r.t, r.velocities, r.accelerations);
-      if (r.overRate.includes(c.index)) h.rowsOverRate++;
-      if (r.overAcceleration.includes(c.index)) h.rowsOverAcceleration++;
-    }
-    for (const k of checks) {
-      take(k.t, k.velocities, k.accelerations);
-      if (k.overRate.includes(c.index) || k.overAcceleration.includes(c.index)) h.overBetweenRows = true;
-    }
-    out.push(h);
+/**
+ * Peaks (and when they happen) and over-limit counts per movable hinge, added row by row as the rows are
+ * made, then the profile's checks between rows (a limit passed there is marked overBetweenRows).
+ */
+class HingeTally {
+  private readonly creases: number[];
+  private readonly h: HingeSummary[];
+  /** crease index → position in creases (−1 for boundary and flat creases) */
+  private readonly at: Int32Array;
+
+  constructor(pattern: Pattern) {
+    this.creases = pattern.creases.filter((c) => c.assignment !== 'B' && c.assignment !== 'F').map((c) => c.index);
+    this.at = new Int32Array(pattern.creases.length).fill(-1);
+    this.creases.forEach((c, i) => { this.at[c] = i; });
+    this.h = this.creases.map((c) => ({ crease: c, peakRate: 0, peakRateAt: 0, peakAcceleration: 0, peakAccelerationAt: 0, rowsOverRate: 0, rowsOverAcceleration: 0, overBetweenRows: false }));
   }
-  return out;
+
+  private take(t: number, v: Float64Array | undefined, a: Float64Array | undefined): void {
+    if (!v || !a) return;
+    this.creases.forEach((c, i) => {
+      const h = this.h[i];
+      if (Math.abs(v[c]) > h.peakRate) { h.peakRate = Math.abs(v[c]); h.peakRateAt = t; }
+      if (Math.abs(a[c]) > h.peakAcceleration) { h.peakAcceleration = Math.abs(a[c]); h.peakAccelerationAt = t; }
+    });
+  }
+
+  private index(c: number): HingeSummary | undefined {
+    const i = this.at[c];
+    return i >= 0 ? this.h[i] : undefined;
+  }
+
+  add(r: ScheduleRow): void {
+    this.take(r.t, r.velocities, r.accelerations);
+    for (const c of r.overRate) { const h = this.index(c); if (h) h.rowsOverRate++; }
+    for (const c of r.overAcceleration) { const h = this.index(c); if (h) h.rowsOverAcceleration++; }
+  }
+
+  addCheck(k: ProfileCheck): void {
+    this.take(k.t, k.velocities, k.accelerations);
+    for (const c of [...k.overRate, ...k.overAcceleration]) { const h = this.index(c); if (h) h.overBetweenRows = true; }
+  }
+
+  hinges(): HingeSummary[] {
+    return this.h;
+  }
 }
 
 /**
@@ -403,6 +507,8 @@ export interface ScheduleInputRow {
   time: number;
   /** drive crease → value (radians) */
   values: Map<number, number>;
+  /** drive crease → value in degrees as the file gives it (echoed exactly in tables) */
+  degrees?: Map<number, number>;
   /** line in the file (1-based), for messages */
   line: number;
 }
@@ -421,6 +527,11 @@ export interface ParsedSchedule {
 export function parseScheduleCsv(pattern: Pattern, text: string): ParsedSchedule {
   const messages: Message[] = [];
   const err = (code: string, t: string, line: number, field?: string) => messages.push({ severity: 'error', code, text: t, where: { line, ...(field ? { field } : {}) } });
+  // every line may become a row with an angle per crease: count them before reading any
+  let lineCount = 1;
+  for (let i = text.indexOf('\n'); i >= 0; i = text.indexOf('\n', i + 1)) lineCount++;
+  const tooMany = tableSizeMessage('too-many-rows', 'schedule', 'schedule rows', lineCount - 1, pattern.creases.length, 'split the schedule into parts');
+  if (tooMany) return { drives: [], rows: [], messages: [tooMany] };
   const lines = text.split(/\r?\n/);
   let header: string[] | undefined;
   let headerLine = 0;
@@ -450,15 +561,16 @@ export function parseScheduleCsv(pattern: Pattern, text: string): ParsedSchedule
     if (cells[0] === '' || !Number.isFinite(time)) { err('schedule-row', `Line ${i + 1}: time "${cells[0]}" is not a number.`, i + 1, 'time'); continue; }
     if (rows.length && time < rows[rows.length - 1].time) { err('schedule-order', `Line ${i + 1}: time ${time} s is earlier than the row before (${rows[rows.length - 1].time} s).`, i + 1, 'time'); continue; }
     const values = new Map<number, number>();
+    const degrees = new Map<number, number>();
     let ok = true;
     for (let k = 1; k < cells.length; k++) {
       const v = Number(cells[k]);
       if (cells[k] === '' || !Number.isFinite(v)) { err('schedule-row', `Line ${i + 1}: "${cells[k]}" for ${header[k]} is not a number.`, i + 1, header[k]); ok = false; continue; }
       if (Math.abs(v) > 180) { err('schedule-row', `Line ${i + 1}: ${v}° for ${header[k]} is outside −180° … 180°.`, i + 1, header[k]); ok = false; continue; }
       const c = drives[k - 1];
-      if (c !== undefined) values.set(c, v / DEG);
+      if (c !== undefined) { values.set(c, v / DEG); degrees.set(c, v); }
     }
-    if (ok) rows.push({ time, values, line: i + 1 });
+    if (ok) rows.push({ time, values, degrees, line: i + 1 });
   }
   if (!header) err('schedule-empty', 'The schedule has no header line (time,<crease>,…).', 1);
   else if (!rows.length && !messages.length) err('schedule-empty', 'The schedule has a header but no rows.', headerLine);
@@ -503,6 +615,7 @@ export interface FollowRow {
   time: number;
   line: number;
   values: Map<number, number>;
+  degrees?: Map<number, number>;
   angles?: Float64Array;
   rates?: Float64Array;
   maxResidual?: number;
@@ -538,7 +651,9 @@ export function followSchedule(pattern: Pattern, schedule: ParsedSchedule, opts:
 export function* followSteps(pattern: Pattern, schedule: ParsedSchedule, opts: FollowOptions = {}, hooks: SweepHooks = {}): Generator<void, FollowResult> {
   const messages: Message[] = [];
   const events: SweepEvent[] = [];
-  const rows: FollowRow[] = schedule.rows.map((r) => ({ time: r.time, line: r.line, values: r.values }));
+  const tooMany = tableSizeMessage('too-many-rows', 'schedule', 'schedule rows', schedule.rows.length, pattern.creases.length, 'split the schedule into parts');
+  if (tooMany) return { drives: schedule.drives, rows: [], events: [], messages: [tooMany], status: 'failed' };
+  const rows: FollowRow[] = schedule.rows.map((r) => ({ time: r.time, line: r.line, values: r.values, ...(r.degrees ? { degrees: r.degrees } : {}) }));
   if (!rows.length) return { drives: schedule.drives, rows, events, messages: [{ severity: 'error', code: 'schedule-empty', text: 'The schedule has no rows.' }], status: 'failed' };
   const moving = schedule.drives.filter((c) => rows.some((r) => r.values.get(c) !== rows[0].values.get(c)));
   const fixed = schedule.drives.filter((c) => !moving.includes(c));
@@ -617,7 +732,7 @@ export function* followSteps(pattern: Pattern, schedule: ParsedSchedule, opts: F
         ? ` (other states exist at these values, on another branch: ${n}${report.search.limit !== undefined ? ' or more' : ''})`
         : report.search.complete ? ' (no state at all has these values)' : ' (no other state was found at these values)';
     }
-    messages.push({ severity: 'error', code: 'unreachable-rows', text: `${bad.length} of ${rows.length} rows have no consistent state on the followed branch (lines ${bad.slice(0, 8).map((r) => r.line).join(', ')}${bad.length > 8 ? ', …' : ''}); they are flagged and the other rows are solved.` });
+    messages.push({ severity: 'error', code: 'unreachable-rows', text: `${bad.length} of ${rows.length} rows have no consistent state on the followed branch (${bad.length === 1 ? 'line' : 'lines'} ${bad.slice(0, 8).map((r) => r.line).join(', ')}${bad.length > 8 ? ', …' : ''}); they are flagged and the other rows are solved.` });
   }
   return { drives: schedule.drives, ...(branch ? { branch } : {}), rows, events, messages, status: stopped ? 'stopped' : bad.length ? 'partial' : 'complete' };
 }
@@ -659,7 +774,8 @@ function* homotopyFollow(
     const from = new Map(moving.map((c) => [c, state![c]] as const));
     let ok = true;
     for (let s = 1; s <= steps && ok; s++) {
-      for (const c of moving) x[c] = from.get(c)! + ((r.values.get(c)! - from.get(c)!) * s) / steps;
+      // the last step lands on the row's values exactly (no rounding of from + (to − from))
+      for (const c of moving) x[c] = s === steps ? r.values.get(c)! : from.get(c)! + ((r.values.get(c)! - from.get(c)!) * s) / steps;
       const res = problem.solve(x, { maxStep: 0.1, maxIterations: 40, polishTolerance: 1e-13, wrap: false });
       if (!res.converged) ok = false;
       else x = res.angles;

@@ -20,6 +20,8 @@ import { ConditionTracker, NormalSystem, dot } from './linear';
 import { branchesAt, flatBranches, tangentMatchesAssignment, type Branch } from './branches';
 import { matchesAssignment, solveDrives } from '../search/solve';
 import { wrapAngle } from '../math/rotation';
+import { maxRows, tableSizeMessage } from './request-limits';
+import { degreesText } from '../formats/numbers';
 import type { ChecksSummary, StateChecks } from '../outputs/path-physics';
 
 const DEG = 180 / Math.PI;
@@ -40,8 +42,6 @@ const FLAT_FOLDED = 1e-7;
 const SERIES_LIMIT = 1e-3;
 /** where the series' third-order term is fitted (radians, 0.5°) */
 const SERIES_ANCHOR = 0.5 / DEG;
-/** Samples above this count are refused (a request that would not fit in memory). */
-export const MAX_SAMPLES = 100_000;
 
 export type SweepMethod = 'propagate' | 'continue';
 
@@ -73,6 +73,11 @@ export interface SweepOptions {
   conditionEvery?: number;
   /** analyse the rays at branch points found (default true) */
   analyzeBranches?: boolean;
+  /**
+   * keep every sample in the result (default true); false when the caller takes them through
+   * hooks.onSample, so memory does not grow with the number of samples (result.samples is then empty)
+   */
+  keepSamples?: boolean;
 }
 
 export interface SweepSample {
@@ -120,6 +125,8 @@ export interface SweepResult {
   /** complete: every sample; partial: the path ended early (an event says why); stopped: interrupted; failed: no start */
   status: SweepStatus;
   requested: number;
+  /** samples solved (also when the samples were not kept: see SweepOptions.keepSamples) */
+  recorded: number;
   method: SweepMethod | 'mixed';
   branch?: { id?: number; name: string; matchesAssignment: boolean; text: string };
   conditionEvery: number;
@@ -131,8 +138,11 @@ export interface SweepResult {
 export interface SweepHooks {
   onProgress?(done: number, total: number): void;
   shouldStop?(): boolean;
-  /** called with every sample as it is recorded; 'stop' ends the path there (status partial) */
-  onSample?(sample: SweepSample): 'stop' | void;
+  /**
+   * every sample as soon as it is recorded, in order (k = 0, 1, …), for checks run on it and output written
+   * while the path is computed; 'stop' ends the path there (status partial)
+   */
+  onSample?(sample: SweepSample, k: number): 'stop' | void;
 }
 
 /**
@@ -145,17 +155,59 @@ export function defaultConditionEvery(unknowns: number): number {
   return unknowns <= 400 ? 1 : unknowns <= 4000 ? Math.ceil(unknowns / 100) : Infinity;
 }
 
-/** The requested drive values from → to every `step` (the end value included, also when the step does not divide). */
-export function sampleValues(from: number, to: number, step: number): number[] {
-  const out: number[] = [];
-  if (from === to) return [from];
+/**
+ * The requested drive values from → to every `step` (radians; the end value included, also when the step
+ * does not divide the span), or a message when the step is not a positive number or the table would be
+ * larger than the request limits allow for `creases` creases (counted before anything is allocated).
+ */
+export function sampleValues(from: number, to: number, step: number, creases = 0): { values?: number[]; message?: Message } {
+  if (from === to) return { values: [from] };
+  if (!(step > 0 && Number.isFinite(step))) return { message: { severity: 'error', code: 'bad-step', text: `The step must be a positive number of degrees, not ${step * DEG}.`, where: { field: 'step' } } };
   const dir = Math.sign(to - from);
   const span = Math.abs(to - from);
   const count = Math.floor(span / step + 1e-9);
+  const aligned = Number.isFinite(count) && Math.abs(from + dir * count * step - to) <= 1e-12;
+  const tooMany = tableSizeMessage('too-many-samples', 'step', 'samples', count + (aligned ? 1 : 2), creases, stepHint(span * DEG, creases));
+  if (tooMany) return { message: tooMany };
+  const out: number[] = [];
   for (let k = 0; k <= count; k++) out.push(from + dir * k * step);
   if (Math.abs(out[out.length - 1] - to) > 1e-12) out.push(to);
   else out[out.length - 1] = to;
-  return out;
+  return { values: out };
+}
+
+/**
+ * Drive values from → to every step, computed in degrees (so 1°, 2°, … are exactly those decimal values;
+ * convert each once), the end included also when the step does not divide the span: the values the command
+ * line and the app sample a path at. A message instead when an input is out of range or the table would be
+ * larger than the request limits allow (counted before anything is allocated).
+ */
+export function sampleDegrees(fromDeg: number, toDeg: number, stepDeg: number, creases = 0): { values?: number[]; message?: Message } {
+  for (const [v, field] of [[fromDeg, 'from'], [toDeg, 'to']] as const) {
+    if (!(Math.abs(v) <= 180)) return { message: { severity: 'error', code: 'drive-out-of-range', text: `The drive value ${v}° is outside −180° … 180°.`, where: { field } } };
+  }
+  if (!(stepDeg > 0 && Number.isFinite(stepDeg))) return { message: { severity: 'error', code: 'bad-step', text: `The step must be a positive number of degrees, not ${stepDeg}.`, where: { field: 'step' } } };
+  const dir = toDeg >= fromDeg ? 1 : -1;
+  const span = Math.abs(toDeg - fromDeg);
+  const count = Math.floor(span / stepDeg + 1e-9);
+  const aligned = Number.isFinite(count) && Math.abs(+(fromDeg + dir * count * stepDeg).toPrecision(15) - toDeg) <= 1e-9;
+  const tooMany = tableSizeMessage('too-many-samples', 'step', 'samples', count + (aligned ? 1 : 2), creases, stepHint(span, creases));
+  if (tooMany) return { message: tooMany };
+  const out: number[] = [];
+  for (let k = 0; k <= count; k++) out.push(+(fromDeg + dir * k * stepDeg).toPrecision(15));
+  if (Math.abs(out[out.length - 1] - toDeg) > 1e-9) out.push(toDeg);
+  else out[out.length - 1] = toDeg;
+  return { values: out };
+}
+
+/** What to ask for instead of too fine a step over `spanDeg` degrees. */
+function stepHint(spanDeg: number, creases: number): string {
+  const rows = maxRows(creases);
+  if (rows < 2) return 'the pattern is too large for a table';
+  const step = spanDeg / (rows - 1);
+  // round up to two significant digits, so the suggestion itself fits
+  const e = Math.pow(10, Math.floor(Math.log10(step)) - 1);
+  return `use a step of at least ${+(Math.ceil(step / e) * e).toPrecision(2)}° over this range, or a shorter range`;
 }
 
 export function sweep(pattern: Pattern, options: SweepOptions, hooks: SweepHooks = {}): SweepResult {
@@ -204,6 +256,9 @@ export class SweepRun {
   private readonly targets: number[];
   private nextTarget = 0;
   private readonly samples: SweepSample[] = [];
+  private readonly keep: boolean;
+  private count = 0;
+  private lastSample?: SweepSample;
   private readonly events: SweepEvent[] = [];
   private readonly messages: Message[] = [];
   private status: SweepStatus = 'complete';
@@ -240,6 +295,7 @@ export class SweepRun {
   private sigmaHistory: { s: number; sigma: number }[] = [];
   private readonly rowsTmp: Float64Array;
 
+  /** `hooks.onSample` is called with every sample as it is recorded (k = 0, 1, …), the first ones during construction. */
   constructor(readonly pattern: Pattern, readonly options: SweepOptions, private readonly hooks: SweepHooks = {}) {
     const o = options;
     this.holdSet = new Set((o.holds ?? []).map((h) => h.crease));
@@ -248,25 +304,47 @@ export class SweepRun {
     this.d = this.problem.unknownOf[o.drive] ?? -1;
     this.n = this.problem.unknownCount;
     this.rowsTmp = new Float64Array(3 * this.sys.blockCount);
-    this.targets = o.samples ? [...o.samples] : sampleValues(o.from, o.to, o.step ?? 1 / DEG);
+    this.keep = o.keepSamples ?? true;
+    // the sample list is counted against the request limits before it is made
+    const basic = this.validate();
+    const planned = basic ? {} : this.planTargets();
+    this.targets = planned.values ?? [];
     this.total = this.targets.length;
     this.conditionEvery = Math.max(0, Math.round(o.conditionEvery ?? defaultConditionEvery(this.n)));
     if (this.conditionEvery === Infinity) {
       this.messages.push({ severity: 'info', code: 'condition-last-only', text: `With ${this.n} free creases the condition number is evaluated at the last sample only by default (each evaluation costs a factorization); ask for it every k samples with the condition option. Near-singular flags come from every vertex's own pivots at every sample.` });
     }
-    const problem = this.validate();
+    const problem = basic ?? planned.message;
     if (problem) {
-      this.fail('invalid-sweep', problem);
+      this.messages.push(problem);
+      this.status = 'failed';
+      this.finished = true;
       return;
     }
     this.setUp();
   }
 
   get done(): number {
-    return this.samples.length;
+    return this.count;
   }
 
-  private validate(): string | undefined {
+
+  private planTargets(): { values?: number[]; message?: Message } {
+    const o = this.options;
+    const creases = this.pattern.creases.length;
+    if (o.samples) {
+      const tooMany = tableSizeMessage('too-many-samples', 'samples', 'samples', o.samples.length, creases, 'ask for fewer samples');
+      return tooMany ? { message: tooMany } : { values: [...o.samples] };
+    }
+    return sampleValues(o.from, o.to, o.step!, creases);
+  }
+
+  private validate(): Message | undefined {
+    const m = this.check();
+    return m ? { severity: 'error', code: 'invalid-sweep', text: m } : undefined;
+  }
+
+  private check(): string | undefined {
     const o = this.options;
     const c = this.pattern.creases[o.drive];
     if (!c) return `The drive is not a crease of the pattern.`;
@@ -278,13 +356,15 @@ export class SweepRun {
       if (!Number.isFinite(h.value) || Math.abs(h.value) > Math.PI + 1e-12) return `The held value of ${hc.label} is outside −180° … 180°.`;
     }
     for (const v of [o.from, o.to, ...(o.samples ?? [])]) {
-      if (!Number.isFinite(v) || Math.abs(v) > Math.PI + 1e-12) return `A drive value (${(v * DEG).toFixed(6)}°) is outside −180° … 180°.`;
+      if (!Number.isFinite(v) || Math.abs(v) > Math.PI + 1e-12) return `A drive value (${Number.isFinite(v) ? degreesText(v) : String(v)}°) is outside −180° … 180°.`;
     }
     if (!o.samples && !(o.step !== undefined && o.step > 0 && Number.isFinite(o.step))) return 'The step must be a positive number.';
-    if (this.targets.length > MAX_SAMPLES) return `${this.targets.length} samples is more than the ${MAX_SAMPLES} a sweep takes; use a larger step.`;
-    if (this.targets.length === 0) return 'No sample values were asked for.';
-    for (let i = 2; i < this.targets.length; i++) {
-      if (Math.sign(this.targets[i] - this.targets[i - 1]) !== Math.sign(this.targets[1] - this.targets[0])) return 'Sample values must run one way, from → to.';
+    if (o.samples) {
+      if (o.samples.length === 0) return 'No sample values were asked for.';
+      const dir = Math.sign(o.samples[1] - o.samples[0]);
+      for (let i = 2; i < o.samples.length; i++) {
+        if (Math.sign(o.samples[i] - o.samples[i - 1]) !== dir) return 'Sample values must run one way, from → to.';
+      }
     }
     if (o.start && o.start.length !== this.pattern.creases.length) return 'The start state does not have one angle per crease.';
     return undefined;
@@ -377,7 +457,7 @@ export class SweepRun {
       const drives = [...(o.holds ?? []), { crease: o.drive, value: first }];
       const report = solveDrives(this.pattern, drives);
       if (!report.solutions.length) {
-        this.fail('start-unreachable', `No state has ${this.label} = ${(first * DEG).toFixed(6)}° with the held values (${report.status}).`);
+        this.fail('start-unreachable', `No state has ${this.label} = ${degreesText(first)}° with the held values (${report.status}).`);
         return;
       }
       let k = (o.solution ?? 0) - 1;
@@ -659,8 +739,8 @@ export class SweepRun {
   advance(): void {
     if (this.finished) return;
     if (this.nextTarget >= this.targets.length) { this.finish(); return; }
-    const before = this.samples.length;
-    for (let guard = 0; guard < 100000 && !this.finished && this.samples.length === before; guard++) {
+    const before = this.count;
+    for (let guard = 0; guard < 100000 && !this.finished && this.count === before; guard++) {
       if (this.method === 'propagate') this.propagationStep();
       else this.continuationStep();
       if (this.nextTarget >= this.targets.length && !this.finished) this.finish();
@@ -671,13 +751,13 @@ export class SweepRun {
   stop(): void {
     if (this.finished) return;
     this.status = 'stopped';
-    this.messages.push({ severity: 'warning', code: 'stopped', text: `Stopped after ${this.samples.length} of ${this.total} samples; the samples so far are complete and exact.` });
+    this.messages.push({ severity: 'warning', code: 'stopped', text: `Stopped after ${this.count} of ${this.total} samples; the samples so far are complete and exact.` });
     this.finished = true;
   }
 
   private finish(): void {
     this.finished = true;
-    if (this.status === 'complete' && this.samples.length < this.total) this.status = 'partial';
+    if (this.status === 'complete' && this.count < this.total) this.status = 'partial';
   }
 
   result(): SweepResult {
@@ -689,6 +769,7 @@ export class SweepRun {
       messages: this.messages,
       status: this.status,
       requested: this.total,
+      recorded: this.count,
       method: methods.length > 1 ? 'mixed' : methods[0] ?? this.method,
       ...(this.branchInfo ? { branch: this.branchInfo } : {}),
       conditionEvery: this.conditionEvery,
@@ -701,8 +782,10 @@ export class SweepRun {
   }
 
   private pushSample(s: SweepSample): void {
-    this.samples.push(s);
-    if (this.hooks.onSample?.(s) === 'stop' && !this.finished) {
+    if (this.keep) this.samples.push(s);
+    this.lastSample = s;
+    const k = this.count++;
+    if (this.hooks.onSample?.(s, k) === 'stop' && !this.finished) {
       // the caller's check ends the path here (its own event says why)
       if (this.status === 'complete') this.status = 'partial';
       this.finished = true;
@@ -738,7 +821,7 @@ export class SweepRun {
     if (!solved) {
       // out of reach of some vertex (a turning point of the drive, or a state the mesh cannot take):
       // continuation from the last good state finds out which
-      this.messages.push({ severity: 'info', code: 'propagation-stopped', text: `Vertex-by-vertex propagation found no state at ${this.label} = ${(s * DEG).toFixed(4)}°; continuing with the general solver from ${(last.s * DEG).toFixed(4)}°.` });
+      this.messages.push({ severity: 'info', code: 'propagation-stopped', text: `Vertex-by-vertex propagation found no state at ${this.label} = ${degreesText(s)}°; continuing with the general solver from ${degreesText(last.s)}°.` });
       this.switchToContinuation();
       return;
     }
@@ -906,7 +989,7 @@ export class SweepRun {
     let h = this.h;
     for (let attempt = 0; attempt < 60; attempt++) {
       if (h < H_MIN) {
-        this.end('corrector-failed', p.drive, `The corrector failed at ${this.label} = ${(p.drive * DEG).toFixed(6)}°: no closed state a step of ${H_MIN} rad further along the path. The last good state is kept.`, p.y);
+        this.end('corrector-failed', p.drive, `The corrector failed at ${this.label} = ${degreesText(p.drive)}°: no closed state a step of ${H_MIN} rad further along the path. The last good state is kept.`, p.y);
         return;
       }
       const c = this.correct(p, h);
@@ -929,9 +1012,9 @@ export class SweepRun {
         this.collectSamples(p, tp, true);
         if (this.finished) return;
         if (this.nextTarget < this.targets.length) {
-          this.end('turning-point', tp.drive, `Turning point at ${this.label} = ${(tp.drive * DEG).toFixed(6)}°: the drive reverses there, so ${this.label} cannot go ${this.travel > 0 ? 'above' : 'below'} that value on this branch.`, tp.y);
+          this.end('turning-point', tp.drive, `Turning point at ${this.label} = ${degreesText(tp.drive)}°: the drive reverses there, so ${this.label} cannot go ${this.travel > 0 ? 'above' : 'below'} that value on this branch.`, tp.y);
         } else {
-          this.events.push({ type: 'turning-point', drive: tp.drive, text: `Turning point at ${this.label} = ${(tp.drive * DEG).toFixed(6)}°.`, angles: Float64Array.from(tp.y) });
+          this.events.push({ type: 'turning-point', drive: tp.drive, text: `Turning point at ${this.label} = ${degreesText(tp.drive)}°.`, angles: Float64Array.from(tp.y) });
         }
         return;
       }
@@ -940,7 +1023,7 @@ export class SweepRun {
       this.point = next;
       return;
     }
-    this.end('corrector-failed', p.drive, `The corrector failed at ${this.label} = ${(p.drive * DEG).toFixed(6)}°; the last good state is kept.`, p.y);
+    this.end('corrector-failed', p.drive, `The corrector failed at ${this.label} = ${degreesText(p.drive)}°; the last good state is kept.`, p.y);
   }
 
   /**
@@ -999,7 +1082,7 @@ export class SweepRun {
       const solved = this.solveFixed(s, p, q);
       if (!solved) {
         if (toTurning) return false;
-        this.end('corrector-failed', s, `No closed state was found at ${this.label} = ${(s * DEG).toFixed(6)}° between two points of the path; the last good state is kept.`, p.y);
+        this.end('corrector-failed', s, `No closed state was found at ${this.label} = ${degreesText(s)}° between two points of the path; the last good state is kept.`, p.y);
         return false;
       }
       const cond = this.conditionAt('fixed', s);
@@ -1199,10 +1282,10 @@ export class SweepRun {
     if (this.nextTarget >= this.targets.length) { this.finish(); return true; }
     if (hit.type === 'hinge-limit') {
       const lim = c.limit!;
-      const which = loX[hit.crease] > 0 && lim.max !== undefined ? `maximum ${(lim.max * DEG).toFixed(4)}°` : `minimum ${((lim.min ?? 0) * DEG).toFixed(4)}°`;
-      this.end('hinge-limit', lo, `Crease ${c.label} reaches its hinge limit (${which}) at ${this.label} = ${(lo * DEG).toFixed(6)}°; the path ends there.`, loX, { crease: hit.crease });
+      const which = loX[hit.crease] > 0 && lim.max !== undefined ? `maximum ${degreesText(lim.max)}°` : `minimum ${degreesText(lim.min ?? 0)}°`;
+      this.end('hinge-limit', lo, `Crease ${c.label} reaches its hinge limit (${which}) at ${this.label} = ${degreesText(lo)}°; the path ends there.`, loX, { crease: hit.crease });
     } else {
-      this.end('folded-flat', lo, `Crease ${c.label} folds flat (±180°) at ${this.label} = ${(lo * DEG).toFixed(6)}°: panels meet and the path ends there.`, loX, { crease: hit.crease });
+      this.end('folded-flat', lo, `Crease ${c.label} folds flat (±180°) at ${this.label} = ${degreesText(lo)}°: panels meet and the path ends there.`, loX, { crease: hit.crease });
     }
     return true;
   }
@@ -1245,7 +1328,7 @@ export class SweepRun {
     for (const c of this.pattern.creases) if (c.assignment !== 'B' && c.assignment !== 'F' && Math.abs(x[c.index]) >= Math.PI - 1e-4) flat.push(c.index);
     if (!flat.length) return;
     const names = flat.slice(0, 6).map((c) => this.pattern.creases[c].label).join(', ') + (flat.length > 6 ? ` and ${flat.length - 6} more` : '');
-    const text = `${flat.length} crease(s) fold flat (±180°) at ${this.label} = ${(s * DEG).toFixed(6)}° (${names}): panels meet${this.nextTarget < this.targets.length ? ' and the path ends there' : ''}.`;
+    const text = `${flat.length} crease(s) fold flat (±180°) at ${this.label} = ${degreesText(s)}° (${names}): panels meet${this.nextTarget < this.targets.length ? ' and the path ends there' : ''}.`;
     if (this.nextTarget < this.targets.length) this.end('folded-flat', s, text, x, { crease: flat[0] });
     else this.events.push({ type: 'folded-flat', drive: s, text, angles: Float64Array.from(x), crease: flat[0] });
   }
@@ -1255,7 +1338,7 @@ export class SweepRun {
    * the first and last). 'prop' reads the propagation's Jacobian, 'fixed' the problem's.
    */
   private conditionAt(which: 'prop' | 'fixed', s: number): ReturnType<ConditionTracker['estimate']> | undefined {
-    const k = this.samples.length;
+    const k = this.count;
     const lastOne = this.nextTarget === this.targets.length - 1;
     if (this.conditionEvery === 0) return undefined;
     if (!lastOne && (this.conditionEvery === Infinity || k % this.conditionEvery !== 0)) return undefined;
@@ -1307,7 +1390,7 @@ export class SweepRun {
     const at = fc.sigma < fd.sigma ? c : d;
     // re-evaluate at the last sample so the tracker continues from it
     solveAt(s);
-    if (this.method !== 'propagate') this.problem.evaluate(this.samples[this.samples.length - 1]?.angles ?? best.x!, true);
+    if (this.method !== 'propagate') this.problem.evaluate(this.lastSample?.angles ?? best.x!, true);
     tracker.estimate();
     if (!best.x || !(best.sigma < 1e-6)) return;
     let branches: Branch[] | undefined;
@@ -1321,7 +1404,7 @@ export class SweepRun {
     this.events.push({
       type: 'branch-point',
       drive: at,
-      text: `Branch point at ${this.label} = ${(at * DEG).toFixed(6)}°: the Jacobian loses rank there${raysText}. The sweep stays on its own curve; start a new sweep from this state to follow another.`,
+      text: `Branch point at ${this.label} = ${degreesText(at)}°: the Jacobian loses rank there${raysText}. The sweep stays on its own curve; start a new sweep from this state to follow another.`,
       angles: Float64Array.from(best.x),
       ...(branches ? { branches } : {}),
     });
