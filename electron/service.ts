@@ -20,6 +20,7 @@ import {
 } from './contract';
 import { describeWriteError, readTextFile, writeFileAtomic, type RecentFiles, type RecoveryStore } from './files';
 import type { SolverClient } from './solver-client';
+import { ApprovedFiles } from './approved-files';
 import type { LaneOutcome } from './worker-client';
 
 export interface FileFilter {
@@ -110,8 +111,8 @@ interface LoadAnswer {
 
 export function createService(deps: ServiceDeps) {
   const { solver, host, recovery, recent, startup } = deps;
-  /** Files this window may write without asking: ones the person opened or chose to save to. */
-  const approved = new Set<string>();
+  /** Files this window may write without asking: ones main itself got from a dialog, the command line or its recent list. */
+  const approved = new ApprovedFiles(recent);
 
   async function openFile(filePath: string, extra: { computePath?: boolean; asSample?: boolean } = {}): Promise<OpenResult> {
     const fileName = path.basename(filePath);
@@ -146,7 +147,6 @@ export function createService(deps: ServiceDeps) {
     } catch (err) {
       return { status: 'failed', message: describeWriteError(filePath, err) };
     }
-    approved.add(filePath);
     return { status: 'saved', filePath, fileName: path.basename(filePath) };
   }
 
@@ -201,7 +201,8 @@ export function createService(deps: ServiceDeps) {
     },
 
     async 'doc:save'({ project, filePath, saveAs, suggestedName }) {
-      let target = !saveAs && filePath && approved.has(filePath) && !/\.fold$/i.test(filePath) ? filePath : null;
+      // the page's filePath is only a hint: a path main never approved makes Save ask, as Save As does
+      let target = !saveAs && filePath && !/\.fold$/i.test(filePath) && (await approved.has(filePath)) ? filePath : null;
       if (!target) {
         target = await host.chooseSaveFile({ title: 'Save project', defaultName: `${baseName(suggestedName)}.hingeplan.json`, filters: [PROJECT_FILTER] });
         if (!target) return { status: 'canceled' };
@@ -209,6 +210,8 @@ export function createService(deps: ServiceDeps) {
       const text = unwrap(await solver.run<string>('interactive', 'write-project', { project }));
       const result = await writeTo(target, text);
       if (result.status === 'saved') {
+        // a project file main wrote where the person said: the next Save goes there without asking
+        approved.add(target);
         await recent.add(target).catch(() => undefined);
         host.recentChanged();
       }
@@ -227,7 +230,7 @@ export function createService(deps: ServiceDeps) {
       let file: { name: string; text?: string } | undefined;
       if (kind === 'angle-table' || kind === 'schedule') {
         file = { name: filePath ? path.basename(filePath) : suggestedName };
-        if (filePath && approved.has(filePath)) {
+        if (filePath && (await approved.has(filePath))) {
           const read = await readTextFile(filePath);
           if (read.ok) file.text = read.text;
         }
@@ -239,7 +242,7 @@ export function createService(deps: ServiceDeps) {
     },
 
     async 'doc:state'(state) {
-      host.documentState(state);
+      host.documentState({ ...state, filePath: (await approved.has(state.filePath)) ? state.filePath : null });
       return { ok: true };
     },
 
@@ -248,6 +251,11 @@ export function createService(deps: ServiceDeps) {
     },
 
     async 'recovery:write'({ id, project, documentName, originalPath }) {
+      // the copy remembers where the document lives; that must be a file main approved, or restoring it
+      // would let the page choose a file that Save then writes without a dialog
+      if (originalPath !== null && !(await approved.has(originalPath))) {
+        throw new ServiceError('not-approved', `The recovery copy of ${documentName} was not kept: it names a file this window did not open or save.`);
+      }
       await recovery.write(id, project, documentName, originalPath);
       return { ok: true };
     },
@@ -260,15 +268,20 @@ export function createService(deps: ServiceDeps) {
     async 'recovery:restore'({ id }) {
       const item = await recovery.read(id);
       if (!item) return { status: 'failed', fileName: id, messages: [{ severity: 'error', code: 'recovery-missing', text: 'The recovery copy is gone or damaged.' }] };
-      if (item.entry.originalPath) approved.add(item.entry.originalPath);
+      // written by main, but check again: a copy from an older version or another hand gets no file to save over
+      const original = (await approved.has(item.entry.originalPath)) ? item.entry.originalPath : null;
+      const messages: MessageDto[] = [{ severity: 'info', code: 'recovered', text: `Recovered the unsaved edits of ${item.entry.documentName} from ${item.entry.savedAt}.` }];
+      if (item.entry.originalPath && !original) {
+        messages.push({ severity: 'warning', code: 'recovered-unapproved-path', text: `The copy names ${item.entry.originalPath}, which this program did not open or save recently; saving asks where.` });
+      }
       return {
         status: 'opened',
         document: {
           project: item.project,
-          filePath: item.entry.originalPath,
+          filePath: original,
           fileName: item.entry.documentName,
           format: 'project',
-          messages: [{ severity: 'info', code: 'recovered', text: `Recovered the unsaved edits of ${item.entry.documentName} from ${item.entry.savedAt}.` }],
+          messages,
           recovered: true,
         },
       };
