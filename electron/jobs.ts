@@ -41,6 +41,7 @@ import {
   type SolveResultDto,
 } from './contract';
 import { JobFailure } from './worker-protocol';
+import { decodeUtf8 } from './text-bytes';
 import { LruMap } from './lru';
 import { runSteps, type SweepResult } from '../solver/paths/sweep';
 import { angleTable, scheduleTable, type TableHeader } from '../solver/outputs/table';
@@ -95,11 +96,15 @@ function messages(list: { severity: string; code: string; text: string; where?: 
 
 // ---------- load and save ----------
 
-const LoadRequest = z.object({ text: z.string(), fileName: z.string().max(4096) });
+/** A file as main read it: its bytes (bounded by main before reading), decoded here as the readers take them. */
+const LoadRequest = z.object({ bytes: z.instanceof(Uint8Array), fileName: z.string().max(4096) });
 
 export function loadJob(_state: JobState, payload: unknown) {
-  const { text, fileName } = parse(LoadRequest, payload, 'load');
-  const loaded = loadPatternText(text, fileName);
+  const { bytes, fileName } = parse(LoadRequest, payload, 'load');
+  const decoded = decodeUtf8(bytes, fileName);
+  const format = /\.fold$/i.test(fileName) ? ('fold' as const) : ('project' as const);
+  if (!decoded.ok) return { ok: false as const, format, messages: [{ severity: 'error' as const, code: decoded.code, text: decoded.message, where: { line: decoded.line } }] };
+  const loaded = loadPatternText(decoded.text, fileName);
   const msgs = messages(loaded.messages);
   // a file whose pattern does not build cannot be shown; its messages say why and where
   if (!loaded.project || !loaded.pattern) return { ok: false as const, format: loaded.format ?? 'project', messages: msgs };
@@ -245,8 +250,8 @@ const ExportRequest = z.object({
   key: z.string(),
   pathId: z.string().optional(),
   options: ExportOptionsSchema,
-  /** tables: the document's file name and its text on disk (absent when never saved), and the program version */
-  file: z.object({ name: z.string().max(4096), text: z.string().optional() }).optional(),
+  /** tables: the document's file name and its bytes on disk (absent when never saved), and the program version */
+  file: z.object({ name: z.string().max(4096), bytes: z.instanceof(Uint8Array).optional() }).optional(),
   version: z.string().max(100).optional(),
 });
 

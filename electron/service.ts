@@ -18,7 +18,7 @@ import {
   type ResponseOf,
   type WriteResult,
 } from './contract';
-import { describeWriteError, readTextFile, writeFileAtomic, type RecentFiles, type RecoveryStore } from './files';
+import { describeWriteError, readFileBytes, removeStaleTemps, writeFileAtomic, type RecentFiles, type RecoveryStore } from './files';
 import type { SolverClient } from './solver-client';
 import { ApprovedFiles } from './approved-files';
 import type { LaneOutcome } from './worker-client';
@@ -116,11 +116,13 @@ export function createService(deps: ServiceDeps) {
 
   async function openFile(filePath: string, extra: { computePath?: boolean; asSample?: boolean } = {}): Promise<OpenResult> {
     const fileName = path.basename(filePath);
-    const read = await readTextFile(filePath);
+    const read = await readFileBytes(filePath);
     if (!read.ok) {
       return { status: 'failed', fileName, messages: [{ severity: 'error', code: read.code, text: read.message }] };
     }
-    const loaded = unwrap(await solver.run<LoadAnswer>('interactive', 'load', { text: read.text, fileName }));
+    // what an interrupted save of this file left beside it (the app's own temporary files only)
+    if (!extra.asSample) await removeStaleTemps(filePath);
+    const loaded = unwrap(await solver.run<LoadAnswer>('interactive', 'load', { bytes: read.bytes, fileName }));
     if (!loaded.ok || !loaded.project) return { status: 'failed', fileName, messages: loaded.messages };
     if (!extra.asSample) {
       approved.add(filePath);
@@ -226,13 +228,13 @@ export function createService(deps: ServiceDeps) {
         filters: [spec.filter],
       });
       if (!target) return { status: 'canceled' };
-      // a table's header names the document's file and hashes its text: read only a file this window opened or saved
-      let file: { name: string; text?: string } | undefined;
+      // a table's header names the document's file and hashes its bytes: read only a file main approved
+      let file: { name: string; bytes?: Uint8Array } | undefined;
       if (kind === 'angle-table' || kind === 'schedule') {
         file = { name: filePath ? path.basename(filePath) : suggestedName };
         if (filePath && (await approved.has(filePath))) {
-          const read = await readTextFile(filePath);
-          if (read.ok) file.text = read.text;
+          const read = await readFileBytes(filePath);
+          if (read.ok) file.bytes = read.bytes;
         }
       }
       const outcome = await solver.run<{ data: string }>('long', 'export', { kind, project, key, pathId, options, file, version: startup.version });

@@ -3,6 +3,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { mkdtempSync, promises as fs, readdirSync, readFileSync } from 'node:fs';
 import os from 'node:os';
+import { spawn } from 'node:child_process';
 import path from 'node:path';
 import { createService, type DialogHost } from '../../electron/service';
 import { SolverClient } from '../../electron/solver-client';
@@ -142,6 +143,36 @@ describe('main-process handlers', () => {
     await fs.writeFile(binary, Buffer.from([0xff, 0xfe, 0x00, 0x80]));
     host.open.push(binary);
     expect(await call('doc:open', { format: 'fold' })).toMatchObject({ status: 'failed', messages: [{ code: 'not-text' }] });
+  });
+
+  it('refuses a file over the readers’ limit before reading it, and names the line of a byte that is not UTF-8', async () => {
+    const big = path.join(tmp, 'huge.hingeplan.json');
+    await fs.writeFile(big, '');
+    await fs.truncate(big, 40 * 1024 * 1024);
+    host.open.push(big);
+    const r = (await call('doc:open', { format: 'any' })) as { status: string; messages: { code: string; text: string }[] };
+    expect(r).toMatchObject({ status: 'failed', messages: [{ code: 'file-too-large' }] });
+    expect(r.messages[0].text).toContain('32 MiB');
+    const latin1 = path.join(tmp, 'latin1.hingeplan.json');
+    await fs.writeFile(latin1, Buffer.concat([Buffer.from('{\n  "name": "Gr'), Buffer.from([0xf6]), Buffer.from('\u00dfe"\n}\n')]));
+    host.open.push(latin1);
+    const bad = (await call('doc:open', { format: 'any' })) as { status: string; messages: { code: string; text: string; where?: { line?: number } }[] };
+    expect(bad).toMatchObject({ status: 'failed', messages: [{ code: 'not-text', where: { line: 2 } }] });
+    expect(bad.messages[0].text).toMatch(/latin1\.hingeplan\.json is not UTF-8 text: byte \d+ \(line 2/);
+  });
+
+  it('clears what an interrupted save left beside a file when it is opened', async () => {
+    const dir = path.join(tmp, 'leftovers');
+    await fs.mkdir(dir);
+    const file = path.join(dir, 'coupon.hingeplan.json');
+    await fs.copyFile(coupon, file);
+    const child = spawn('true');
+    await new Promise((r) => child.once('exit', r));
+    const left = path.join(dir, `.coupon.hingeplan.json.hingeplan-save-${child.pid}-0a1b.tmp`);
+    await fs.writeFile(left, '{"format": "hingeplan-pro');
+    host.open.push(file);
+    expect(await call('doc:open', {})).toMatchObject({ status: 'opened' });
+    expect(readdirSync(dir)).toEqual(['coupon.hingeplan.json']);
   });
 
   it('opens only recent files by path: the page cannot name any file to read', async () => {
