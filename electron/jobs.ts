@@ -42,6 +42,8 @@ import {
 } from './contract';
 import { JobFailure } from './worker-protocol';
 import { decodeUtf8 } from './text-bytes';
+import { ExportSweepSchema, exportPath } from './export-path';
+import { checkAngleTableSize, checkScheduleSize } from './work-limits';
 import { LruMap } from './lru';
 import { runSteps, type SweepResult } from '../solver/paths/sweep';
 import { angleTable, scheduleTable, type TableHeader } from '../solver/outputs/table';
@@ -70,7 +72,7 @@ export interface StoredPath {
 }
 
 export function createJobState(): JobState {
-  return { patterns: new LruMap(4), paths: new LruMap(6) };
+  return { patterns: new LruMap(4), paths: new LruMap(2) };
 }
 
 function parse<T extends z.ZodType>(schema: T, payload: unknown, what: string): z.output<T> {
@@ -248,7 +250,8 @@ const ExportRequest = z.object({
   kind: ExportKindSchema,
   project: ProjectSchema,
   key: z.string(),
-  pathId: z.string().optional(),
+  /** tables: the sweep whose path they are written from (see export-path.ts) */
+  sweep: ExportSweepSchema.optional(),
   options: ExportOptionsSchema,
   /** tables: the document's file name and its bytes on disk (absent when never saved), and the program version */
   file: z.object({ name: z.string().max(4096), bytes: z.instanceof(Uint8Array).optional() }).optional(),
@@ -279,9 +282,7 @@ export function exportJob(state: JobState, payload: unknown, ctx?: JobContext): 
       return { data: JSON.stringify(shapeToJSON(pattern, foldedShape(pattern, angles(), base)), null, 1) + '\n', extension: 'json' };
     case 'angle-table':
     case 'schedule': {
-      if (!req.pathId) throw new JobFailure('no-path', 'compute a path first: tables are written from the computed path');
-      const stored = state.paths.get(req.pathId);
-      if (!stored || stored.key !== req.key) throw new JobFailure('path-unknown', 'the computed path is no longer available; compute it again');
+      const stored = exportPath(state, pattern, req.key, req.sweep, req.kind === 'angle-table', ctx);
       const file = req.file ?? { name: 'pattern.hingeplan.json' };
       const header = (command: string) => appTableHeader(pattern, req.project, file, req.version ?? 'unknown', command);
       return req.kind === 'angle-table' ? writeAngleTable(pattern, stored, req.options, file.name, header) : writeSchedule(pattern, stored, req.options, file.name, header, ctx);
@@ -310,6 +311,8 @@ function heldDrives(pattern: Pattern, path: StoredPath): Drive[] {
 
 function writeAngleTable(pattern: Pattern, path: StoredPath, options: Options, fileName: string, header: (command: string) => TableHeader): ExportData {
   const creases = chosenCreases(pattern, options.creases);
+  const columns = creases?.length ?? pattern.creases.filter((c) => c.assignment !== 'B').length;
+  checkAngleTableSize((path.raw as SweepResult).samples.length, columns, options.rates);
   const text = angleTable(pattern, path.raw as SweepResult, header(tableCommand(pattern, fileName, path.request, options)), heldDrives(pattern, path), {
     format: options.format,
     rates: options.rates,
@@ -331,6 +334,7 @@ function writeSchedule(pattern: Pattern, path: StoredPath, options: Options, fil
     ...(options.maxRateDegPerS !== undefined ? { maxRate: options.maxRateDegPerS * RAD } : {}),
     ...(options.maxAccelDegPerS2 !== undefined ? { maxAcceleration: options.maxAccelDegPerS2 * RAD } : {}),
   };
+  checkScheduleSize(options.timeS, options.dtS, options.rows, pattern.creases.length);
   const timed = options.profile !== 'constant';
   const holds = heldDrives(pattern, path);
   const scheduleOptions: ScheduleOptions = {

@@ -8,7 +8,8 @@ import { sweep, type SweepEvent, type SweepOptions, type SweepResult } from '../
 import { flatBranches, type Branch, type BranchAnalysis } from '../solver/paths/branches';
 import { DriveSpecSchema, SweepOptionsSchema, finiteOrNull, type BranchDto, type BranchesResultDto, type PathResultDto } from './contract';
 import { JobFailure, type JobContext } from './worker-protocol';
-import { patternFor, resolveOrFail, type JobState } from './jobs';
+import { patternFor, resolveOrFail, type JobState, type StoredPath } from './jobs';
+import { checkPathSize } from './work-limits';
 
 const DEG = 180 / Math.PI;
 const RAD = Math.PI / 180;
@@ -94,11 +95,20 @@ export function sweepJob(state: JobState, payload: unknown, ctx: JobContext): Pa
   if (!r.success) throw new JobFailure('bad-request', 'sweep: malformed request');
   const { key, pathId, options: o } = r.data;
   const pattern = patternFor(state, key);
+  const computed = computePath(pattern, key, o, ctx);
+  if ('messages' in computed) return { pathId, driveCrease: -1, driveLabel: o.drive, samples: [], events: [], messages: computed.messages, complete: false };
+  return pathDto(pattern, pathId, computed.raw as SweepResult);
+}
+
+/**
+ * The path of a sweep request, solved here: what the window is sent, and what a table export writes from
+ * (the export worker computes it again from the same request, to the same numbers).
+ */
+export function computePath(pattern: Pattern, key: string, o: z.output<typeof SweepOptionsSchema>, ctx: JobContext): StoredPath | { messages: BranchesResultDto['messages'] } {
   const drive = resolveOrFail(pattern, [{ crease: o.drive, angleDeg: o.fromDeg }]);
   const held = resolveOrFail(pattern, o.held);
-  if (drive.failed || held.failed) {
-    return { pathId, driveCrease: -1, driveLabel: o.drive, samples: [], events: [], messages: [...drive.messages, ...held.messages], complete: false };
-  }
+  if (drive.failed || held.failed) return { messages: [...drive.messages, ...held.messages] };
+  checkPathSize(o.fromDeg, o.toDeg, o.stepDeg, pattern.creases.length);
   const samples = degreeSamples(o.fromDeg, o.toDeg, o.stepDeg);
   const options: SweepOptions = {
     drive: drive.drives[0].crease,
@@ -110,6 +120,5 @@ export function sweepJob(state: JobState, payload: unknown, ctx: JobContext): Pa
     ...(o.startAnglesDeg ? { start: Float64Array.from(o.startAnglesDeg, (a) => a * RAD) } : {}),
   };
   const result = sweep(pattern, options, { onProgress: (done, total) => ctx.progress(done, total), shouldStop: () => ctx.shouldStop() });
-  if (result.status !== 'failed' && result.samples.length) state.paths.set(pathId, { key, driveCrease: result.drive, raw: result, request: o });
-  return pathDto(pattern, pathId, result);
+  return { key, driveCrease: result.drive, raw: result, request: o };
 }

@@ -19,9 +19,11 @@ import {
   type WriteResult,
 } from './contract';
 import { describeWriteError, readFileBytes, removeStaleTemps, writeFileAtomic, type RecentFiles, type RecoveryStore } from './files';
-import type { SolverClient } from './solver-client';
+import type { LaneName, SolverClient } from './solver-client';
+import { RequestRegistry, type Request } from './requests';
+import { LruMap } from './lru';
 import { ApprovedFiles } from './approved-files';
-import type { LaneOutcome } from './worker-client';
+import type { LaneOutcome, RunOptions } from './worker-client';
 
 export interface FileFilter {
   name: string;
@@ -102,6 +104,16 @@ function jobAnswer<T>(outcome: LaneOutcome<T>): { status: 'done'; value: T } | {
   return outcome;
 }
 
+/** A request the page cancelled (or a newer one replaced) while main was working on it. */
+class Stopped extends Error {}
+
+/** The value of a job, or Stopped when it was cancelled or superseded; a failure is the caller's to show. */
+function valueOf<T>(outcome: LaneOutcome<T>): T {
+  if (outcome.status === 'done') return outcome.value;
+  if (outcome.status === 'failed') throw new ServiceError(outcome.error.code, outcome.error.message);
+  throw new Stopped();
+}
+
 interface LoadAnswer {
   ok: boolean;
   format: 'project' | 'fold';
@@ -113,8 +125,31 @@ export function createService(deps: ServiceDeps) {
   const { solver, host, recovery, recent, startup } = deps;
   /** Files this window may write without asking: ones main itself got from a dialog, the command line or its recent list. */
   const approved = new ApprovedFiles(recent);
+  const requests = new RequestRegistry();
+  /** The requests of the paths the page was sent, by path id: table exports solve them again in their own lane. */
+  const sweeps = new LruMap<string, { key: string; options: ParsedRequestOf<'sweep'>['options'] }>(8);
 
-  async function openFile(filePath: string, extra: { computePath?: boolean; asSample?: boolean } = {}): Promise<OpenResult> {
+  /** Run `fn` as one request under the page's id (or a new one); Stopped becomes the channel's "cancelled" answer. */
+  async function asRequest<T>(id: string | undefined, whenStopped: T, fn: (r: Request) => Promise<T>): Promise<T> {
+    const request = requests.begin(id);
+    if (!request) throw new ServiceError('bad-request', `the request id ${id} is already in use`);
+    try {
+      return await fn(request);
+    } catch (err) {
+      if (err instanceof Stopped) return whenStopped;
+      throw err;
+    } finally {
+      requests.end(request);
+    }
+  }
+
+  /** A worker job of a request; never started once the request is cancelled. */
+  function job<T>(request: Request, lane: LaneName, kind: string, payload: { key?: string } & Record<string, unknown>, options: Omit<RunOptions, 'requestId'> = {}): Promise<LaneOutcome<T>> {
+    if (request.cancelled) return Promise.resolve({ status: 'cancelled' });
+    return solver.run<T>(lane, kind, payload, { ...options, requestId: request.id });
+  }
+
+  async function openFile(request: Request, filePath: string, extra: { computePath?: boolean; asSample?: boolean } = {}): Promise<OpenResult> {
     const fileName = path.basename(filePath);
     const read = await readFileBytes(filePath);
     if (!read.ok) {
@@ -122,7 +157,7 @@ export function createService(deps: ServiceDeps) {
     }
     // what an interrupted save of this file left beside it (the app's own temporary files only)
     if (!extra.asSample) await removeStaleTemps(filePath);
-    const loaded = unwrap(await solver.run<LoadAnswer>('interactive', 'load', { bytes: read.bytes, fileName }));
+    const loaded = valueOf(await job<LoadAnswer>(request, 'interactive', 'load', { bytes: read.bytes, fileName }));
     if (!loaded.ok || !loaded.project) return { status: 'failed', fileName, messages: loaded.messages };
     if (!extra.asSample) {
       approved.add(filePath);
@@ -152,12 +187,15 @@ export function createService(deps: ServiceDeps) {
     return { status: 'saved', filePath, fileName: path.basename(filePath) };
   }
 
+  const progressTo = (requestId: string | undefined) =>
+    requestId ? (done: number, total: number, phase?: string) => host.emit('job:progress', { requestId, done, total, ...(phase ? { phase } : {}) }) : undefined;
+
   const handlers: Handlers = {
     async 'app:startup'() {
       const startupMessages: MessageDto[] = [];
       let document = null;
       const target = startup.openPath ?? startup.samplePath;
-      const opened = await openFile(target, { computePath: true, asSample: !startup.openPath });
+      const opened = await asRequest<OpenResult>(undefined, { status: 'canceled' }, (r) => openFile(r, target, { computePath: true, asSample: !startup.openPath }));
       if (opened.status === 'opened') document = opened.document;
       else if (opened.status === 'failed') {
         startupMessages.push({ severity: 'error', code: 'startup-open-failed', text: `${opened.fileName} could not be opened.` }, ...opened.messages);
@@ -172,75 +210,90 @@ export function createService(deps: ServiceDeps) {
       };
     },
 
-    async 'doc:new'(spec) {
-      const made = unwrap(await solver.run<LoadAnswer>('interactive', 'generate', spec as Record<string, unknown>));
-      const fileName = `${spec.name ?? spec.kind}.hingeplan.json`;
-      if (!made.ok || !made.project) return { status: 'failed', fileName, messages: made.messages };
-      return {
-        status: 'opened',
-        document: { project: made.project, filePath: null, fileName, format: 'project', messages: made.messages, computePath: made.project.drives.length === 1 },
-      };
+    async 'doc:new'({ requestId, ...spec }) {
+      return asRequest<OpenResult>(requestId, { status: 'canceled' }, async (r) => {
+        const made = valueOf(await job<LoadAnswer>(r, 'interactive', 'generate', spec as Record<string, unknown>));
+        const fileName = `${spec.name ?? spec.kind}.hingeplan.json`;
+        if (!made.ok || !made.project) return { status: 'failed', fileName, messages: made.messages };
+        return {
+          status: 'opened',
+          document: { project: made.project, filePath: null, fileName, format: 'project', messages: made.messages, computePath: made.project.drives.length === 1 },
+        };
+      });
     },
 
-    async 'doc:open'({ format }) {
-      const filters = format === 'fold' ? [FOLD_FILTER] : [{ name: 'Patterns', extensions: ['json', 'fold'] }, PROJECT_FILTER, FOLD_FILTER];
-      const chosen = await host.chooseOpenFile({ title: format === 'fold' ? 'Import FOLD' : 'Open pattern', filters });
-      if (!chosen) return { status: 'canceled' };
-      return openFile(chosen, { computePath: true });
+    async 'doc:open'({ format, requestId }) {
+      return asRequest<OpenResult>(requestId, { status: 'canceled' }, async (r) => {
+        const filters = format === 'fold' ? [FOLD_FILTER] : [{ name: 'Patterns', extensions: ['json', 'fold'] }, PROJECT_FILTER, FOLD_FILTER];
+        const chosen = await host.chooseOpenFile({ title: format === 'fold' ? 'Import FOLD' : 'Open pattern', filters });
+        if (!chosen) return { status: 'canceled' };
+        return openFile(r, chosen, { computePath: true });
+      });
     },
 
-    async 'doc:open-recent'({ path: filePath }) {
+    async 'doc:open-recent'({ path: filePath, requestId }) {
       // only files the person opened before: the page cannot name an arbitrary file to read
       if (!(await recent.has(filePath))) {
         return { status: 'failed', fileName: path.basename(filePath), messages: [{ severity: 'error', code: 'not-recent', text: `${path.basename(filePath)} is not in the recent files list.` }] };
       }
-      const r = await openFile(filePath, { computePath: true });
-      if (r.status === 'failed' && r.messages.some((m) => m.code === 'file-missing')) {
-        await recent.remove(filePath).catch(() => undefined);
-        host.recentChanged();
-      }
-      return r;
-    },
-
-    async 'doc:save'({ project, filePath, saveAs, suggestedName }) {
-      // the page's filePath is only a hint: a path main never approved makes Save ask, as Save As does
-      let target = !saveAs && filePath && !/\.fold$/i.test(filePath) && (await approved.has(filePath)) ? filePath : null;
-      if (!target) {
-        target = await host.chooseSaveFile({ title: 'Save project', defaultName: `${baseName(suggestedName)}.hingeplan.json`, filters: [PROJECT_FILTER] });
-        if (!target) return { status: 'canceled' };
-      }
-      const text = unwrap(await solver.run<string>('interactive', 'write-project', { project }));
-      const result = await writeTo(target, text);
-      if (result.status === 'saved') {
-        // a project file main wrote where the person said: the next Save goes there without asking
-        approved.add(target);
-        await recent.add(target).catch(() => undefined);
-        host.recentChanged();
-      }
-      return result;
-    },
-
-    async 'doc:export'({ kind, project, key, pathId, options, suggestedName, filePath }) {
-      const spec = EXPORT_FILES[kind];
-      const target = await host.chooseSaveFile({
-        title: spec.title,
-        defaultName: exportFileName(kind, suggestedName, options.format),
-        filters: [spec.filter],
-      });
-      if (!target) return { status: 'canceled' };
-      // a table's header names the document's file and hashes its bytes: read only a file main approved
-      let file: { name: string; bytes?: Uint8Array } | undefined;
-      if (kind === 'angle-table' || kind === 'schedule') {
-        file = { name: filePath ? path.basename(filePath) : suggestedName };
-        if (filePath && (await approved.has(filePath))) {
-          const read = await readFileBytes(filePath);
-          if (read.ok) file.bytes = read.bytes;
+      return asRequest<OpenResult>(requestId, { status: 'canceled' }, async (req) => {
+        const r = await openFile(req, filePath, { computePath: true });
+        if (r.status === 'failed' && r.messages.some((m) => m.code === 'file-missing')) {
+          await recent.remove(filePath).catch(() => undefined);
+          host.recentChanged();
         }
-      }
-      const outcome = await solver.run<{ data: string }>('long', 'export', { kind, project, key, pathId, options, file, version: startup.version });
-      if (outcome.status === 'failed') return { status: 'failed', message: outcome.error.message };
-      if (outcome.status !== 'done') return { status: 'canceled' };
-      return writeTo(target, outcome.value.data);
+        return r;
+      });
+    },
+
+    async 'doc:save'({ project, filePath, saveAs, suggestedName, requestId }) {
+      return asRequest<WriteResult>(requestId, { status: 'canceled' }, async (r) => {
+        // the page's filePath is only a hint: a path main never approved makes Save ask, as Save As does
+        let target = !saveAs && filePath && !/\.fold$/i.test(filePath) && (await approved.has(filePath)) ? filePath : null;
+        if (!target) {
+          target = await host.chooseSaveFile({ title: 'Save project', defaultName: `${baseName(suggestedName)}.hingeplan.json`, filters: [PROJECT_FILTER] });
+          if (!target) return { status: 'canceled' };
+        }
+        const text = valueOf(await job<string>(r, 'interactive', 'write-project', { project }));
+        if (r.cancelled) return { status: 'canceled' };
+        const result = await writeTo(target, text);
+        if (result.status === 'saved') {
+          // a project file main wrote where the person said: the next Save goes there without asking
+          approved.add(target);
+          await recent.add(target).catch(() => undefined);
+          host.recentChanged();
+        }
+        return result;
+      });
+    },
+
+    async 'doc:export'({ kind, project, key, pathId, options, suggestedName, filePath, requestId }) {
+      return asRequest<WriteResult>(requestId, { status: 'canceled' }, async (r) => {
+        const spec = EXPORT_FILES[kind];
+        const table = kind === 'angle-table' || kind === 'schedule';
+        const sweep = table && pathId ? sweeps.get(pathId) : undefined;
+        if (table && pathId && !sweep) return { status: 'failed', message: 'The computed path is no longer available; compute it again and export.' };
+        const target = await host.chooseSaveFile({
+          title: spec.title,
+          defaultName: exportFileName(kind, suggestedName, options.format),
+          filters: [spec.filter],
+        });
+        if (!target) return { status: 'canceled' };
+        // a table's header names the document's file and hashes its bytes: read only a file main approved
+        let file: { name: string; bytes?: Uint8Array } | undefined;
+        if (table) {
+          file = { name: filePath ? path.basename(filePath) : suggestedName };
+          if (filePath && (await approved.has(filePath))) {
+            const read = await readFileBytes(filePath);
+            if (read.ok) file.bytes = read.bytes;
+          }
+        }
+        const payload = { kind, project, key, ...(sweep ? { sweep: { pathId, ...sweep } } : {}), options, file, version: startup.version };
+        const outcome = await job<{ data: string }>(r, 'export', 'export', payload, { onProgress: progressTo(requestId) });
+        if (outcome.status === 'failed') return { status: 'failed', message: outcome.error.message };
+        if (outcome.status !== 'done' || r.cancelled) return { status: 'canceled' };
+        return writeTo(target, outcome.value.data);
+      });
     },
 
     async 'doc:state'(state) {
@@ -290,33 +343,39 @@ export function createService(deps: ServiceDeps) {
     },
 
     async 'pattern:set'({ key, source }) {
-      const r = unwrap(await solver.setPattern(key, source));
-      return r as ResponseOf<'pattern:set'>;
+      const request = requests.begin()!;
+      try {
+        return unwrap(await solver.setPattern(key, source, { requestId: request.id })) as ResponseOf<'pattern:set'>;
+      } finally {
+        requests.end(request);
+      }
     },
 
     async solve({ requestId, key, drives }) {
-      return jobAnswer(await solver.run('interactive', 'solve', { key, drives }, { requestId, supersedeKey: 'solve' })) as ResponseOf<'solve'>;
+      return asRequest(requestId, { status: 'cancelled' as const }, async (r) => jobAnswer(await job(r, 'interactive', 'solve', { key, drives }, { supersedeKey: 'solve' }))) as Promise<ResponseOf<'solve'>>;
     },
 
     async branches({ requestId, key, drives }) {
-      return jobAnswer(await solver.run('long', 'branches', { key, drives }, { requestId, supersedeKey: 'branches' })) as ResponseOf<'branches'>;
+      return asRequest(requestId, { status: 'cancelled' as const }, async (r) => jobAnswer(await job(r, 'long', 'branches', { key, drives }, { supersedeKey: 'branches' }))) as Promise<ResponseOf<'branches'>>;
     },
 
     async sweep({ requestId, key, options }) {
-      const outcome = await solver.run('long', 'sweep', { key, options, pathId: requestId }, {
-        requestId,
-        supersedeKey: 'sweep',
-        onProgress: (done, total, phase) => host.emit('job:progress', { requestId, done, total, ...(phase ? { phase } : {}) }),
-      });
-      return jobAnswer(outcome) as ResponseOf<'sweep'>;
+      return asRequest(requestId, { status: 'cancelled' as const }, async (r) => {
+        const outcome = await job(r, 'long', 'sweep', { key, options, pathId: requestId }, { supersedeKey: 'sweep', onProgress: progressTo(requestId) });
+        if (outcome.status === 'done') sweeps.set(requestId, { key, options });
+        return jobAnswer(outcome);
+      }) as Promise<ResponseOf<'sweep'>>;
     },
 
-    async shape({ key, anglesDeg, basePanel }) {
-      return jobAnswer(await solver.run('interactive', 'shape', { key, anglesDeg, basePanel }, { supersedeKey: 'shape' })) as ResponseOf<'shape'>;
+    async shape({ key, anglesDeg, basePanel, requestId }) {
+      return asRequest(requestId, { status: 'cancelled' as const }, async (r) => jobAnswer(await job(r, 'interactive', 'shape', { key, anglesDeg, basePanel }, { supersedeKey: 'shape' }))) as Promise<ResponseOf<'shape'>>;
     },
 
     async 'job:cancel'({ requestId }) {
-      return { cancelled: solver.cancel(requestId) };
+      // both: a request main has not handed to a worker yet, and the job a lane runs or queues for it
+      const live = requests.cancel(requestId);
+      const inLane = solver.cancel(requestId);
+      return { cancelled: live || inLane };
     },
 
     async 'clipboard:write'({ text }) {

@@ -1,7 +1,9 @@
 // The protocol between the main process and a solver worker (worker_threads). Every job has a sequence
 // number; the worker answers with progress messages and one result. Cancelling cannot wait for the worker
 // to read a message (a sweep runs without yielding), so the main side writes the job's number into a
-// shared cell that the job polls through shouldStop().
+// shared cell that the job polls through shouldStop(). Each poll also counts in a second cell, so the main
+// side can tell a job that looks at the flag (give it time to stop) from one that never will (replace its
+// worker at once).
 
 export interface RunMessage {
   type: 'run';
@@ -12,9 +14,14 @@ export interface RunMessage {
 
 export interface InitMessage {
   type: 'init';
-  /** Int32Array over it: [0] = sequence number of the job asked to stop */
+  /** Int32Array over it: [STOP_CELL] = sequence number of the job asked to stop, [POLL_CELL] = polls so far */
   cancel: SharedArrayBuffer;
 }
+
+export const STOP_CELL = 0;
+export const POLL_CELL = 1;
+/** Bytes of the shared cells. */
+export const CANCEL_BYTES = 8;
 
 export type ToWorker = RunMessage | InitMessage;
 
@@ -68,7 +75,7 @@ export const PROGRESS_INTERVAL_MS = 40;
 
 /** Worker side: answer run messages with the given jobs, one at a time, in arrival order. */
 export function serveJobs(port: PortLike, jobs: Record<string, Job>, now: () => number = Date.now): void {
-  let cancel = new Int32Array(new SharedArrayBuffer(4));
+  let cancel = new Int32Array(new SharedArrayBuffer(CANCEL_BYTES));
   port.on('message', (raw) => {
     const message = raw as ToWorker;
     if (message.type === 'init') {
@@ -90,11 +97,14 @@ export function serveJobs(port: PortLike, jobs: Record<string, Job>, now: () => 
         last = t;
         port.postMessage({ type: 'progress', seq, done, total, phase } satisfies ProgressMessage);
       },
-      shouldStop: () => Atomics.load(cancel, 0) === seq,
+      shouldStop: () => {
+        Atomics.add(cancel, POLL_CELL, 1);
+        return Atomics.load(cancel, STOP_CELL) === seq;
+      },
     };
     try {
       const value = job(payload, ctx);
-      port.postMessage({ type: 'result', seq, ok: true, value, stopped: ctx.shouldStop() } satisfies ResultMessage);
+      port.postMessage({ type: 'result', seq, ok: true, value, stopped: Atomics.load(cancel, STOP_CELL) === seq } satisfies ResultMessage);
     } catch (err) {
       const error: JobError =
         err instanceof JobFailure
