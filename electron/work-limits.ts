@@ -6,10 +6,13 @@
 
 import { JobFailure } from './worker-protocol';
 
-/** Samples × creases of a path sent to the window: 5 million (a 40 × 40 Miura sheet, 12,960 creases, at 0.5°). */
-export const MAX_PATH_VALUES = 5_000_000;
-/** Rows × value columns of a table the app writes: 5 million cells, about 100 MB of text. */
-export const MAX_TABLE_CELLS = 5_000_000;
+/**
+ * Samples × creases of a path sent to the window: 8 million (a 20 × 20 Miura sheet, 3,280 creases, at 0.1°;
+ * a 40 × 40 one at 0.3°). Such a path is about 1 GB across the processes while it travels.
+ */
+export const MAX_PATH_VALUES = 8_000_000;
+/** Rows × value columns of a table the app writes: 10 million cells, about 200 MB of text (a string holds 512 MiB at most). */
+export const MAX_TABLE_CELLS = 10_000_000;
 /** Rows of a schedule, as the solver takes them. */
 export const MAX_SCHEDULE_ROWS = 100_000;
 

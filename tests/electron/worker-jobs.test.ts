@@ -91,13 +91,14 @@ async function couponPath(requestId: string): Promise<string> {
 describe('the work limits', () => {
   it('count samples × creases, rows × cells before anything is listed, and name the option and the limit', () => {
     // 40 × 40 cells at 0.01°: 18,002 samples × 12,960 creases = 233 million values
-    expect(() => checkPathSize(0, 180, 0.01, 12_960)).toThrow(/18,002 samples over 12,960 creases is 233 million values; the window takes at most 5 million\. Use a step of at least 0\.47°/);
-    // the suggested step is enough: 180/0.47 + 2 = 385 samples × 12,960 = 4.99 million
-    expect(() => checkPathSize(0, 180, 0.47, 12_960)).not.toThrow();
-    expect(MAX_PATH_VALUES).toBe(5e6);
+    expect(() => checkPathSize(0, 180, 0.01, 12_960)).toThrow(/18,002 samples over 12,960 creases is 233 million values; the window takes at most 8 million\. Use a step of at least 0\.3°/);
+    // the suggested step is enough: 180/0.3 + 2 = 602 samples × 12,960 = 7.8 million; a 20 × 20 sheet at 0.1° too
+    expect(() => checkPathSize(0, 180, 0.3, 12_960)).not.toThrow();
+    expect(() => checkPathSize(0, 180, 0.1, 3_280)).not.toThrow();
+    expect(MAX_PATH_VALUES).toBe(8e6);
     expect(() => checkScheduleSize(10, 1e-12, undefined, 10)).toThrow(/time step of 1e-12 s over 10 s gives 10,000,000,000,002 rows; a schedule takes at most 100,000/);
-    expect(() => checkScheduleSize(10, undefined, MAX_SCHEDULE_ROWS, 12_960)).toThrow(/3,888 million cells .*at most 5 million\. Use at most 128 rows/);
-    expect(() => checkScheduleSize(10, undefined, 128, 12_960)).not.toThrow();
+    expect(() => checkScheduleSize(10, undefined, MAX_SCHEDULE_ROWS, 12_960)).toThrow(/3,888 million cells .*at most 10 million\. Use at most 257 rows/);
+    expect(() => checkScheduleSize(10, undefined, 257, 12_960)).not.toThrow();
     expect(() => checkAngleTableSize(400, 12_960, true)).toThrow(/with their rates is 10.4 million cells/);
     expect(() => checkAngleTableSize(MAX_TABLE_CELLS / 4, 4, false)).not.toThrow();
   });
@@ -123,7 +124,7 @@ describe('oversized requests through the worker', () => {
       call('sweep', { requestId: 'huge-1', key: 'big', options: { drive: big.drives[0].crease, fromDeg: 0, toDeg: 180, stepDeg: 0.01, held: [] } }),
     );
     expect(value).toMatchObject({ ok: false, error: { code: 'path-too-large' } });
-    expect(value.error!.message).toMatch(/use a step of at least 0\.47°/i);
+    expect(value.error!.message).toMatch(/use a step of at least 0\.3°/i);
     // the pattern is built once in the long lane (a second or two); nothing of the path is computed
     expect(ms).toBeLessThan(15_000);
     expect(growth).toBeLessThan(600 * MiB);
