@@ -15,11 +15,13 @@ export function anglesByLabel(pattern: Pattern, angles: Float64Array): Record<st
 }
 
 export function solutionJson(pattern: Pattern, s: Solution, index: number) {
+  // per free crease (movable, not a drive): its rate against each drive, degrees per degree
   const sensitivity: Record<string, Record<string, number>> = {};
-  for (const [free, byDrive] of s.sensitivity) {
+  for (const c of pattern.creases) {
+    if (c.assignment === 'B' || c.assignment === 'F' || s.sensitivity.has(c.index)) continue;
     const row: Record<string, number> = {};
-    for (const [drive, v] of byDrive) row[pattern.creases[drive].label] = v;
-    sensitivity[pattern.creases[free].label] = row;
+    for (const [drive, values] of s.sensitivity) row[pattern.creases[drive].label] = values[c.index];
+    if (s.sensitivity.size) sensitivity[c.label] = row;
   }
   return {
     index,
@@ -27,6 +29,7 @@ export function solutionJson(pattern: Pattern, s: Solution, index: number) {
     maxResidual: s.maxResidual,
     matchesAssignment: s.matchesAssignment,
     localDof: s.localDof,
+    ...(s.nullity ? { nullity: s.nullity } : {}),
     condition: finite(s.condition),
     signs: s.signs,
     ...(s.stacked?.length ? { stacked: s.stacked.map((c) => pattern.creases[c].label) } : {}),

@@ -172,7 +172,8 @@ export function resolveOrFail(pattern: Pattern, specs: DriveSpec[]): { drives: D
 
 export function solutionDto(s: Solution): SolutionDto {
   const sensitivity: [number, number, number][] = [];
-  for (const [crease, byDrive] of s.sensitivity) for (const [drive, v] of byDrive) if (Number.isFinite(v)) sensitivity.push([crease, drive, v]);
+  for (const [drive, values] of s.sensitivity)
+    values.forEach((v, crease) => { if (v !== 0 && Number.isFinite(v) && !s.sensitivity.has(crease)) sensitivity.push([crease, drive, v]); });
   return {
     anglesDeg: Array.from(s.angles, (a) => a * DEG),
     maxResidual: Number.isFinite(s.maxResidual) ? s.maxResidual : Number.MAX_VALUE,

@@ -132,10 +132,15 @@ export interface Solution {
   vertexResiduals: number[];
   /** signs agree with the mountain/valley assignment (unassigned creases agree with either sign) */
   matchesAssignment: boolean;
-  /** free creases minus Jacobian rank */
+  /** dimension of the closed states through this one with the drives held: 0 for an isolated state */
   localDof: number;
-  /** d(free crease)/d(drive), degrees per degree: sensitivity[free crease index][drive crease index] */
-  sensitivity: Map<number, Map<number, number>>;
+  /** first-order free directions (free creases − Jacobian rank) where they exceed localDof: a singular isolated state */
+  nullity?: number;
+  /**
+   * d(crease)/d(drive), degrees per degree: per drive crease, an array over every crease index (defined for the
+   * free creases: movable and not driven; 0 elsewhere). Empty for a family's representative.
+   */
+  sensitivity: Map<number, Float64Array>;
   /** 2-norm condition number of the Jacobian on its non-null part (∞ when rank is 0) */
   condition: number;
   /** '+', '-' or '0' per crease: a compact sign pattern for display */

@@ -18,7 +18,7 @@ describe('Miura-ori folded unit cell (Schenk & Guest 2013)', () => {
       const { pattern, drive, sign, vid } = sheet(2, 2, a, b, alpha);
       const al = alpha * D;
       for (const rz of [2, 15, 40, 75, 110, 145, 170, 179]) {
-        const report = solveDrives(pattern, [{ crease: drive, value: sign * rz * D }], { multistart: 0 });
+        const report = solveDrives(pattern, [{ crease: drive, value: sign * rz * D }], { starts: 0 });
         const sol = report.solutions.find((s) => s.matchesAssignment);
         expect(sol, `solution matching the assignment at ${rz}°`).toBeDefined();
         expect(sol!.maxResidual).toBeLessThanOrEqual(1e-10);
@@ -45,7 +45,7 @@ describe('Miura-ori folded unit cell (Schenk & Guest 2013)', () => {
 
   it('has one degree of freedom away from flat (Schenk & Guest 2013: a single-DOF mechanism)', () => {
     const { pattern, drive, sign } = sheet(2, 3, 40, 30, 70);
-    const report = solveDrives(pattern, [{ crease: drive, value: sign * 50 * D }], { multistart: 0 });
+    const report = solveDrives(pattern, [{ crease: drive, value: sign * 50 * D }], { starts: 0 });
     expect(report.patternDof).toBe(1);
     expect(report.solutions[0].localDof).toBe(0);
     expect(report.solutions[0].matchesAssignment).toBe(true);

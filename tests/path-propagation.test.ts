@@ -1,12 +1,13 @@
 // The closed-form degree-4 vertex and the vertex-by-vertex propagation.
 import { describe, expect, it } from 'vitest';
-import { degree4States, evaluateDegree4, planPropagation, propagate, propagationWork } from '../solver/paths/propagate';
+import { degree4States, planPropagation, propagate, propagationWork } from '../solver/paths/propagate';
 import { buildClosureSystem, evaluateBlock, closureScratch } from '../solver/closure/blocks';
 import { miura, waterbomb, degree5 } from '../solver/model/generators';
 import { buildPattern } from '../solver/model/pattern';
 import { sweep } from '../solver/paths/sweep';
 import { directionsFromSectors, vertexPattern } from './support/vertex';
 import { fourBarResidual } from './support/references';
+import { axisAngleRotation, multiplyMat3, rotationVector } from '../solver/math/rotation';
 
 const D = Math.PI / 180;
 
@@ -40,19 +41,26 @@ describe('closed-form degree-4 vertex', () => {
   }
 });
 
-describe('the propagation\'s own degree-4 closure block', () => {
-  it('gives the same residual and Jacobian as the general closure block at closed and at open states', () => {
+describe('the closure block written out for in-plane axes', () => {
+  it('gives the residual of the general rotation product (Rodrigues matrices multiplied in order, log map)', () => {
     const p = vertexPattern(directionsFromSectors([70, 95, 100, 95]));
     const sys = buildClosureSystem(p);
     const scratch = closureScratch();
     for (const angles of [[0.3, -0.2, 0.5, 1.1], [2.9, -3.0, 0.1, -1.4], [0, 0, 0, 0], [Math.PI, 0.2, -Math.PI, 0.7]]) {
       const x = Float64Array.from(angles);
-      const r1 = new Float64Array(3), j1 = new Float64Array(12), r2 = new Float64Array(3), j2 = new Float64Array(12);
+      const r1 = new Float64Array(3), j1 = new Float64Array(12);
       const n1 = evaluateBlock(sys, 0, x, r1, j1, scratch);
-      const n2 = evaluateDegree4(sys, 0, x, r2, j2, closureScratch());
-      expect(Math.abs(n1 - n2)).toBeLessThan(1e-14);
-      for (let i = 0; i < 3; i++) expect(Math.abs(r1[i] - r2[i])).toBeLessThan(1e-14);
-      for (let i = 0; i < 12; i++) expect(Math.abs(j1[i] - j2[i])).toBeLessThan(1e-13);
+      // the general product: R(u₁, ρ₁)·…·R(u₄, ρ₄) with 3-D axes, by the general-purpose kernels
+      let P = new Float64Array([1, 0, 0, 0, 1, 0, 0, 0, 1]);
+      const R = new Float64Array(9), Q = new Float64Array(9), phi = new Float64Array(3);
+      for (let k = 0; k < 4; k++) {
+        axisAngleRotation(R, sys.slotUx[k], sys.slotUy[k], 0, x[sys.slotCrease[k]]);
+        multiplyMat3(Q, P, R);
+        P = Float64Array.from(Q);
+      }
+      rotationVector(phi, P);
+      expect(Math.abs(n1 - Math.hypot(...phi))).toBeLessThan(1e-14);
+      for (let i = 0; i < 3; i++) expect(Math.abs(r1[i] - phi[i])).toBeLessThan(1e-14);
     }
   });
 
@@ -61,14 +69,14 @@ describe('the propagation\'s own degree-4 closure block', () => {
     const sys = buildClosureSystem(p);
     const x = Float64Array.from([0.7, -0.4, 1.2, -2.1]);
     const r = new Float64Array(3), J = new Float64Array(12);
-    evaluateDegree4(sys, 0, x, r, J, closureScratch());
+    evaluateBlock(sys, 0, x, r, J, closureScratch());
     const h = 1e-6;
     for (let k = 0; k < 4; k++) {
       const rp = new Float64Array(3), rm = new Float64Array(3), tmp = new Float64Array(12);
       const xp = Float64Array.from(x), xm = Float64Array.from(x);
-      xp[k] += h; xm[k] -= h;
-      evaluateDegree4(sys, 0, xp, rp, tmp, closureScratch());
-      evaluateDegree4(sys, 0, xm, rm, tmp, closureScratch());
+      xp[sys.slotCrease[k]] += h; xm[sys.slotCrease[k]] -= h;
+      evaluateBlock(sys, 0, xp, rp, tmp, closureScratch());
+      evaluateBlock(sys, 0, xm, rm, tmp, closureScratch());
       for (let i = 0; i < 3; i++) expect(Math.abs((rp[i] - rm[i]) / (2 * h) - J[3 * k + i])).toBeLessThan(1e-8);
     }
   });

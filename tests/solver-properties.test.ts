@@ -57,16 +57,26 @@ function checkReport(src: PatternSource, driveIndex: number, driveDeg: number) {
   const movable = pattern.creases.filter((c) => c.assignment !== 'B' && c.assignment !== 'F');
   if (!movable.length) return;
   const crease = movable[driveIndex % movable.length].index;
-  const report = solveDrives(pattern, [{ crease, value: (driveDeg * Math.PI) / 180 }], { multistart: 4 });
+  const report = solveDrives(pattern, [{ crease, value: (driveDeg * Math.PI) / 180 }], { starts: 4 });
   expect(report.status).toBeTypeOf('string');
   const sys = buildClosureSystem(pattern);
-  for (const s of report.solutions) {
+  const states = [...report.solutions, ...report.families.map((f) => f.representative)];
+  for (const s of states) {
     expect(s.maxResidual).toBeLessThanOrEqual(RESIDUAL_TOLERANCE);
     // the residual it reports is the residual of the angles it returns
     expect(Math.max(0, ...blockResiduals(sys, s.angles))).toBeLessThanOrEqual(RESIDUAL_TOLERANCE);
     for (const a of s.angles) expect(Math.abs(a)).toBeLessThanOrEqual(Math.PI);
   }
-  if (!report.solutions.length) expect(['inconsistent', 'unreachable']).toContain(report.status);
+  // solutions are isolated states; continua are families, each with its free directions
+  for (const s of report.solutions) expect(s.localDof).toBe(0);
+  for (const f of report.families) {
+    expect(f.dof).toBeGreaterThan(0);
+    expect(f.directions.length).toBe(f.dof);
+  }
+  if (!states.length) expect(['inconsistent', 'unreachable']).toContain(report.status);
+  else if (!report.solutions.length) expect(['underspecified', 'not-isolated', 'overspecified', 'dependent-drives']).toContain(report.status);
+  else expect(['solved', 'several-solutions', 'overspecified', 'dependent-drives']).toContain(report.status);
+  if (report.search.complete) expect(report.search.limit).toBeUndefined();
 }
 
 describe('solver properties', () => {

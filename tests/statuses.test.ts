@@ -36,8 +36,13 @@ describe('specification statuses', () => {
     expect(r.dof).toBe(1);
     expect(r.patternDof).toBe(2);
     expect(r.suggestedDrives?.length).toBe(1);
+    // a continuum: one family with one free direction, not a list of its members
+    expect(r.solutions).toHaveLength(0);
+    expect(r.families.length).toBeGreaterThanOrEqual(1);
+    expect(r.families[0].dof).toBe(1);
+    expect(r.families[0].directions).toHaveLength(1);
     // the suggestion really completes the specification
-    const sol = r.solutions[0];
+    const sol = r.families[0].representative;
     const c = r.suggestedDrives![0];
     const again = solveDrives(vertexPattern(directionsFromSectors([60, 70, 80, 70, 80])), [
       { crease: 0, value: 50 * D },

@@ -1,67 +1,125 @@
 import type { Command } from '../command';
-import { parseCommandArgs } from '../args';
+import { intOption, parseCommandArgs, UsageError } from '../args';
 import { drivesFor, loadFile } from '../load';
 import { exitForStatus, EXIT } from '../exit-codes';
 import { reportJson } from '../report-json';
 import { deg, textTable } from '../table-text';
 import { solveDrives } from '../../solver/search/solve';
+import { groupSolutions } from '../../solver/search/summary';
 import { CAUTIONS } from '../../solver/formats/cautions';
+import type { Pattern, SolveReport } from '../../solver/types';
 
 export const solve: Command = {
   name: 'solve',
   summary: 'find every fold angle from the drives: all solutions, status, sensitivities',
-  help: `Usage: hingeplan solve <file> [--set <crease>=<deg> …] [--json]
+  help: `Usage: hingeplan solve <file> [--set <crease>=<deg> …] [--solutions matching|all|<n>] [--max-states <n>] [--json]
 
-Finds every consistent set of the free fold angles for the given drives (degrees, valley positive), says what
-kind of specification it was, and gives each solution's residual, local DOF, condition number and the
-sensitivity of every free crease to every drive (degrees per degree).
+Finds the closed states for the given drives (degrees, valley positive), says what kind of specification it
+was, and gives each solution's residual, local DOF, condition number and the sensitivity of every free crease
+to every drive (degrees per degree). Isolated states are solutions; a continuum through the drive values is a
+family (its DOF, one representative, its free directions). The search says whether the list is complete:
+patterns whose vertices close one after another with at most three unknowns each (a single vertex, sheets of
+degree-4 vertices) are enumerated exhaustively in closed form; others are searched numerically.
 
   --set <crease>=<deg>   drive a crease (label or index); repeat for more drives. Without --set the
                          drives stored in the file are used.
-  --json                 JSON on stdout: {status, dof, patternDof, drives, solutions: [{angles, maxResidual,
-                         matchesAssignment, localDof, condition, signs, sensitivity, vertexResiduals}],
-                         compromise?, suggestedDrives?, conflictingDrives?, reachableRange?, messages}
+  --solutions <which>    which solutions to print in full: matching (those whose signs follow the
+                         mountain/valley assignment, else the first; the default for text), all (the default
+                         for --json), or the first <n>. The others are summarised by how they differ.
+  --max-states <n>       stop the search after n closed states (default 64); a stopped search says so
+  --json                 JSON on stdout: {status, dof, patternDof, drives, search: {complete, method, found,
+                         limit?, note}, solutions: [{index, angles, maxResidual, matchesAssignment, localDof,
+                         condition, signs, stacked?, sensitivity, vertexResiduals}], omitted?: {count, groups},
+                         families: [{dof, representative, directions, matchesAssignment}], compromise?,
+                         suggestedDrives?, conflictingDrives?, reachableRange?, excluded?, messages}
 Exit status: 0 solved / several solutions / overspecified but consistent / dependent drives;
 2 invalid input or usage; 3 inconsistent or unreachable; 4 underspecified or not isolated.`,
   run(argv, io) {
     const { values, positionals } = parseCommandArgs(argv, {
       set: { type: 'string', multiple: true },
+      solutions: { type: 'string' },
+      'max-states': { type: 'string' },
       json: { type: 'boolean' },
     });
+    const which = (values.solutions as string | undefined) ?? (values.json ? 'all' : 'matching');
+    if (!/^(matching|all|[1-9]\d*)$/.test(which)) throw new UsageError(`--solutions must be matching, all or a whole number ≥ 1, got "${which}"`);
+    const cap = intOption(values['max-states'] as string | undefined, 'max-states', 64);
+    if (cap < 1 || cap > 1_000_000) throw new UsageError('--max-states must be between 1 and 1000000');
     const path = positionals[0];
     const loaded = loadFile(io, path, 'solve');
     if (!loaded) return EXIT.usage;
     const drives = drivesFor(io, loaded, values.set as string[] | undefined, path!);
     if (!drives) return EXIT.usage;
     const { pattern } = loaded;
-    const report = solveDrives(pattern, drives);
+    // sensitivities and condition numbers are worked out for the solutions printed in full
+    const detail = which === 'all' ? Infinity : which === 'matching' ? 'matching' : Number(which);
+    const report = solveDrives(pattern, drives, { cap, detail, conditions: detail });
+    const shown = shownSolutions(report, which);
+    const omitted = report.solutions.map((_, i) => i).filter((i) => i >= shown.length);
+    const groups = omitted.length ? groupSolutions(pattern, report.solutions, 0, omitted) : [];
     if (values.json) {
-      io.stdout(JSON.stringify(reportJson(pattern, drives, report), null, 2) + '\n');
+      const json = reportJson(pattern, drives, { ...report, solutions: report.solutions.slice(0, shown.length) });
+      const out = omitted.length
+        ? { ...json, omitted: { count: omitted.length, groups: groups.map((g) => ({ count: g.count, solutions: g.solutions, text: g.text })) } }
+        : json;
+      io.stdout(JSON.stringify(out, null, 2) + '\n');
       return exitForStatus(report.status);
     }
-    const out: string[] = [];
-    out.push(`${pattern.name}: ${report.status}  (DOF left ${report.dof}, pattern DOF ${report.patternDof})`);
-    for (const m of report.messages) out.push(`  ${m.severity}: ${m.text}`);
-    const shown = report.solutions.length ? report.solutions : report.compromise ? [report.compromise] : [];
-    if (shown.length) {
-      const head = ['crease', 'assign', ...shown.map((_, i) => (report.solutions.length ? `#${i + 1}` : 'compromise'))];
-      const rows = pattern.creases
-        .filter((c) => c.assignment !== 'B')
-        .map((c) => [c.label + (drives.some((d) => d.crease === c.index) ? ' (drive)' : ''), c.assignment, ...shown.map((s) => deg(s.angles[c.index]))]);
-      out.push('');
-      out.push(textTable(head, rows));
-      out.push(textTable(['solution', 'max residual (rad)', 'matches M/V', 'local DOF', 'condition'], shown.map((s, i) => [
-        `#${i + 1}`, s.maxResidual.toExponential(2), s.matchesAssignment ? 'yes' : 'no', s.localDof, Number.isFinite(s.condition) ? s.condition.toPrecision(4) : 'inf',
-      ])));
-      if (report.solutions.length && drives.length) {
-        const s = report.solutions[0];
-        out.push('Sensitivity of solution #1 (degrees per degree of drive):');
-        out.push(textTable(['crease', ...drives.map((d) => pattern.creases[d.crease].label)],
-          [...s.sensitivity].map(([c, m]) => [pattern.creases[c].label, ...drives.map((d) => (m.get(d.crease) ?? 0).toFixed(6))])));
-      }
-    }
-    out.push(CAUTIONS);
-    io.stdout(out.join('\n') + '\n');
+    io.stdout(textReport(pattern, drives.map((d) => d.crease), report, shown.length, groups) + '\n');
     return exitForStatus(report.status);
   },
 };
+
+/** The solutions printed in full: they lead the report's order (matching ones first). */
+function shownSolutions(report: SolveReport, which: string): number[] {
+  const all = report.solutions.map((_, i) => i);
+  if (which === 'all') return all;
+  if (which === 'matching') {
+    const matching = all.filter((i) => report.solutions[i].matchesAssignment);
+    return matching.length ? matching : all.slice(0, 1);
+  }
+  return all.slice(0, Number(which));
+}
+
+function textReport(pattern: Pattern, driveCreases: number[], report: SolveReport, shownCount: number, groups: ReturnType<typeof groupSolutions>): string {
+  const out: string[] = [];
+  out.push(`${pattern.name}: ${report.status}  (DOF left ${report.dof}, pattern DOF ${report.patternDof})`);
+  for (const m of report.messages) out.push(`  ${m.severity}: ${m.text}`);
+  const s = report.search;
+  out.push(`  search: ${s.complete ? 'complete' : 'not complete'}: ${s.method}; found ${s.found}${s.limit !== undefined ? ` (cap ${s.limit})` : ''}; ${s.note}.`);
+  const shown = report.solutions.slice(0, shownCount);
+  const columns = shown.length ? shown : report.compromise ? [report.compromise] : [];
+  if (columns.length) {
+    const head = ['crease', 'assign', ...columns.map((_, i) => (shown.length ? `#${i + 1}` : 'compromise'))];
+    const rows = pattern.creases
+      .filter((c) => c.assignment !== 'B')
+      .map((c) => [c.label + (driveCreases.includes(c.index) ? ' (drive)' : ''), c.assignment, ...columns.map((x) => deg(x.angles[c.index]))]);
+    out.push('');
+    out.push(textTable(head, rows));
+    out.push(textTable(['solution', 'max residual (rad)', 'matches M/V', 'local DOF', 'condition', 'folded flat'], columns.map((x, i) => [
+      shown.length ? `#${i + 1}` : 'compromise', x.maxResidual.toExponential(2), x.matchesAssignment ? 'yes' : 'no', x.localDof,
+      Number.isFinite(x.condition) ? x.condition.toPrecision(4) : Number.isNaN(x.condition) ? 'not evaluated' : 'inf',
+      x.stacked?.length ? `${x.stacked.length} crease(s)` : '-',
+    ])));
+    const first = shown[0];
+    if (first && driveCreases.length && first.sensitivity.size) {
+      out.push('Sensitivity of solution #1 (degrees per degree of drive):');
+      out.push(textTable(['crease', ...driveCreases.map((d) => pattern.creases[d].label)],
+        pattern.creases.filter((c) => c.assignment !== 'B' && c.assignment !== 'F' && !first.sensitivity.has(c.index))
+          .map((c) => [c.label, ...driveCreases.map((d) => (first.sensitivity.get(d)?.[c.index] ?? 0).toFixed(6))])));
+    }
+  }
+  const rest = report.solutions.length - shownCount;
+  if (rest > 0) {
+    out.push(`${rest} more solution(s), not printed (--solutions all prints them); compared with #1 they:`);
+    for (const g of groups.slice(0, 12)) out.push(`  ${String(g.count).padStart(5)}  ${g.text} (e.g. #${g.solutions[0]})`);
+    if (groups.length > 12) out.push(`  … and ${groups.length - 12} more groups`);
+  }
+  for (const [k, f] of report.families.entries()) {
+    const dir = f.directions[0];
+    const top = dir ? [...dir].sort((p, q) => Math.abs(q[1]) - Math.abs(p[1])).slice(0, 4).map(([c, v]) => `${pattern.creases[c].label} ${v.toFixed(3)}`).join(', ') : '';
+    out.push(`Family ${k + 1}: ${f.dof} degree(s) of freedom${f.matchesAssignment ? ', follows the assignment' : ''}; free direction${f.dof > 1 ? 's include' : ''}: ${top}${dir && dir.size > 4 ? ', …' : ''}`);
+  }
+  out.push(CAUTIONS);
+  return out.join('\n');
+}

@@ -3,16 +3,7 @@
 // never disagree.
 
 import type { Pattern } from '../types';
-import {
-  axisAngleRotation,
-  inverseLeftJacobian,
-  mat3,
-  multiplyMat3,
-  rotationVector,
-  setIdentity,
-  transformVec3,
-  vec3,
-} from '../math/rotation';
+import { inverseLeftJacobian, mat3, rotationVector, vec3 } from '../math/rotation';
 
 export interface ClosureSystem {
   readonly blockCount: number;
@@ -65,7 +56,8 @@ export function closureScratch(): ClosureScratch {
 /**
  * Residual of block b into residual[3b..3b+2]; when `jacobian` is given, ∂r/∂ρ of every slot into
  * jacobian[3·slot..3·slot+2] (the exact derivative of the rotation vector, J_l⁻¹(r)·w_i, where w_i is the folded
- * direction of crease i). Returns the residual norm.
+ * direction of crease i). Returns the residual norm. The axes are in the sheet's plane, so each factor
+ * R(u, ρ) is written out with u_z = 0.
  */
 export function evaluateBlock(
   sys: ClosureSystem,
@@ -75,34 +67,43 @@ export function evaluateBlock(
   jacobian: Float64Array | null,
   s: ClosureScratch,
 ): number {
-  const { prefix, step, next, phi, jinv, w } = s;
-  setIdentity(prefix);
+  const P = s.prefix;
+  P[0] = 1; P[1] = 0; P[2] = 0; P[3] = 0; P[4] = 1; P[5] = 0; P[6] = 0; P[7] = 0; P[8] = 1;
   const start = sys.blockStart[b];
   const end = sys.blockStart[b + 1];
   for (let k = start; k < end; k++) {
-    const ux = sys.slotUx[k];
-    const uy = sys.slotUy[k];
+    const x = sys.slotUx[k], y = sys.slotUy[k];
     if (jacobian) {
-      transformVec3(w, prefix, ux, uy, 0);
-      jacobian[3 * k] = w[0];
-      jacobian[3 * k + 1] = w[1];
-      jacobian[3 * k + 2] = w[2];
+      // w_k = P·u_k
+      jacobian[3 * k] = P[0] * x + P[1] * y;
+      jacobian[3 * k + 1] = P[3] * x + P[4] * y;
+      jacobian[3 * k + 2] = P[6] * x + P[7] * y;
     }
-    axisAngleRotation(step, ux, uy, 0, angles[sys.slotCrease[k]]);
-    multiplyMat3(next, prefix, step);
-    prefix.set(next);
+    // P ← P·R(u_k, ρ_k), R = [[t x²+c, t xy, s y], [t xy, t y²+c, −s x], [−s y, s x, c]]
+    const rho = angles[sys.slotCrease[k]];
+    const c = Math.cos(rho), sn = Math.sin(rho), t = 1 - c;
+    const r00 = t * x * x + c, r01 = t * x * y, r02 = sn * y;
+    const r11 = t * y * y + c, r12 = -sn * x;
+    const r20 = -sn * y, r21 = sn * x, r22 = c;
+    for (let row = 0; row < 9; row += 3) {
+      const a0 = P[row], a1 = P[row + 1], a2 = P[row + 2];
+      P[row] = a0 * r00 + a1 * r01 + a2 * r20;
+      P[row + 1] = a0 * r01 + a1 * r11 + a2 * r21;
+      P[row + 2] = a0 * r02 + a1 * r12 + a2 * r22;
+    }
   }
-  rotationVector(phi, prefix);
+  const phi = s.phi;
+  rotationVector(phi, P);
   residual[3 * b] = phi[0];
   residual[3 * b + 1] = phi[1];
   residual[3 * b + 2] = phi[2];
   if (jacobian) {
-    inverseLeftJacobian(jinv, phi);
+    const Ji = inverseLeftJacobian(s.jinv, phi);
     for (let k = start; k < end; k++) {
       const x = jacobian[3 * k], y = jacobian[3 * k + 1], z = jacobian[3 * k + 2];
-      jacobian[3 * k] = jinv[0] * x + jinv[1] * y + jinv[2] * z;
-      jacobian[3 * k + 1] = jinv[3] * x + jinv[4] * y + jinv[5] * z;
-      jacobian[3 * k + 2] = jinv[6] * x + jinv[7] * y + jinv[8] * z;
+      jacobian[3 * k] = Ji[0] * x + Ji[1] * y + Ji[2] * z;
+      jacobian[3 * k + 1] = Ji[3] * x + Ji[4] * y + Ji[5] * z;
+      jacobian[3 * k + 2] = Ji[6] * x + Ji[7] * y + Ji[8] * z;
     }
   }
   return Math.hypot(phi[0], phi[1], phi[2]);

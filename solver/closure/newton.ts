@@ -145,6 +145,21 @@ export class ClosureProblem {
     return out;
   }
 
+  /** Jᵀ·r for a vector over the rows (3·blockCount), from the last evaluate(); out is over unknowns. */
+  transposeTimes(out: Float64Array, r: Float64Array): Float64Array {
+    const { blockStart, slotCrease, blockCount } = this.sys;
+    const J = this.jacobian;
+    out.fill(0);
+    for (let b = 0; b < blockCount; b++) {
+      const r0 = r[3 * b], r1 = r[3 * b + 1], r2 = r[3 * b + 2];
+      for (let p = blockStart[b]; p < blockStart[b + 1]; p++) {
+        const a = this.unknownOf[slotCrease[p]];
+        if (a >= 0) out[a] += J[3 * p] * r0 + J[3 * p + 1] * r1 + J[3 * p + 2] * r2;
+      }
+    }
+    return out;
+  }
+
   /** Dense Jacobian (rows 3·blockCount, columns for the given creases) from the last evaluate(). */
   denseJacobian(columns: ArrayLike<number>): number[][] {
     const col = new Map<number, number>();

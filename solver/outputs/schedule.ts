@@ -474,12 +474,12 @@ export function* followSteps(pattern: Pattern, schedule: ParsedSchedule, opts: F
   const bad = rows.filter((r) => r.unreachable && r.unreachable !== 'not computed (stopped)');
   if (bad.length) {
     // tell a row with no state at all from one that only the followed branch cannot reach (small patterns)
-    const free = pattern.creases.filter((c) => c.assignment !== 'B' && c.assignment !== 'F').length;
-    if (free <= 400) {
-      for (const r of bad.slice(0, 20)) {
-        const report = solveDrives(pattern, [...holds.filter((h) => !r.values.has(h.crease)), ...[...r.values].map(([crease, value]) => ({ crease, value }))], { multistart: 8 });
-        r.unreachable += report.solutions.length ? ` (other states exist at these values, on another branch: ${report.solutions.length})` : ' (no state at all has these values)';
-      }
+    for (const r of bad.slice(0, 20)) {
+      const report = solveDrives(pattern, [...holds.filter((h) => !r.values.has(h.crease)), ...[...r.values].map(([crease, value]) => ({ crease, value }))], { cap: 8, starts: 8 });
+      const n = report.solutions.length + report.families.length;
+      r.unreachable += n
+        ? ` (other states exist at these values, on another branch: ${n}${report.search.limit !== undefined ? ' or more' : ''})`
+        : report.search.complete ? ' (no state at all has these values)' : ' (no other state was found at these values)';
     }
     messages.push({ severity: 'error', code: 'unreachable-rows', text: `${bad.length} of ${rows.length} rows have no consistent state on the followed branch (lines ${bad.slice(0, 8).map((r) => r.line).join(', ')}${bad.length > 8 ? ', …' : ''}); they are flagged and the other rows are solved.` });
   }

@@ -6,8 +6,7 @@
 // to the general solver when the mesh is not (numerically) rigid-foldable.
 
 import type { Pattern } from '../types';
-import { closureScratch, type ClosureScratch, type ClosureSystem } from '../closure/blocks';
-import { inverseLeftJacobian, rotationVector } from '../math/rotation';
+import { closureScratch, evaluateBlock, type ClosureScratch, type ClosureSystem } from '../closure/blocks';
 import { wrapAngle } from '../math/rotation';
 
 export interface PropagationPlan {
@@ -320,10 +319,10 @@ export function propagate(
       if (mask & (1 << k)) { angles[c] = v; set[c] = 1; }
       else maxDisagreement = Math.max(maxDisagreement, Math.abs(wrapAngle(v - angles[c])));
     }
-    let res = evaluateDegree4(sys, b, angles, residual, jacobian, scratch);
+    let res = evaluateBlock(sys, b, angles, residual, jacobian, scratch);
     if (res > 1e-13 && mask) {
       // one Newton step on the block's own outputs cleans the closed form's rounding
-      if (solveOutputs(work, start, inSlot, mask, 3 * b, angles) > 0) res = evaluateDegree4(sys, b, angles, residual, jacobian, scratch);
+      if (solveOutputs(work, start, inSlot, mask, 3 * b, angles) > 0) res = evaluateBlock(sys, b, angles, residual, jacobian, scratch);
     }
     if (res > maxResidual) maxResidual = res;
     if (rates || curvature) {
@@ -445,59 +444,4 @@ function blockDerivatives(
   if (solveSym3(G, g, m, x) === 0) return 0;
   for (let a = 0; a < m; a++) curvature[cre[slots[a]]] = x[a];
   return detAll;
-}
-
-
-/**
- * The closure residual and Jacobian block of a degree-4 vertex, as closure.ts's evaluateBlock computes them
- * (rotation vector of R0·R1·R2·R3 and J_l⁻¹(r)·w_k with w_k the folded crease directions), written out for
- * in-plane axes: the propagation evaluates every vertex once per sample, so this is its inner loop.
- */
-export function evaluateDegree4(
-  sys: ClosureSystem,
-  b: number,
-  angles: Float64Array,
-  residual: Float64Array,
-  jacobian: Float64Array,
-  s: ClosureScratch,
-): number {
-  const start = sys.blockStart[b];
-  const P = s.prefix;
-  // P = I
-  P[0] = 1; P[1] = 0; P[2] = 0; P[3] = 0; P[4] = 1; P[5] = 0; P[6] = 0; P[7] = 0; P[8] = 1;
-  for (let k = 0; k < 4; k++) {
-    const slot = start + k;
-    const x = sys.slotUx[slot], y = sys.slotUy[slot];
-    // w_k = P·u_k (u_k in the plane)
-    const j = 3 * slot;
-    jacobian[j] = P[0] * x + P[1] * y;
-    jacobian[j + 1] = P[3] * x + P[4] * y;
-    jacobian[j + 2] = P[6] * x + P[7] * y;
-    // P ← P·R(u_k, ρ_k), R = [[t x²+c, t xy, s y], [t xy, t y²+c, −s x], [−s y, s x, c]]
-    const rho = angles[sys.slotCrease[slot]];
-    const c = Math.cos(rho), sn = Math.sin(rho), t = 1 - c;
-    const r00 = t * x * x + c, r01 = t * x * y, r02 = sn * y;
-    const r11 = t * y * y + c, r12 = -sn * x;
-    const r20 = -sn * y, r21 = sn * x, r22 = c;
-    for (let row = 0; row < 9; row += 3) {
-      const a0 = P[row], a1 = P[row + 1], a2 = P[row + 2];
-      P[row] = a0 * r00 + a1 * r01 + a2 * r20;
-      P[row + 1] = a0 * r01 + a1 * r11 + a2 * r21;
-      P[row + 2] = a0 * r02 + a1 * r12 + a2 * r22;
-    }
-  }
-  const phi = s.phi;
-  rotationVector(phi, P);
-  residual[3 * b] = phi[0];
-  residual[3 * b + 1] = phi[1];
-  residual[3 * b + 2] = phi[2];
-  const Ji = inverseLeftJacobian(s.jinv, phi);
-  for (let k = 0; k < 4; k++) {
-    const j = 3 * (start + k);
-    const x = jacobian[j], y = jacobian[j + 1], z = jacobian[j + 2];
-    jacobian[j] = Ji[0] * x + Ji[1] * y + Ji[2] * z;
-    jacobian[j + 1] = Ji[3] * x + Ji[4] * y + Ji[5] * z;
-    jacobian[j + 2] = Ji[6] * x + Ji[7] * y + Ji[8] * z;
-  }
-  return Math.hypot(phi[0], phi[1], phi[2]);
 }

@@ -282,7 +282,7 @@ describe('main-process handlers', () => {
     // the lane is free again at once: the sweep saw the stop flag (a quick job on the same lane answers)
     const t0 = Date.now();
     expect(await solver.run('long', 'set-pattern', { key: 'probe', source: loadPatternText(readFileSync(coupon, 'utf8'), 'c.json').project!.source })).toMatchObject({ status: 'done' });
-    expect(Date.now() - t0).toBeLessThan(2000);
+    expect(Date.now() - t0).toBeLessThan(3000);
     const short = (await call('sweep', { requestId: 'short-1', key: 'probe', options: { drive: 'c0', fromDeg: 0, toDeg: 150, stepDeg: 30, held: [] } })) as { status: string; value: { samples: unknown[]; complete: boolean } };
     expect(short.status).toBe('done');
     expect(short.value.samples.length).toBe(6);
