@@ -41,7 +41,7 @@ import {
   type SolveResultDto,
 } from './contract';
 import { JobFailure } from './worker-protocol';
-import { decodeUtf8 } from './text-bytes';
+import { decodeUtf8, isBytes } from './text-bytes';
 import { ExportSweepSchema, exportPath } from './export-path';
 import { checkAngleTableSize, checkScheduleSize } from './work-limits';
 import { LruMap } from './lru';
@@ -99,7 +99,8 @@ function messages(list: { severity: string; code: string; text: string; where?: 
 // ---------- load and save ----------
 
 /** A file as main read it: its bytes (bounded by main before reading), decoded here as the readers take them. */
-const LoadRequest = z.object({ bytes: z.instanceof(Uint8Array), fileName: z.string().max(4096) });
+const FileBytes = z.custom<Uint8Array>(isBytes, 'expected the bytes of a file');
+const LoadRequest = z.object({ bytes: FileBytes, fileName: z.string().max(4096) });
 
 export function loadJob(_state: JobState, payload: unknown) {
   const { bytes, fileName } = parse(LoadRequest, payload, 'load');
@@ -255,7 +256,7 @@ const ExportRequest = z.object({
   sweep: ExportSweepSchema.optional(),
   options: ExportOptionsSchema,
   /** tables: the document's file name and its bytes on disk (absent when never saved), and the program version */
-  file: z.object({ name: z.string().max(4096), bytes: z.instanceof(Uint8Array).optional() }).optional(),
+  file: z.object({ name: z.string().max(4096), bytes: FileBytes.optional() }).optional(),
   version: z.string().max(100).optional(),
 });
 

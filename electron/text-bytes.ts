@@ -6,6 +6,11 @@ export type DecodeOutcome = { ok: true; text: string } | { ok: false; code: stri
 
 const BOM = [0xef, 0xbb, 0xbf];
 
+/** Whether a value is a Uint8Array of any realm (a worker's, a test window's): `instanceof` sees only its own. */
+export function isBytes(value: unknown): value is Uint8Array {
+  return ArrayBuffer.isView(value) && Object.prototype.toString.call(value) === '[object Uint8Array]';
+}
+
 function hasBom(bytes: Uint8Array): boolean {
   return bytes.length >= 3 && bytes[0] === BOM[0] && bytes[1] === BOM[1] && bytes[2] === BOM[2];
 }

@@ -124,19 +124,19 @@ describe('atomic save', () => {
     const script = await buildWorker('tests/electron/fixtures/save-loop.ts');
     const dir = path.join(tmp, 'kill');
     mkdirSync(dir);
-    const size = 1_000_000;
-    // four files swept side by side (process start-up dominates the time), six kills each
+    const size = 500_000;
+    // four files swept side by side (process start-up dominates the time), five kills each
     const sweepOne = async (lane: number) => {
       const target = path.join(dir, `sweep-${lane}.hingeplan.json`);
       const mine = () => temps(dir).filter((n) => n.startsWith(`.${path.basename(target)}.`));
       writeFileSync(target, JSON.stringify({ version: 0, pad: '0'.repeat(size) }));
       let lastVersion = 0;
       let interrupted = 0;
-      for (let i = 0; i < 6; i++) {
+      for (let i = 0; i < 5; i++) {
         const child = spawn(process.execPath, [script, target, String(size), String(lastVersion + 1)], { stdio: ['ignore', 'pipe', 'inherit'] });
         await new Promise<void>((resolve) => child.stdout!.once('data', () => resolve()));
         // kill moments spread over a few save cycles: during the write, the flush, the rename or the folder flush
-        await new Promise((r) => setTimeout(r, 2 + (((lane * 6 + i) * 29) % 160)));
+        await new Promise((r) => setTimeout(r, 2 + (((lane * 5 + i) * 29) % 160)));
         const exited = new Promise((r) => child.once('exit', r));
         child.kill('SIGKILL');
         await exited;
