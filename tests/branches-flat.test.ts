@@ -1,12 +1,14 @@
 // Branch analysis at the flat state and at folded states, against published first-order relations.
 import { describe, expect, it } from 'vitest';
-import { branchesAt, flatBranches, flatModeOfMesh, tangentMatchesAssignment } from '../solver/paths/branches';
+import { branchesAt, flatBranches } from '../solver/paths/branches';
+import { flatCone } from '../solver/paths/cone';
 import { miura, degree4Assignment } from '../solver/model/generators';
 import { buildPattern } from '../solver/model/pattern';
 import { sweep, secondOrderRows } from '../solver/paths/sweep';
 import { ClosureProblem } from '../solver/closure/newton';
 import { buildClosureSystem, evaluateClosure } from '../solver/closure/blocks';
 import { directionsFromSectors, vertexPattern } from './support/vertex';
+import { degree4Chain } from './support/references';
 
 const D = Math.PI / 180;
 
@@ -95,7 +97,7 @@ describe('Miura-ori sheet at flat', () => {
     expect(r.branches.map((b) => b.id)).toEqual(r.branches.map((_, i) => i + 1));
   });
 
-  it('above the dense limit: the mode pair by first-order propagation plus the lines, marked partial', () => {
+  it('a large sheet: every straight line, the assignment’s Miura curve first, and the cap on other curves said (partial)', () => {
     const alpha = 70;
     const { pattern, drive } = miuraSheet(12, 12, alpha);
     const r = flatBranches(pattern, { drive });
@@ -111,13 +113,32 @@ describe('Miura-ori sheet at flat', () => {
     expect(r.groups.filter((g) => g.kind === 'line').length).toBe(2 * 12 - 1);
   });
 
-  it('the first-order propagation agrees with the dense tangent cone on a small sheet', () => {
+  it('the curves found vertex by vertex satisfy the whole-sheet tangent-cone equations, and hold every ray the dense analysis finds', () => {
     const { pattern, drive } = miuraSheet(2, 2, 55);
-    const t = flatModeOfMesh(pattern, new Set(), drive)!;
     const r = flatBranches(pattern, { drive });
-    const best = Math.max(...r.branches.map((b) => Math.abs(b.tangent.reduce((s, x, i) => s + x * t[i], 0))));
-    expect(best).toBeGreaterThan(1 - 1e-12);
-    expect(tangentMatchesAssignment(pattern, t)).toBe(true);
+    expect(r.partial).toBe(false);
+    // the dense analysis (solver/paths/cone.ts: the linear null space of the whole sheet, then random starts
+    // polished on the quadratic forms) is an independent route to the same cone
+    const dense = flatCone(pattern, { starts: 200 });
+    for (const ray of dense.rays) {
+      const best = Math.max(...r.branches.map((b) => Math.abs(b.tangent.reduce((s, x, i) => s + x * ray.tangent[i], 0))));
+      if (ray.straightLine || best > 1 - 1e-9) continue;
+      // a dense ray not listed must be a mixture: lines or curves folding together (the cone's flat pieces)
+      expect(r.messages.some((m) => m.code === 'curves-together' || m.code === 'lines-together')).toBe(true);
+    }
+    for (const b of r.branches) {
+      for (const iv of pattern.interiorVertices) {
+        let x = 0, y = 0, q = 0;
+        iv.creases.forEach((c, i) => {
+          x += b.tangent[c] * Math.cos(iv.directions[i]);
+          y += b.tangent[c] * Math.sin(iv.directions[i]);
+          iv.creases.forEach((c2, j) => { if (j > i) q += b.tangent[c] * b.tangent[c2] * Math.sin(iv.directions[j] - iv.directions[i]); });
+        });
+        expect(Math.hypot(x, y)).toBeLessThan(1e-12);
+        expect(Math.abs(q)).toBeLessThan(1e-12);
+      }
+    }
+    expect(r.branches.some((b) => b.matchesAssignment)).toBe(true);
   });
 });
 
@@ -171,5 +192,48 @@ describe('second order of the closure (the curvature right-hand side) against fi
     }
     expect(scale).toBeGreaterThan(0.1);
     expect(worst / scale).toBeLessThan(1e-5);
+  });
+});
+
+describe('every curve through flat, with ids that do not depend on the drive', () => {
+  // two generic degree-4 vertices joined by a crease: each has two modes at flat (two lines of first-order
+  // rates), and the shared crease ties one mode of each together: 2 × 2 curves; three in a row: 2 × 2 × 2
+  // (common practice: a degree-4 vertex has two curves through the flat state, kinematics notes and Tachi 2009)
+  for (const [count, curves] of [[2, 4], [3, 8]] as const) {
+    it(`${count} vertices in a row: ${curves} curves, each a ray pair, each followed by a sweep from flat`, () => {
+      const pattern = degree4Chain(count);
+      const r = flatBranches(pattern);
+      expect(r.partial).toBe(false);
+      expect(r.groups.filter((g) => g.kind === 'curve').length).toBe(curves);
+      expect(r.branches.length).toBe(2 * curves);
+      for (const b of r.branches) expect(b.verified).toBe(true);
+      // each is followed by a sweep (its branch id selects it)
+      const drive = pattern.labelIndex.get('in')!;
+      for (const b of r.branches) {
+        const sense = Math.sign(b.tangent[drive]);
+        const res = sweep(pattern, { drive, from: 0, to: sense * 10 * D, step: 2 * D, branch: b.id, method: 'continue' });
+        expect(res.status, `${b.name}: ${res.messages.map((m) => m.text).join(' ')}`).toBe('complete');
+        // the path leaves flat along the ray
+        const first = res.samples[1];
+        const t = first.angles.map((a) => a / first.angles[drive] * b.tangent[drive]);
+        const cos = t.reduce((s, x, i) => s + x * b.tangent[i], 0) / Math.hypot(...t);
+        expect(cos).toBeGreaterThan(0.99);
+      }
+    });
+  }
+
+  it('ids, names and tangents are the same whatever the drive; each ray prints its own signed ratios', () => {
+    const pattern = degree4Chain(3);
+    const a = flatBranches(pattern, { drive: pattern.labelIndex.get('in')! });
+    const b = flatBranches(pattern, { drive: pattern.labelIndex.get('u2')! });
+    const c = flatBranches(pattern);
+    for (const other of [b, c]) {
+      expect(other.branches.map((x) => [x.id, x.name])).toEqual(a.branches.map((x) => [x.id, x.name]));
+      other.branches.forEach((x, i) => expect(Array.from(x.tangent)).toEqual(Array.from(a.branches[i].tangent)));
+    }
+    for (const g of a.groups) {
+      const [plus, minus] = g.branches.map((id) => a.branches.find((x) => x.id === id)!);
+      for (const [k, v] of plus.ratios) expect(minus.ratios.get(k)).toBeCloseTo(-v, 12);
+    }
   });
 });

@@ -13,9 +13,8 @@ import { buildClosureSystem, type ClosureSystem } from '../solver/closure/blocks
 import { ClosureProblem } from '../solver/closure/newton';
 import { solveDrives } from '../solver/search/solve';
 import { wrapAngle } from '../solver/math/rotation';
-import { buildPattern } from '../solver/model/pattern';
-import type { Assignment, Pattern, PatternSource } from '../solver/types';
-import { miuraSheet } from './support/references';
+import type { Pattern } from '../solver/types';
+import { degree4Chain, miuraSheet } from './support/references';
 import { directionsFromSectors, vertexPattern } from './support/vertex';
 
 const D = Math.PI / 180;
@@ -170,32 +169,9 @@ function miuraCase(rows: number, cols: number): Sheet {
   return { pattern, sys: buildClosureSystem(pattern), drive, value: sign * 60 * D };
 }
 
-/** Generic degree-4 vertices in a row, joined by creases, each with a crease up and one down to the rim. */
 function chain(count: number): Sheet {
-  const vertices: [number, number][] = [];
-  const edges: [number, number][] = [];
-  const labels: string[] = [];
-  const assignments: Assignment[] = [];
-  const ups = [0.35, -0.3, 0.5, -0.15], downs = [-0.45, 0.25, -0.1, 0.4], ys = [0, 0.12, -0.08, 0.05];
-  const centre = (i: number) => vertices.length + 0 * i;
-  const ids: number[] = [];
-  for (let i = 0; i < count; i++) { ids.push(centre(i)); vertices.push([1.5 * i, ys[i]]); }
-  const left = vertices.push([-1.2, 0.2]) - 1, right = vertices.push([1.5 * (count - 1) + 1.2, -0.15]) - 1;
-  const top: number[] = [], bottom: number[] = [];
-  for (let i = 0; i < count; i++) { top.push(vertices.push([1.5 * i + ups[i], 1]) - 1); bottom.push(vertices.push([1.5 * i + downs[i], -1]) - 1); }
-  const crease = (a: number, b: number, l: string, as: Assignment) => { edges.push([a, b]); labels.push(l); assignments.push(as); };
-  crease(left, ids[0], 'in', 'U');
-  for (let i = 0; i + 1 < count; i++) crease(ids[i], ids[i + 1], `j${i}`, 'U');
-  crease(ids[count - 1], right, 'out', 'U');
-  for (let i = 0; i < count; i++) { crease(ids[i], top[i], `u${i}`, 'U'); crease(ids[i], bottom[i], `d${i}`, 'U'); }
-  const c0 = vertices.push([-1.2, -1]) - 1, c1 = vertices.push([1.5 * (count - 1) + 1.2, -1]) - 1;
-  const c2 = vertices.push([1.5 * (count - 1) + 1.2, 1]) - 1, c3 = vertices.push([-1.2, 1]) - 1;
-  const rim = [c0, ...bottom, c1, right, c2, ...[...top].reverse(), c3, left];
-  rim.forEach((v, k) => crease(v, rim[(k + 1) % rim.length], `b${k}`, 'B'));
-  const src: PatternSource = { name: 'chain', vertices, edges, assignments, labels, limits: edges.map(() => undefined) };
-  const { pattern, messages } = buildPattern(src);
-  expect(messages.filter((m) => m.severity === 'error')).toEqual([]);
-  return { pattern: pattern!, sys: buildClosureSystem(pattern!), drive: pattern!.labelIndex.get('in')!, value: 50 * D };
+  const pattern = degree4Chain(count);
+  return { pattern, sys: buildClosureSystem(pattern), drive: pattern.labelIndex.get('in')!, value: 50 * D };
 }
 
 describe('exhaustive enumeration of sheets against independent references', () => {

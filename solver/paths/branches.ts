@@ -17,7 +17,7 @@ import { ClosureProblem, solveSmall } from '../closure/newton';
 import { flatCone, mulberry32, nullSpace } from './cone';
 import { buildClosureSystem } from '../closure/blocks';
 import { pivotedQR, nullBasisFromQR } from '../math/qr';
-import { planPropagation } from './propagate';
+import { flatModesByVertex, rayClosesByVertex } from './flat-modes';
 
 export type BranchKind = 'curve' | 'line' | 'direction';
 
@@ -72,6 +72,8 @@ export interface BranchOptions {
   maxVariables?: number;
   /** check each ray a small step along it (default true) */
   verify?: boolean;
+  /** most curves (besides straight lines) the vertex-by-vertex analysis lists (default 64) */
+  maxCurves?: number;
 }
 
 const SIGN_EPS = 1e-9;
@@ -95,14 +97,39 @@ function heldSet(opts: BranchOptions): Set<number> {
   return new Set(opts.held ?? []);
 }
 
-/** Branches at the flat state. */
+/** Branches at the flat state: vertex by vertex where the structure decides them, else the dense tangent cone. */
 export function flatBranches(pattern: Pattern, opts: BranchOptions = {}): BranchAnalysis {
   const held = heldSet(opts);
   const messages: Message[] = [];
   const movable = pattern.creases.filter((c) => c.assignment !== 'B' && c.assignment !== 'F' && !held.has(c.index)).length;
-  const limit = opts.maxVariables ?? DENSE_LIMIT_FLAT;
   const assignment = new Float64Array(pattern.creases.length);
   for (const c of pattern.creases) if (!held.has(c.index)) assignment[c.index] = c.assignment === 'V' ? 1 : c.assignment === 'M' ? -1 : 0;
+  if (pattern.interiorVertices.length === 0) {
+    messages.push({ severity: 'info', code: 'no-interior-vertex', text: 'The pattern has no interior vertex: every free crease folds on its own.' });
+  }
+  const structural = flatModesByVertex(pattern, held, { cap: opts.maxCurves, prefer: assignment });
+  if (!('reason' in structural)) {
+    const raw: RawRay[] = [];
+    for (const c of structural.curves) raw.push({ tangent: c.tangent, line: c.line }, { tangent: c.tangent.map((x) => -x), line: c.line });
+    const sys = buildClosureSystem(pattern);
+    const problem = new ClosureProblem(pattern, (c) => held.has(c), sys);
+    const base = new Float64Array(pattern.creases.length);
+    const check = (t: Float64Array) => rayClosesByVertex(pattern, sys, t, held) ?? verifyRay(problem, base, t);
+    const result = organize(pattern, raw, held, opts, 'flat', NaN, messages, problem, base, { structural: true, check });
+    result.partial = !structural.complete;
+    if (!structural.complete) {
+      messages.push({
+        severity: 'info',
+        code: 'branches-partial',
+        text: `Every straight crease line is listed, and the first ${structural.limit} other curves found vertex by vertex (the cap): more curves leave the flat state.`,
+      });
+    }
+    if (structural.combinations) {
+      messages.push({ severity: 'info', code: 'curves-together', text: 'Curves that move no vertex in common can also fold together, in any proportion.' });
+    }
+    return result;
+  }
+  const limit = opts.maxVariables ?? DENSE_LIMIT_FLAT;
   const cone = flatCone(pattern, {
     held: (c) => held.has(c),
     seeds: [assignment, assignment.map((x) => -x)],
@@ -111,29 +138,15 @@ export function flatBranches(pattern: Pattern, opts: BranchOptions = {}): Branch
   // the flat sheet's mirror symmetry (z → −z turns every fold angle around) makes −t a ray with t
   const raw: RawRay[] = [];
   for (const r of cone.rays) raw.push({ tangent: r.tangent, line: r.straightLine }, { tangent: r.tangent.map((x) => -x), line: r.straightLine });
-  const partial = cone.partial;
   if (cone.partial) {
-    const mesh = flatModeOfMesh(pattern, held, opts.drive);
-    if (mesh) {
-      raw.push({ tangent: mesh }, { tangent: mesh.map((x) => -x) });
-      messages.push({
-        severity: 'info',
-        code: 'branches-partial',
-        text: `${movable} free creases is above the ${limit} the full flat-state analysis handles: listed are every straight crease line folding alone and the mode pair of the degree-4 mesh (found vertex by vertex); other combinations may exist.`,
-      });
-    } else {
-      messages.push({
-        severity: 'warning',
-        code: 'branches-partial',
-        text: `${movable} free creases is above the ${limit} the full flat-state analysis handles: only straight crease lines folding alone are listed.`,
-      });
-    }
+    messages.push({
+      severity: 'warning',
+      code: 'branches-partial',
+      text: `The vertex-by-vertex analysis does not apply (${structural.reason}), and ${movable} free creases is above the ${limit} the dense flat-state analysis handles: only straight crease lines folding alone are listed.`,
+    });
   }
   const result = organize(pattern, raw, held, opts, 'flat', cone.partial ? NaN : cone.linearDimension, messages);
-  result.partial = partial;
-  if (pattern.interiorVertices.length === 0) {
-    messages.push({ severity: 'info', code: 'no-interior-vertex', text: 'The pattern has no interior vertex: every free crease folds on its own.' });
-  }
+  result.partial = cone.partial;
   return result;
 }
 
@@ -340,9 +353,19 @@ function normalizeFull(t: Float64Array): void {
   for (let i = 0; i < t.length; i++) t[i] /= n;
 }
 
+interface OrganizeOptions {
+  /** the rays come from the vertex-by-vertex enumeration: each is a curve of its own (no mixtures to drop) */
+  structural?: boolean;
+  /** how to check a ray on the real equations (default: a constrained Newton step) */
+  check?: (t: Float64Array) => boolean;
+}
+
 /**
- * Group rays into curves (a ray and its opposite) and straight lines, drop rays that only mix lines, check
- * each ray a small step along it, name and number them.
+ * Group rays into curves (a ray and its opposite) and straight lines, drop rays that only mix lines (dense
+ * analysis), check each ray a small step along it, order, name and number them. Ids and names depend on the
+ * pattern and the held creases only: a curve's "+" sense is the one in which its lowest-numbered moving crease
+ * folds valley-wards; curves that follow the assignment come first, then by their sign patterns; lines after,
+ * by their lowest crease. The drive only chooses what the ratios are relative to.
  */
 function organize(
   pattern: Pattern,
@@ -354,36 +377,40 @@ function organize(
   messages: Message[],
   problem?: ClosureProblem,
   angles?: Float64Array,
+  how: OrganizeOptions = {},
 ): BranchAnalysis {
   const lines = raw.filter((r) => r.line);
   const others = raw.filter((r) => !r.line);
-  // the span of the line rays: rays inside it are lines folding together
-  const lineBasis = lines.length ? nullSpaceComplement(lines.map((l) => l.tangent)) : [];
   let mixed = 0;
   let combined = 0;
   const curves: RawRay[] = [];
-  // rays that are combinations of rays already listed (lines, or curves taken earlier) are not listed one by
-  // one: the assignment's own rays first, then the sparsest
-  const moving = (t: Float64Array) => t.reduce((a, x) => a + (Math.abs(x) > 1e-9 ? 1 : 0), 0);
-  const ranked = [...others].sort((a, b) => {
-    const ma = tangentMatchesAssignment(pattern, a.tangent) || tangentMatchesAssignment(pattern, a.tangent.map((x) => -x));
-    const mb = tangentMatchesAssignment(pattern, b.tangent) || tangentMatchesAssignment(pattern, b.tangent.map((x) => -x));
-    if (ma !== mb) return ma ? -1 : 1;
-    return moving(a.tangent) - moving(b.tangent);
-  });
-  const span = [...lineBasis];
-  for (const r of ranked) {
-    if (lineBasis.length && residualOffSpan(r.tangent, lineBasis) < 1e-6) { mixed++; continue; }
-    const inCurves = curves.some((c) => residualOffSpan(r.tangent, nullSpaceComplement([normalized(c.tangent)])) < 1e-6);
-    if (!inCurves && span.length > lineBasis.length && residualOffSpan(r.tangent, span) < 1e-6) { combined++; continue; }
-    curves.push(r);
-    if (!inCurves) span.push(...nullSpaceComplement([r.tangent].map((t) => { const v = Float64Array.from(t); for (let pass = 0; pass < 2; pass++) for (const u of span) subtractProjection(v, u); return v; })));
+  if (how.structural) curves.push(...others);
+  else {
+    // the span of the line rays: rays inside it are lines folding together
+    const lineBasis = lines.length ? nullSpaceComplement(lines.map((l) => l.tangent)) : [];
+    // rays that are combinations of rays already listed (lines, or curves taken earlier) are not listed one by
+    // one: the assignment's own rays first, then the sparsest
+    const moving = (t: Float64Array) => t.reduce((a, x) => a + (Math.abs(x) > 1e-9 ? 1 : 0), 0);
+    const ranked = [...others].sort((a, b) => {
+      const ma = tangentMatchesAssignment(pattern, a.tangent) || tangentMatchesAssignment(pattern, a.tangent.map((x) => -x));
+      const mb = tangentMatchesAssignment(pattern, b.tangent) || tangentMatchesAssignment(pattern, b.tangent.map((x) => -x));
+      if (ma !== mb) return ma ? -1 : 1;
+      return moving(a.tangent) - moving(b.tangent);
+    });
+    const span = [...lineBasis];
+    for (const r of ranked) {
+      if (lineBasis.length && residualOffSpan(r.tangent, lineBasis) < 1e-6) { mixed++; continue; }
+      const inCurves = curves.some((c) => residualOffSpan(r.tangent, nullSpaceComplement([normalized(c.tangent)])) < 1e-6);
+      if (!inCurves && span.length > lineBasis.length && residualOffSpan(r.tangent, span) < 1e-6) { combined++; continue; }
+      curves.push(r);
+      if (!inCurves) span.push(...nullSpaceComplement([r.tangent].map((t) => { const v = Float64Array.from(t); for (let pass = 0; pass < 2; pass++) for (const u of span) subtractProjection(v, u); return v; })));
+    }
   }
   // verify on the real equations
   const verify = opts.verify ?? true;
   const base = angles ?? new Float64Array(pattern.creases.length);
   const prob = problem ?? new ClosureProblem(pattern, (c) => held.has(c));
-  const checked = (t: Float64Array): boolean => (verify ? verifyRay(prob, base, t) : true);
+  const checked = (t: Float64Array): boolean => (!verify ? true : how.check ? how.check(t) : verifyRay(prob, base, t));
   // pair ±: each entry is one curve (or line) with the ray of each sense found
   interface Pending { rays: Float64Array[]; line?: number[]; kind: BranchKind }
   const pending: Pending[] = [];
@@ -406,17 +433,14 @@ function organize(
   if (dropped) {
     messages.push({ severity: 'info', code: 'ray-not-confirmed', text: `${dropped} direction(s) satisfy the first two orders but no state a small step along them closes; they are left out.` });
   }
-  // the reference crease of a curve: the drive when it moves, else the crease that moves most
-  const refOf = (t: Float64Array): number => {
-    if (opts.drive !== undefined && Math.abs(t[opts.drive]) > 1e-9) return opts.drive;
-    let best = -1, bv = 0;
-    for (let c = 0; c < t.length; c++) if (Math.abs(t[c]) > bv + 1e-9) { bv = Math.abs(t[c]); best = c; }
-    return best;
+  // the canonical crease of a curve: its lowest-numbered moving crease (independent of the drive)
+  const canonical = (t: Float64Array): number => {
+    for (let c = 0; c < t.length; c++) if (Math.abs(t[c]) > 1e-9) return c;
+    return -1;
   };
-  const plusOf = (p: Pending) => { const ref = refOf(p.rays[0]); return p.rays.find((t) => ref < 0 || t[ref] > 0) ?? p.rays[0]; };
-  // curves matching the assignment first, then by their sign pattern; lines after, in crease order
+  const plusOf = (p: Pending) => { const ref = canonical(p.rays[0]); return p.rays.find((t) => ref < 0 || t[ref] > 0) ?? p.rays[0]; };
   const key = (t: Float64Array) => Array.from(t, (x) => (x > SIGN_EPS ? '+' : x < -SIGN_EPS ? '-' : '0')).join('');
-  const matches = (p: Pending) => p.rays.some((t) => tangentMatchesAssignment(pattern, t));
+  const matches = (p: Pending) => p.rays.some((t) => tangentMatchesAssignment(pattern, t) || tangentMatchesAssignment(pattern, t.map((x) => -x)));
   pending.sort((a, b) => {
     if ((a.kind === 'line') !== (b.kind === 'line')) return a.kind === 'line' ? 1 : -1;
     if (a.kind === 'line') return Math.min(...a.line!) - Math.min(...b.line!);
@@ -429,13 +453,15 @@ function organize(
   let curveIndex = 0, lineIndex = 0;
   for (const p of pending) {
     const group = p.kind === 'line' ? `L${++lineIndex}` : letters(curveIndex++);
-    const ref = refOf(p.rays[0]);
-    const ordered = [...p.rays].sort((a, b) => (ref < 0 ? 0 : b[ref] - a[ref]));
+    const canon = canonical(p.rays[0]);
+    const ordered = [...p.rays].sort((a, b) => (canon < 0 ? 0 : b[canon] - a[canon]));
     const ids: number[] = [];
     for (const t of ordered) {
-      const sense = ref < 0 || t[ref] > 0 ? '+' : '-';
+      const sense = canon < 0 || t[canon] > 0 ? '+' : '-';
+      // ratios relative to the drive when it moves, else to the canonical crease; signed for this ray
+      const ref = opts.drive !== undefined && Math.abs(t[opts.drive]) > 1e-9 ? opts.drive : canon;
       const ratios = new Map<number, number>();
-      if (ref >= 0) for (let c = 0; c < t.length; c++) if (Math.abs(t[c]) > 1e-12) ratios.set(c, t[c] / t[ref]);
+      if (ref >= 0) for (let c = 0; c < t.length; c++) if (Math.abs(t[c]) > 1e-12) ratios.set(c, t[c] / Math.abs(t[ref]));
       const id = branches.length + 1;
       ids.push(id);
       branches.push({
@@ -451,13 +477,13 @@ function organize(
         verified: p.kind === 'line' || verify,
       });
     }
-    const refLabel = ref >= 0 ? pattern.creases[ref].label : '?';
+    const canonLabel = canon >= 0 ? pattern.creases[canon].label : '?';
     const text =
       p.kind === 'line'
         ? `straight crease line ${describeLine(pattern, p.line!)} folding alone`
         : p.kind === 'direction'
-          ? `the family through this state (+: ${refLabel} folds valley-wards)`
-          : `a curve through this state (+: ${refLabel} folds valley-wards)`;
+          ? `the family through this state (+: ${canonLabel} folds valley-wards)`
+          : `a curve through this state (+: ${canonLabel} folds valley-wards)`;
     groupsOut.push({ name: group, kind: p.kind, branches: ids, text });
   }
   if (mixed > 0 || (lines.length > 1 && state === 'flat')) {
@@ -474,8 +500,7 @@ function organize(
       text: `${combined} further direction(s) are combinations of the listed curves with straight-line folds; they are not listed one by one.`,
     });
   }
-  const result: BranchAnalysis = { state, branches, groups: groupsOut, nullity, partial: false, messages };
-  return result;
+  return { state, branches, groups: groupsOut, nullity, partial: false, messages };
 }
 
 function letters(i: number): string {
@@ -555,94 +580,6 @@ function verifyRay(problem: ClosureProblem, base: Float64Array, t: Float64Array)
   }
   // the step's direction stays within a few degrees of the ray (second-order drift is O(step))
   return norm > 0 && dot / Math.sqrt(norm) > 0.99;
-}
-
-/**
- * The flat-state mode of a degree-4 mesh by exact first-order propagation: at each vertex, given the rate
- * of one crease, the first-order equations Σ t_k u_k = 0 leave a line of rates, and the second-order
- * equation Σ_{i<j} t_i t_j sin(θ_j − θ_i) = 0 picks two points on it (the vertex's two modes); the one whose
- * signs follow the assignment (or agrees with rates already set) is taken. Returns the unit tangent, or
- * undefined when the mesh is not a degree-4 mesh or the modes do not agree around its cycles.
- */
-export function flatModeOfMesh(pattern: Pattern, held: Set<number>, drive?: number): Float64Array | undefined {
-  const sys = buildClosureSystem(pattern);
-  let start = drive;
-  if (start === undefined) {
-    // the first crease at an interior vertex with an assigned sign
-    for (let b = 0; b < sys.blockCount && start === undefined; b++)
-      for (let p = sys.blockStart[b]; p < sys.blockStart[b + 1]; p++) {
-        const a = pattern.creases[sys.slotCrease[p]].assignment;
-        if (a === 'M' || a === 'V') { start = sys.slotCrease[p]; break; }
-      }
-  }
-  if (start === undefined) return undefined;
-  const { plan } = planPropagation(pattern, sys, start, (c) => held.has(c));
-  if (!plan) return undefined;
-  const t = new Float64Array(pattern.creases.length);
-  const set = new Uint8Array(pattern.creases.length);
-  const a0 = pattern.creases[start].assignment;
-  t[start] = a0 === 'M' ? -1 : 1;
-  set[start] = 1;
-  const sign = (c: number) => { const a = pattern.creases[c].assignment; return a === 'V' ? 1 : a === 'M' ? -1 : 0; };
-  let worst = 0;
-  for (let q = 0; q < plan.order.length; q++) {
-    const b = plan.order[q];
-    const s = sys.blockStart[b];
-    const th: number[] = [];
-    const cs: number[] = [];
-    for (let k = 0; k < 4; k++) { cs.push(sys.slotCrease[s + k]); th.push(Math.atan2(sys.slotUy[s + k], sys.slotUx[s + k])); }
-    const i0 = plan.input[q];
-    const idx = [i0, (i0 + 1) & 3, (i0 + 2) & 3, (i0 + 3) & 3];
-    const t0 = t[cs[i0]];
-    // t1 u1 + t2 u2 + t3 u3 = −t0 u0: particular solution with t1 = 0, plus λ·(null vector)
-    const [, i1, i2, i3] = idx;
-    const ux = (i: number) => Math.cos(th[i]), uy = (i: number) => Math.sin(th[i]);
-    const det = ux(i2) * uy(i3) - uy(i2) * ux(i3);
-    if (Math.abs(det) < 1e-12) return undefined;
-    const rx = -t0 * ux(i0), ry = -t0 * uy(i0);
-    const p2 = (rx * uy(i3) - ry * ux(i3)) / det, p3 = (ux(i2) * ry - uy(i2) * rx) / det;
-    // null vector of [u1 u2 u3]: (sin(θ3−θ2), sin(θ1−θ3), sin(θ2−θ1))
-    const q1 = Math.sin(th[i3] - th[i2]), q2 = Math.sin(th[i1] - th[i3]), q3 = Math.sin(th[i2] - th[i1]);
-    const modeAt = (lam: number) => { const v = [0, 0, 0, 0]; v[i0] = t0; v[i1] = lam * q1; v[i2] = p2 + lam * q2; v[i3] = p3 + lam * q3; return v; };
-    // quadratic Σ_{i<j} t_i t_j sin(θ_j − θ_i) in λ
-    const Q = (v: number[]) => { let s2 = 0; for (let i = 0; i < 4; i++) for (let j = i + 1; j < 4; j++) s2 += v[i] * v[j] * Math.sin(th[j] - th[i]); return s2; };
-    const c0 = Q(modeAt(0)), c1 = Q(modeAt(1)), cm = Q(modeAt(-1));
-    const A = (c1 + cm) / 2 - c0, B = (c1 - cm) / 2, C = c0;
-    let roots: number[];
-    if (Math.abs(A) < 1e-14) roots = Math.abs(B) < 1e-14 ? [] : [-C / B];
-    else {
-      const disc = B * B - 4 * A * C;
-      if (disc < -1e-14) return undefined;
-      const sq = Math.sqrt(Math.max(0, disc));
-      roots = [(-B + sq) / (2 * A), (-B - sq) / (2 * A)];
-    }
-    if (!roots.length) return undefined;
-    const score = (v: number[]) => {
-      let sc = 0;
-      for (const i of [i1, i2, i3]) {
-        const c = cs[i];
-        if (set[c]) sc += 1e3 * Math.abs(v[i] - t[c]);
-        else { const sg = sign(c); if (sg !== 0 && v[i] * sg < 0) sc += 1; }
-      }
-      return sc;
-    };
-    const modes = roots.map(modeAt);
-    const best = modes.reduce((a, b) => (score(b) < score(a) ? b : a));
-    for (const i of [i1, i2, i3]) {
-      const c = cs[i];
-      if (set[c]) worst = Math.max(worst, Math.abs(best[i] - t[c]));
-      else { t[c] = best[i]; set[c] = 1; }
-    }
-  }
-  if (worst > 1e-9) return undefined;
-  // the rays must satisfy the linear equations at every vertex
-  for (let b = 0; b < sys.blockCount; b++) {
-    let x = 0, y = 0;
-    for (let p = sys.blockStart[b]; p < sys.blockStart[b + 1]; p++) { x += t[sys.slotCrease[p]] * sys.slotUx[p]; y += t[sys.slotCrease[p]] * sys.slotUy[p]; }
-    if (Math.hypot(x, y) > 1e-9) return undefined;
-  }
-  normalizeFull(t);
-  return t;
 }
 
 /** Helper for callers: the held set of a list of drives. */

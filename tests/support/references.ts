@@ -1,6 +1,7 @@
 // Reference relations shared by several test files; each names its source.
 import { miura } from '../../solver/model/generators';
 import { buildPattern } from '../../solver/model/pattern';
+import type { Assignment, Pattern, PatternSource } from '../../solver/types';
 
 /**
  * Spherical four-bar input–output equation of a degree-4 vertex whose links are the sector arcs
@@ -48,4 +49,31 @@ export function miuraSheet(rows: number, cols: number, a: number, b: number, alp
   const drive = pattern!.labelIndex.get(g.project!.drives[0].crease)!;
   const sign = Math.sign(g.project!.drives[0].angleDeg);
   return { pattern: pattern!, drive, sign, vid: (i: number, j: number) => j * (2 * cols + 1) + i };
+}
+
+/** Generic degree-4 vertices in a row joined by creases `j0…`, each with a crease up (`u…`) and one down (`d…`) to the rim, `in` and `out` at the ends. */
+export function degree4Chain(count: number): Pattern {
+  const vertices: [number, number][] = [];
+  const edges: [number, number][] = [];
+  const labels: string[] = [];
+  const assignments: Assignment[] = [];
+  const ups = [0.35, -0.3, 0.5, -0.15], downs = [-0.45, 0.25, -0.1, 0.4], ys = [0, 0.12, -0.08, 0.05];
+  const ids: number[] = [];
+  for (let i = 0; i < count; i++) ids.push(vertices.push([1.5 * i, ys[i]]) - 1);
+  const left = vertices.push([-1.2, 0.2]) - 1, right = vertices.push([1.5 * (count - 1) + 1.2, -0.15]) - 1;
+  const top: number[] = [], bottom: number[] = [];
+  for (let i = 0; i < count; i++) { top.push(vertices.push([1.5 * i + ups[i], 1]) - 1); bottom.push(vertices.push([1.5 * i + downs[i], -1]) - 1); }
+  const crease = (a: number, b: number, l: string, as: Assignment) => { edges.push([a, b]); labels.push(l); assignments.push(as); };
+  crease(left, ids[0], 'in', 'U');
+  for (let i = 0; i + 1 < count; i++) crease(ids[i], ids[i + 1], `j${i}`, 'U');
+  crease(ids[count - 1], right, 'out', 'U');
+  for (let i = 0; i < count; i++) { crease(ids[i], top[i], `u${i}`, 'U'); crease(ids[i], bottom[i], `d${i}`, 'U'); }
+  const c0 = vertices.push([-1.2, -1]) - 1, c1 = vertices.push([1.5 * (count - 1) + 1.2, -1]) - 1;
+  const c2 = vertices.push([1.5 * (count - 1) + 1.2, 1]) - 1, c3 = vertices.push([-1.2, 1]) - 1;
+  const rim = [c0, ...bottom, c1, right, c2, ...[...top].reverse(), c3, left];
+  rim.forEach((v, k) => crease(v, rim[(k + 1) % rim.length], `b${k}`, 'B'));
+  const src: PatternSource = { name: 'chain', vertices, edges, assignments, labels, limits: edges.map(() => undefined) };
+  const { pattern, messages } = buildPattern(src);
+  if (!pattern) throw new Error(`degree4Chain: ${messages.map((m) => m.text).join('; ')}`);
+  return pattern;
 }
