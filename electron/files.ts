@@ -145,14 +145,25 @@ export class NotRegularFileError extends Error {
   readonly code = 'ENOTREG';
 }
 
+/** A file being written in pieces that takes its target's place only when it is complete. */
+export interface AtomicFile {
+  /** append to the temporary file */
+  write(data: string | Uint8Array): Promise<void>;
+  /** flush, rename over the target, flush the folder */
+  commit(): Promise<void>;
+  /** remove the temporary file; the target is untouched */
+  abort(): Promise<void>;
+}
+
 /**
- * Write `data` to `filePath` so that a crash at any moment leaves either the old file or the new one:
- * write a temporary file beside it, flush it to disk, rename it over the target (atomic on one volume),
- * then flush the folder so the rename itself survives a power cut. A symbolic link is followed (the file
- * it points to is replaced, the link stays); the target's permissions are kept; stale temporary files of
- * earlier interrupted saves of the same target are removed first.
+ * Start replacing `filePath` so that a crash at any moment leaves either the old file or the new one:
+ * a temporary file beside it takes the pieces, is flushed to disk, renamed over the target (atomic on one
+ * volume), then the folder is flushed so the rename itself survives a power cut. A symbolic link is
+ * followed (the file it points to is replaced, the link stays); the target's permissions are kept;
+ * folders, pipes, devices and read-only files are refused; stale temporary files of earlier interrupted
+ * saves of the same target are removed first.
  */
-export async function writeFileAtomic(filePath: string, data: string | Uint8Array): Promise<void> {
+export async function createAtomicFile(filePath: string): Promise<AtomicFile> {
   const target = await fs.realpath(filePath).catch(() => filePath);
   const old = await fs.stat(target).catch(() => undefined);
   if (old && !old.isFile()) throw new NotRegularFileError(`${path.basename(filePath)} is not a regular file`);
@@ -161,24 +172,61 @@ export async function writeFileAtomic(filePath: string, data: string | Uint8Arra
   await removeStaleTemps(target);
   const temp = tempFileFor(target);
   inFlight.add(temp);
+  let handle: Awaited<ReturnType<typeof fs.open>> | undefined;
   try {
     // a new file gets 0666 less the umask, as any program's; a replaced one keeps its permissions
-    const handle = await fs.open(temp, 'wx', 0o666);
-    try {
-      await handle.writeFile(data);
-      if (old) await handle.chmod(old.mode & 0o777);
-      await handle.sync();
-    } finally {
-      await handle.close();
-    }
-    await fs.rename(temp, target);
+    handle = await fs.open(temp, 'wx', 0o666);
+    if (old) await handle.chmod(old.mode & 0o777);
   } catch (err) {
+    await handle?.close().catch(() => undefined);
     await fs.rm(temp, { force: true });
-    throw err;
-  } finally {
     inFlight.delete(temp);
+    throw err;
   }
-  await syncFolder(path.dirname(target));
+  const open = handle;
+  let done = false;
+  const abort = async () => {
+    if (done) return;
+    done = true;
+    await open.close().catch(() => undefined);
+    await fs.rm(temp, { force: true });
+    inFlight.delete(temp);
+  };
+  return {
+    async write(data) {
+      if (done) throw new Error('the file is already complete');
+      await open.writeFile(data);
+    },
+    async commit() {
+      if (done) throw new Error('the file is already complete');
+      try {
+        await open.sync();
+        await open.close();
+        done = true;
+        await fs.rename(temp, target);
+      } catch (err) {
+        done = false;
+        await abort();
+        throw err;
+      } finally {
+        inFlight.delete(temp);
+      }
+      await syncFolder(path.dirname(target));
+    },
+    abort,
+  };
+}
+
+/** Replace `filePath` with `data` whole (see createAtomicFile). */
+export async function writeFileAtomic(filePath: string, data: string | Uint8Array): Promise<void> {
+  const file = await createAtomicFile(filePath);
+  try {
+    await file.write(data);
+  } catch (err) {
+    await file.abort();
+    throw err;
+  }
+  await file.commit();
 }
 
 export function describeWriteError(filePath: string, err: unknown): string {

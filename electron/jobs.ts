@@ -258,11 +258,25 @@ const ExportRequest = z.object({
   /** tables: the document's file name and its bytes on disk (absent when never saved), and the program version */
   file: z.object({ name: z.string().max(4096), bytes: FileBytes.optional() }).optional(),
   version: z.string().max(100).optional(),
+  /** tables: send the text to main in pieces as it is written (main writes the file as they come) */
+  stream: z.boolean().optional(),
 });
 
 export interface ExportData {
+  /** the file's text; empty when it went to main in pieces (`streamed`) */
   data: string;
   extension: string;
+  streamed?: boolean;
+}
+
+/** Pieces of about a megabyte: few messages, and main's memory holds a piece, not the table. */
+const PIECE = 1 << 20;
+
+/** A table goes to main in pieces when main writes it as it comes (the request asks, the context can), else whole. */
+function deliver(text: string, extension: string, stream: boolean | undefined, ctx?: JobContext): ExportData {
+  if (!stream || !ctx?.write) return { data: text, extension };
+  for (let i = 0; i < text.length; i += PIECE) ctx.write(text.slice(i, i + PIECE));
+  return { data: '', extension, streamed: true };
 }
 
 export function exportJob(state: JobState, payload: unknown, ctx?: JobContext): ExportData {
@@ -287,7 +301,8 @@ export function exportJob(state: JobState, payload: unknown, ctx?: JobContext): 
       const stored = exportPath(state, pattern, req.key, req.sweep, req.kind === 'angle-table', ctx);
       const file = req.file ?? { name: 'pattern.hingeplan.json' };
       const header = (command: string) => appTableHeader(pattern, req.project, file, req.version ?? 'unknown', command);
-      return req.kind === 'angle-table' ? writeAngleTable(pattern, stored, req.options, file.name, header) : writeSchedule(pattern, stored, req.options, file.name, header, ctx);
+      const table = req.kind === 'angle-table' ? writeAngleTable(pattern, stored, req.options, file.name, header) : writeSchedule(pattern, stored, req.options, file.name, header, ctx);
+      return deliver(table.data, table.extension, req.stream, ctx);
     }
   }
 }

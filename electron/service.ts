@@ -18,7 +18,7 @@ import {
   type ResponseOf,
   type WriteResult,
 } from './contract';
-import { describeWriteError, readFileBytes, removeStaleTemps, writeFileAtomic, type RecentFiles, type RecoveryStore } from './files';
+import { createAtomicFile, describeWriteError, readFileBytes, removeStaleTemps, writeFileAtomic, type AtomicFile, type RecentFiles, type RecoveryStore } from './files';
 import type { LaneName, SolverClient } from './solver-client';
 import { RequestRegistry, type Request } from './requests';
 import { LruMap } from './lru';
@@ -187,6 +187,44 @@ export function createService(deps: ServiceDeps) {
     return { status: 'saved', filePath, fileName: path.basename(filePath) };
   }
 
+  /**
+   * A table written into its file while the worker computes it: pieces are appended to a temporary file in
+   * order, which replaces the target only when the job finished; a failure, a cancel or a full disk leave
+   * the target as it was (and a write error stops the job).
+   */
+  async function streamTo(request: Request, target: string, payload: Record<string, unknown>, onProgress?: (done: number, total: number, phase?: string) => void): Promise<WriteResult> {
+    let file: AtomicFile;
+    try {
+      file = await createAtomicFile(target);
+    } catch (err) {
+      return { status: 'failed', message: describeWriteError(target, err) };
+    }
+    let writing = Promise.resolve();
+    let writeError: unknown;
+    const onChunk = (data: string) => {
+      writing = writing.then(() => (writeError ? undefined : file.write(data))).catch((err: unknown) => {
+        writeError ??= err;
+        solver.cancel(request.id);
+      });
+    };
+    const outcome = await job<{ streamed?: boolean; data: string }>(request, 'export', 'export', payload, { onProgress, onChunk });
+    await writing;
+    if (outcome.status !== 'done' || request.cancelled || writeError) {
+      await file.abort();
+      if (writeError) return { status: 'failed', message: describeWriteError(target, writeError) };
+      if (outcome.status === 'failed') return { status: 'failed', message: outcome.error.message };
+      return { status: 'canceled' };
+    }
+    try {
+      if (!outcome.value.streamed) await file.write(outcome.value.data);
+      await file.commit();
+    } catch (err) {
+      await file.abort();
+      return { status: 'failed', message: describeWriteError(target, err) };
+    }
+    return { status: 'saved', filePath: target, fileName: path.basename(target) };
+  }
+
   const progressTo = (requestId: string | undefined) =>
     requestId ? (done: number, total: number, phase?: string) => host.emit('job:progress', { requestId, done, total, ...(phase ? { phase } : {}) }) : undefined;
 
@@ -288,11 +326,14 @@ export function createService(deps: ServiceDeps) {
             if (read.ok) file.bytes = read.bytes;
           }
         }
-        const payload = { kind, project, key, ...(sweep ? { sweep: { pathId, ...sweep } } : {}), options, file, version: startup.version };
-        const outcome = await job<{ data: string }>(r, 'export', 'export', payload, { onProgress: progressTo(requestId) });
-        if (outcome.status === 'failed') return { status: 'failed', message: outcome.error.message };
-        if (outcome.status !== 'done' || r.cancelled) return { status: 'canceled' };
-        return writeTo(target, outcome.value.data);
+        const payload = { kind, project, key, ...(sweep ? { sweep: { pathId, ...sweep } } : {}), options, file, version: startup.version, stream: table };
+        if (!table) {
+          const outcome = await job<{ data: string }>(r, 'export', 'export', payload, { onProgress: progressTo(requestId) });
+          if (outcome.status === 'failed') return { status: 'failed', message: outcome.error.message };
+          if (outcome.status !== 'done' || r.cancelled) return { status: 'canceled' };
+          return writeTo(target, outcome.value.data);
+        }
+        return streamTo(r, target, payload, progressTo(requestId));
       });
     },
 

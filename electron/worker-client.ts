@@ -21,6 +21,8 @@ export interface RunOptions {
   /** a newer job with the same key supersedes this one */
   supersedeKey?: string;
   onProgress?: (done: number, total: number, phase?: string) => void;
+  /** pieces of the file the job writes, in order */
+  onChunk?: (data: string) => void;
 }
 
 export interface WorkerLike {
@@ -199,6 +201,10 @@ export class WorkerLane {
     if (!job || message.seq !== job.seq) return;
     if (message.type === 'progress') {
       if (!job.dropped) job.options.onProgress?.(message.done, message.total, message.phase);
+      return;
+    }
+    if (message.type === 'chunk') {
+      if (!job.dropped) job.options.onChunk?.(message.data);
       return;
     }
     this.running = undefined;

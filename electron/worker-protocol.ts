@@ -33,6 +33,13 @@ export interface ProgressMessage {
   phase?: string;
 }
 
+/** A piece of the file a job writes (a table), in order; main appends it to the file as it comes. */
+export interface ChunkMessage {
+  type: 'chunk';
+  seq: number;
+  data: string;
+}
+
 export interface JobError {
   code: string;
   message: string;
@@ -43,12 +50,14 @@ export type ResultMessage =
   | { type: 'result'; seq: number; ok: true; value: unknown; stopped?: boolean }
   | { type: 'result'; seq: number; ok: false; error: JobError };
 
-export type FromWorker = ProgressMessage | ResultMessage;
+export type FromWorker = ProgressMessage | ChunkMessage | ResultMessage;
 
 export interface JobContext {
   progress(done: number, total: number, phase?: string): void;
   /** true once the main side asked this job to stop */
   shouldStop(): boolean;
+  /** send a piece of the job's output file to main, which writes it as it comes (absent: return the whole text) */
+  write?(data: string): void;
 }
 
 /** A job returns its value; it throws a JobFailure for an error that is the caller's to show. */
@@ -100,6 +109,9 @@ export function serveJobs(port: PortLike, jobs: Record<string, Job>, now: () => 
       shouldStop: () => {
         Atomics.add(cancel, POLL_CELL, 1);
         return Atomics.load(cancel, STOP_CELL) === seq;
+      },
+      write(data) {
+        if (data) port.postMessage({ type: 'chunk', seq, data } satisfies ChunkMessage);
       },
     };
     try {

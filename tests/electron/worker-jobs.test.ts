@@ -2,8 +2,8 @@
 // refused in seconds with bounded memory, as error values the window shows; every job carries a request id
 // and can be cancelled; an export runs beside sweeps, not before them; a superseded solve that never looks
 // at the stop flag does not hold the interactive lane.
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { existsSync, mkdtempSync, promises as fs, readFileSync } from 'node:fs';
+import { afterAll, afterEach, beforeAll, describe, expect, it, vi } from 'vitest';
+import { existsSync, mkdtempSync, promises as fs, readdirSync, readFileSync } from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { createService, type DialogHost } from '../../electron/service';
@@ -76,6 +76,8 @@ beforeAll(async () => {
   call = (channel, payload) => service.dispatch(channel, payload) as never;
   expect(await call('pattern:set', { key: 'coupon', source: couponProject.source })).toMatchObject({ ok: true });
 });
+
+afterEach(() => vi.restoreAllMocks());
 
 afterAll(async () => {
   solver.dispose();
@@ -200,5 +202,52 @@ describe('every job can be cancelled by its request id', () => {
     // the grace period of a job that looks at its stop flag is 4 s; a solve never looks, and the full
     // 40 × 40 solve takes seconds more than that
     expect(waited).toBeLessThan(3500);
+  });
+
+  it('writes a table into its file in pieces as they come; a full disk stops the job and keeps the old file', async () => {
+    const pathId = await couponPath('path-pieces');
+    const dir = path.join(tmp, 'pieces');
+    await fs.mkdir(dir);
+    const target = path.join(dir, 'coupon.schedule.csv');
+    await fs.writeFile(target, 'the schedule from last week\n');
+    // every write of a file handle is counted; the third one finds the disk full
+    let writes = 0;
+    const open = fs.open.bind(fs);
+    vi.spyOn(fs, 'open').mockImplementation(async (...args: Parameters<typeof fs.open>) => {
+      const handle = await open(...args);
+      if (String(args[0]).includes('.hingeplan-save-')) {
+        const write = handle.writeFile.bind(handle);
+        handle.writeFile = (async (data: string) => {
+          if (++writes === 3) throw Object.assign(new Error('no space left on device'), { code: 'ENOSPC' });
+          return write(data);
+        }) as typeof handle.writeFile;
+      }
+      return handle;
+    });
+    host.save.push(target);
+    const options = { timeS: 100, rows: 12_000, format: 'csv' };
+    const full = await call('doc:export', { kind: 'schedule', project: couponProject, key: 'coupon', pathId, options, suggestedName: 'c' });
+    expect(full).toEqual({ ok: true, value: { status: 'failed', message: 'coupon.schedule.csv was not saved: the disk is full' } });
+    expect(readFileSync(target, 'utf8')).toBe('the schedule from last week\n');
+    expect(readdirSync(dir)).toEqual(['coupon.schedule.csv']);
+    // with room on the disk the same export arrives in several pieces, whole
+    vi.restoreAllMocks();
+    writes = 0;
+    const counted = fs.open.bind(fs);
+    vi.spyOn(fs, 'open').mockImplementation(async (...args: Parameters<typeof fs.open>) => {
+      const handle = await counted(...args);
+      const write = handle.writeFile.bind(handle);
+      handle.writeFile = (async (data: string) => {
+        writes++;
+        return write(data);
+      }) as typeof handle.writeFile;
+      return handle;
+    });
+    host.save.push(target);
+    expect(await call('doc:export', { kind: 'schedule', project: couponProject, key: 'coupon', pathId, options, suggestedName: 'c' })).toMatchObject({ ok: true, value: { status: 'saved' } });
+    expect(writes).toBeGreaterThanOrEqual(3);
+    const rows = readFileSync(target, 'utf8').split('\n').filter((l) => l && !l.startsWith('#'));
+    expect(rows.length).toBe(12_001);
+    expect(readdirSync(dir)).toEqual(['coupon.schedule.csv']);
   });
 });
