@@ -6,5 +6,7 @@ export interface Command {
   summary: string;
   /** full --help text */
   help: string;
+  /** the command reads no pattern file, so it takes no drawing options (--layer, --stroke, --snap) */
+  readsNoPattern?: boolean;
   run(argv: string[], io: Io): Promise<number> | number;
 }

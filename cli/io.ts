@@ -1,6 +1,8 @@
 // The command line's contact with the outside world, passed in so that tests can run commands in-process.
 import { readFileSync, renameSync, writeFileSync, statSync, unlinkSync } from 'node:fs';
 import { basename, dirname, join } from 'node:path';
+import type { DrawingOptions } from '../solver/formats/drawing';
+import { decodeDxf } from '../solver/formats/dxf-text';
 
 export interface Io {
   stdout(text: string): void;
@@ -13,6 +15,8 @@ export interface Io {
   onInterrupt(handler: () => void): () => void;
   /** true when stderr is a terminal (progress lines are drawn only then, or when forced) */
   stderrIsTTY: boolean;
+  /** how to read DXF and SVG drawings (--layer, --stroke, --snap), when the command line gave any */
+  drawing?: DrawingOptions;
 }
 
 /** Largest input file the command line reads (the readers' own limits apply too). */
@@ -27,6 +31,8 @@ export function nodeIo(): Io {
         const st = statSync(path);
         if (st.isDirectory()) return { error: `${path} is a folder, not a file` };
         if (st.size > MAX_INPUT_BYTES) return { error: `${path} is ${(st.size / 1048576).toFixed(1)} MiB; the limit is ${MAX_INPUT_BYTES / 1048576} MiB` };
+        // a DXF from before AutoCAD 2007 is in a Windows code page, not UTF-8
+        if (/\.dxf$/i.test(path)) return { text: decodeDxf(readFileSync(path)).text };
         return { text: readFileSync(path, 'utf8') };
       } catch (e) {
         const code = (e as NodeJS.ErrnoException).code;

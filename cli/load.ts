@@ -30,7 +30,7 @@ export function loadFile(io: Io, path: string | undefined, command: string): Loa
     io.stderr(`hingeplan ${command}: ${read.error}\n`);
     return undefined;
   }
-  const result = loadPatternText(read.text, path);
+  const result = loadPatternText(read.text, path, io.drawing);
   const errors = result.messages.filter((m) => m.severity === 'error');
   if (!result.pattern || !result.project || errors.length) {
     printMessages(io, result.messages, `${path}: `);

@@ -4,6 +4,7 @@ import { UsageError } from './args';
 import { EXIT } from './exit-codes';
 import { nodeIo, type Io } from './io';
 import { VERSION } from './version';
+import { DRAWING_OPTIONS_HELP, takeDrawingOptions } from './drawing-options';
 
 export const USAGE = `hingeplan ${VERSION}: fold-angle solver for rigid-panel deployable structures
 
@@ -33,10 +34,16 @@ export async function main(argv: string[], io: Io): Promise<number> {
     return EXIT.usage;
   }
   if (rest.includes('--help') || rest.includes('-h')) {
-    io.stdout(command.help.endsWith('\n') ? command.help : command.help + '\n');
+    const help = command.readsNoPattern ? command.help : command.help.trimEnd() + '\n' + DRAWING_OPTIONS_HELP;
+    io.stdout(help.endsWith('\n') ? help : help + '\n');
     return EXIT.ok;
   }
   try {
+    if (!command.readsNoPattern) {
+      const taken = takeDrawingOptions(rest);
+      const drawingIo: Io = { ...io, drawing: taken.options };
+      return await command.run(taken.argv, drawingIo);
+    }
     return await command.run(rest, io);
   } catch (e) {
     if (e instanceof UsageError) {

@@ -88,7 +88,7 @@ export type IpcError = z.output<typeof IpcErrorSchema>;
 
 // ---------- documents ----------
 
-export const DocumentFormatSchema = z.enum(['project', 'fold']);
+export const DocumentFormatSchema = z.enum(['project', 'fold', 'dxf', 'svg']);
 
 export const OpenedDocumentSchema = z.object({
   project: ProjectSchema,
@@ -322,7 +322,7 @@ export const SweepOptionsSchema = z.object({
 });
 export type SweepOptionsDto = z.input<typeof SweepOptionsSchema>;
 
-export const ExportKindSchema = z.enum(['fold', 'obj', 'stl', 'shape-json', 'angle-table', 'schedule']);
+export const ExportKindSchema = z.enum(['fold', 'dxf', 'svg', 'obj', 'stl', 'shape-json', 'angle-table', 'schedule']);
 export type ExportKind = z.output<typeof ExportKindSchema>;
 
 export const ScheduleProfileSchema = z.enum(['constant', 'trapezoid', 's-curve']);
@@ -375,7 +375,7 @@ export type StartupInfo = z.output<typeof StartupSchema>;
 export const channels = {
   'app:startup': { request: empty, response: StartupSchema },
   'doc:new': { request: GeneratorSpecSchema.and(z.object(optionalRequestId)), response: OpenResultSchema },
-  'doc:open': { request: z.object({ format: z.enum(['any', 'fold']).default('any'), ...optionalRequestId }), response: OpenResultSchema },
+  'doc:open': { request: z.object({ format: z.enum(['any', 'fold', 'drawing']).default('any'), ...optionalRequestId }), response: OpenResultSchema },
   'doc:open-recent': { request: z.object({ path: z.string().max(4096), ...optionalRequestId }), response: OpenResultSchema },
   'doc:save': {
     request: z.object({
@@ -457,9 +457,12 @@ export const MenuCommandSchema = z.enum([
   'new',
   'open',
   'import-fold',
+  'import-drawing',
   'save',
   'save-as',
   'export-fold',
+  'export-dxf',
+  'export-svg',
   'export-obj',
   'export-stl',
   'export-table',

@@ -15,8 +15,10 @@ import {
   singleVertex,
   solveDrives,
   waterbomb,
+  writeDxf,
   writeFold,
   writeProject,
+  writeSvg,
   type Drive,
   type Pattern,
   type PatternSource,
@@ -41,7 +43,7 @@ import {
   type SolveResultDto,
 } from './contract';
 import { JobFailure } from './worker-protocol';
-import { decodeUtf8, isBytes } from './text-bytes';
+import { fileText, isBytes } from './text-bytes';
 import { ExportSweepSchema, exportPath } from './export-path';
 import { checkAngleTableSize, checkScheduleSize } from './work-limits';
 import { LruMap } from './lru';
@@ -104,8 +106,8 @@ const LoadRequest = z.object({ bytes: FileBytes, fileName: z.string().max(4096) 
 
 export function loadJob(_state: JobState, payload: unknown) {
   const { bytes, fileName } = parse(LoadRequest, payload, 'load');
-  const decoded = decodeUtf8(bytes, fileName);
-  const format = /\.fold$/i.test(fileName) ? ('fold' as const) : ('project' as const);
+  const decoded = fileText(bytes, fileName);
+  const format = /\.fold$/i.test(fileName) ? ('fold' as const) : /\.svg$/i.test(fileName) ? ('svg' as const) : ('project' as const);
   if (!decoded.ok) return { ok: false as const, format, messages: [{ severity: 'error' as const, code: decoded.code, text: decoded.message, where: { line: decoded.line } }] };
   const loaded = loadPatternText(decoded.text, fileName);
   const msgs = messages(loaded.messages);
@@ -290,6 +292,10 @@ export function exportJob(state: JobState, payload: unknown, ctx?: JobContext): 
   switch (req.kind) {
     case 'fold':
       return { data: writeFold(req.project as Project, req.options.anglesDeg ? { foldAngles: angles() } : {}), extension: 'fold' };
+    case 'dxf':
+      return { data: writeDxf(req.project as Project), extension: 'dxf' };
+    case 'svg':
+      return { data: writeSvg(req.project as Project), extension: 'svg' };
     case 'obj':
       return { data: shapeToOBJ(pattern, foldedShape(pattern, angles(), base)), extension: 'obj' };
     case 'stl':

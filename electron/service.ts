@@ -13,6 +13,7 @@ import {
   type ExportKind,
   type MessageDto,
   type OpenResult,
+  type OpenedDocument,
   type ParsedRequestOf,
   type ProjectDto,
   type ResponseOf,
@@ -73,9 +74,12 @@ export type Handlers = { [C in Channel]: (request: ParsedRequestOf<C>) => Promis
 
 const PROJECT_FILTER: FileFilter = { name: 'Hingeplan project', extensions: ['json'] };
 const FOLD_FILTER: FileFilter = { name: 'FOLD crease pattern', extensions: ['fold'] };
+const DRAWING_FILTER: FileFilter = { name: 'Drawing (DXF or SVG)', extensions: ['dxf', 'svg'] };
 
 export const EXPORT_FILES: Record<ExportKind, { title: string; filter: FileFilter; suffix: string }> = {
   fold: { title: 'Export FOLD', filter: FOLD_FILTER, suffix: '.fold' },
+  dxf: { title: 'Export flat pattern as DXF', filter: { name: 'DXF drawing', extensions: ['dxf'] }, suffix: '.dxf' },
+  svg: { title: 'Export flat pattern as SVG', filter: { name: 'SVG drawing', extensions: ['svg'] }, suffix: '.svg' },
   obj: { title: 'Export folded shape (OBJ)', filter: { name: 'Wavefront OBJ', extensions: ['obj'] }, suffix: '.obj' },
   stl: { title: 'Export folded shape (STL)', filter: { name: 'STL mesh', extensions: ['stl'] }, suffix: '.stl' },
   'shape-json': { title: 'Export folded shape (JSON)', filter: { name: 'JSON', extensions: ['json'] }, suffix: '.shape.json' },
@@ -84,7 +88,7 @@ export const EXPORT_FILES: Record<ExportKind, { title: string; filter: FileFilte
 };
 
 function baseName(name: string): string {
-  return name.replace(/\.hingeplan\.json$/i, '').replace(/\.(json|fold)$/i, '') || 'pattern';
+  return name.replace(/\.hingeplan\.json$/i, '').replace(/\.(json|fold|dxf|svg)$/i, '') || 'pattern';
 }
 
 export function exportFileName(kind: ExportKind, suggestedName: string, format: 'csv' | 'json'): string {
@@ -116,7 +120,7 @@ function valueOf<T>(outcome: LaneOutcome<T>): T {
 
 interface LoadAnswer {
   ok: boolean;
-  format: 'project' | 'fold';
+  format: OpenedDocument['format'];
   project?: ProjectDto;
   messages: MessageDto[];
 }
@@ -262,8 +266,12 @@ export function createService(deps: ServiceDeps) {
 
     async 'doc:open'({ format, requestId }) {
       return asRequest<OpenResult>(requestId, { status: 'canceled' }, async (r) => {
-        const filters = format === 'fold' ? [FOLD_FILTER] : [{ name: 'Patterns', extensions: ['json', 'fold'] }, PROJECT_FILTER, FOLD_FILTER];
-        const chosen = await host.chooseOpenFile({ title: format === 'fold' ? 'Import FOLD' : 'Open pattern', filters });
+        const filters =
+          format === 'fold' ? [FOLD_FILTER]
+          : format === 'drawing' ? [DRAWING_FILTER]
+          : [{ name: 'Patterns', extensions: ['json', 'fold', 'dxf', 'svg'] }, PROJECT_FILTER, FOLD_FILTER, DRAWING_FILTER];
+        const title = format === 'fold' ? 'Import FOLD' : format === 'drawing' ? 'Import drawing (DXF or SVG)' : 'Open pattern';
+        const chosen = await host.chooseOpenFile({ title, filters });
         if (!chosen) return { status: 'canceled' };
         return openFile(r, chosen, { computePath: true });
       });
@@ -286,8 +294,9 @@ export function createService(deps: ServiceDeps) {
 
     async 'doc:save'({ project, filePath, saveAs, suggestedName, requestId }) {
       return asRequest<WriteResult>(requestId, { status: 'canceled' }, async (r) => {
-        // the page's filePath is only a hint: a path main never approved makes Save ask, as Save As does
-        let target = !saveAs && filePath && !/\.fold$/i.test(filePath) && (await approved.has(filePath)) ? filePath : null;
+        // the page's filePath is only a hint: a path main never approved makes Save ask, as Save As does;
+        // a FOLD file or a drawing is not written over with a project either
+        let target = !saveAs && filePath && !/\.(fold|dxf|svg)$/i.test(filePath) && (await approved.has(filePath)) ? filePath : null;
         if (!target) {
           target = await host.chooseSaveFile({ title: 'Save project', defaultName: `${baseName(suggestedName)}.hingeplan.json`, filters: [PROJECT_FILTER] });
           if (!target) return { status: 'canceled' };

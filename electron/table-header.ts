@@ -6,7 +6,7 @@
 import type { Pattern } from '../solver/types';
 import type { TableHeader } from '../solver/outputs/table';
 import { sha256, sha256Bytes } from '../solver/outputs/sha256';
-import { decodeUtf8 } from './text-bytes';
+import { fileText } from './text-bytes';
 import { loadPatternText, writeProject, type Project } from '../solver';
 import { PatternSourceSchema, type DriveSpec, type ExportOptionsSchema, type ProjectDto, type SweepOptionsSchema } from './contract';
 import type { z } from 'zod';
@@ -33,7 +33,7 @@ export interface HeaderFile {
  * command reproduces the table only once that is saved.
  */
 export function fileFields(project: ProjectDto, file: HeaderFile): { file: string; fileSha256: string } {
-  const decoded = file.bytes ? decodeUtf8(file.bytes, file.name) : undefined;
+  const decoded = file.bytes ? fileText(file.bytes, file.name) : undefined;
   if (file.bytes && decoded?.ok) {
     const loaded = loadPatternText(decoded.text, file.name);
     // both through the contract's schema, so key order and null-for-absent cannot make equal patterns differ

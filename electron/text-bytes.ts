@@ -1,6 +1,8 @@
-// A file crosses from the main process to the solver worker as its bytes. The worker decodes them (UTF-8
-// only, as the readers take it; a leading byte-order mark dropped) and a table header hashes the bytes
+// A file crosses from the main process to the solver worker as its bytes. The worker decodes them (UTF-8,
+// as the readers take it, a leading byte-order mark dropped; a DXF in its own code page) and a table header hashes the bytes
 // themselves, so the SHA-256 it records is the one `sha256sum` prints for the file. Pure: no Node imports.
+
+import { decodeDxf } from '../solver/formats/dxf-text';
 
 export type DecodeOutcome = { ok: true; text: string } | { ok: false; code: string; message: string; line: number };
 
@@ -57,6 +59,14 @@ function lineOf(bytes: Uint8Array, offset: number): number {
   let line = 1;
   for (let i = 0; i < offset && i < bytes.length; i++) if (bytes[i] === 0x0a) line++;
   return line;
+}
+
+/**
+ * The text of a pattern file's bytes as the readers take it: a DXF file in its own encoding (UTF-8 from
+ * AutoCAD 2007 on, else the code page its header names: solver/formats/dxf-text.ts), anything else UTF-8.
+ */
+export function fileText(bytes: Uint8Array, name: string): DecodeOutcome {
+  return /\.dxf$/i.test(name) ? { ok: true, text: decodeDxf(bytes).text } : decodeUtf8(bytes, name);
 }
 
 /** The text of a file's bytes, or a message naming the first byte that is not UTF-8 and its line. */

@@ -82,9 +82,10 @@ export function App({ controller }: { controller: Controller }) {
         <button onClick={() => dispatch({ type: 'dialog', dialog: 'new' })} title="New pattern from a generator (Ctrl+N)">New…</button>
         <button onClick={() => void controller.open('any')} title="Open a project or FOLD file (Ctrl+O)">Open…</button>
         <button onClick={() => void controller.open('fold')} title="Import a FOLD file (Ctrl+I)">Import FOLD…</button>
+        <button onClick={() => void controller.open('drawing')} title="Import a crease pattern drawn in CAD or a drawing program (DXF or SVG)">Import drawing…</button>
         <button onClick={() => void controller.save(false)} disabled={!doc} title="Save (Ctrl+S)">Save</button>
         <button onClick={() => void controller.save(true)} disabled={!doc} title="Save as (Ctrl+Shift+S)">Save as…</button>
-        <button onClick={() => dispatch({ type: 'dialog', dialog: 'export' })} disabled={!doc} title="Export tables, FOLD, OBJ, STL (Ctrl+E)">Export…</button>
+        <button onClick={() => dispatch({ type: 'dialog', dialog: 'export' })} disabled={!doc} title="Export tables, FOLD, DXF, SVG, OBJ, STL (Ctrl+E)">Export…</button>
         <span className="sep" />
         <button onClick={() => controller.undo()} disabled={!doc || !canUndo(doc.history)} title="Undo (Ctrl+Z)">Undo</button>
         <button onClick={() => controller.redo()} disabled={!doc || !canRedo(doc.history)} title="Redo (Ctrl+Shift+Z)">Redo</button>

@@ -93,6 +93,9 @@ export class Controller {
     this.store.dispatch({ type: 'document-opened', document: doc, id: newId('doc') });
     const problems = doc.messages.filter((m) => m.severity !== 'info');
     if (problems.length) this.store.dispatch({ type: 'notice', kind: 'warning', title: `${doc.fileName}: the readers reported`, messages: problems });
+    // a drawing's cleaning report (what was snapped, split, merged, dropped) is worth seeing once
+    const report = doc.format === 'dxf' || doc.format === 'svg' ? doc.messages.filter((m) => m.severity === 'info') : [];
+    if (report.length) this.store.dispatch({ type: 'notice', kind: 'info', title: `${doc.fileName}: how the drawing was read`, messages: report });
     this.store.dispatch({ type: 'fit-view' });
     if (doc.computePath && doc.project.drives.length === 1) void this.computePath();
     if (doc.recovered) this.scheduleRecovery();
@@ -111,8 +114,8 @@ export class Controller {
     return true;
   }
 
-  async open(format: 'any' | 'fold' = 'any'): Promise<void> {
-    if (!(await this.confirmDiscard(format === 'fold' ? 'import a FOLD file' : 'open another file'))) return;
+  async open(format: 'any' | 'fold' | 'drawing' = 'any'): Promise<void> {
+    if (!(await this.confirmDiscard(format === 'fold' ? 'import a FOLD file' : format === 'drawing' ? 'import a drawing' : 'open another file'))) return;
     const r = await this.api.open({ format });
     if (!r.ok) return this.fail('The file could not be opened', r.error.message);
     this.opened(r.value);
@@ -151,7 +154,7 @@ export class Controller {
     const doc = this.state.doc;
     if (!doc) return false;
     const project = doc.history.present;
-    const r = await this.api.save({ project, filePath: doc.filePath, saveAs: saveAs || doc.format === 'fold', suggestedName: doc.fileName });
+    const r = await this.api.save({ project, filePath: doc.filePath, saveAs: saveAs || doc.format !== 'project', suggestedName: doc.fileName });
     if (!r.ok) {
       this.fail('The document was not saved', r.error.message);
       return false;
@@ -430,6 +433,8 @@ export class Controller {
         return this.open('any');
       case 'import-fold':
         return this.open('fold');
+      case 'import-drawing':
+        return this.open('drawing');
       case 'open-recent':
         if (path) return this.openRecent(path);
         return;
@@ -444,6 +449,12 @@ export class Controller {
         return;
       case 'export-fold':
         await this.exportFile('fold', {});
+        return;
+      case 'export-dxf':
+        await this.exportFile('dxf', {});
+        return;
+      case 'export-svg':
+        await this.exportFile('svg', {});
         return;
       case 'export-obj':
         await this.exportFile('obj', {});

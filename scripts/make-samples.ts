@@ -1,4 +1,5 @@
-// Writes the sample patterns in samples/, each as a Hingeplan project and as FOLD.
+// Writes the sample patterns in samples/, each as a Hingeplan project and as FOLD; the sunshade panel's flat
+// pattern also as DXF and SVG (for a laser cutter or CAD).
 // Run: npx tsx scripts/make-samples.ts   (commit the outputs; tests check the files match this script)
 import { mkdirSync, writeFileSync } from 'node:fs';
 import { dirname, join, resolve } from 'node:path';
@@ -6,6 +7,8 @@ import { fileURLToPath } from 'node:url';
 import { degree5, miura, singleVertex, waterbomb, type GeneratorResult } from '../solver/model/generators';
 import { writeProject, type Project } from '../solver/formats/project';
 import { writeFold } from '../solver/formats/fold';
+import { writeDxf } from '../solver/formats/dxf-write';
+import { writeSvg } from '../solver/formats/svg-write';
 import { CAUTIONS } from '../solver/formats/cautions';
 
 export const SAMPLES_DIR = join(dirname(fileURLToPath(import.meta.url)), '..', 'samples');
@@ -73,11 +76,15 @@ export function sampleProjects(): [string, Project][] {
   ];
 }
 
-/** Both files of every sample: [file name, text]. */
+/** Samples whose flat pattern is also written as drawings. */
+export const DRAWN_SAMPLES = ['sunshade-panel'];
+
+/** Every file of every sample: [file name, text]. */
 export function sampleFiles(): [string, string][] {
   return sampleProjects().flatMap(([name, project]): [string, string][] => [
     [`${name}.hingeplan.json`, writeProject(project)],
     [`${name}.fold`, writeFold(project)],
+    ...(DRAWN_SAMPLES.includes(name) ? ([[`${name}.dxf`, writeDxf(project)], [`${name}.svg`, writeSvg(project)]] as [string, string][]) : []),
   ]);
 }
 

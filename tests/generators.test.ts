@@ -302,12 +302,12 @@ describe('sample files', () => {
   const files = sampleFiles();
 
   it('are the files scripts/make-samples.ts writes (run it after changing a generator)', () => {
-    expect(files.length).toBe(8);
+    expect(files.length).toBe(10); // a project and a FOLD file each, and the sunshade's DXF and SVG
     for (const [name, text] of files) expect(readFileSync(join(SAMPLES_DIR, name), 'utf8'), name).toBe(text);
   });
 
   it('load without errors or warnings in both formats, to the same pattern and drives, with the cautions in the notes', () => {
-    const stems = new Set(files.map(([n]) => n.replace(/\.(hingeplan\.json|fold)$/, '')));
+    const stems = new Set(files.map(([n]) => n.replace(/\.(hingeplan\.json|fold|dxf|svg)$/, '')));
     expect([...stems].sort()).toEqual(['gripper-cell', 'hinge-coupon', 'sunshade-panel', 'two-motor-rig']);
     for (const stem of stems) {
       const a = loadPatternText(readFileSync(join(SAMPLES_DIR, `${stem}.hingeplan.json`), 'utf8'), `${stem}.hingeplan.json`);

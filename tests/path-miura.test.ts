@@ -116,3 +116,17 @@ describe('Miura-ori path from 1° to 179° (Schenk & Guest 2013)', () => {
     expect(r.samples.length).toBe(4);
   });
 });
+
+describe('where the condition number is evaluated (as the README and --help say)', () => {
+  it('every sample up to 400 free creases, every ⌈n/100⌉ and the last up to 4000, the last only above', async () => {
+    const { defaultConditionEvery } = await import('../solver/paths/sweep');
+    expect(defaultConditionEvery(400)).toBe(1);
+    expect(defaultConditionEvery(401)).toBe(5);
+    expect(defaultConditionEvery(4000)).toBe(40);
+    expect(defaultConditionEvery(4001)).toBe(Infinity);
+    const { pattern, drive, sign } = sheet(3, 3, 40, 30, 70);
+    const r = sweep(pattern, { drive, from: sign * 10 * D, to: sign * 60 * D, step: 10 * D, conditionEvery: Infinity });
+    expect(r.samples.map((s) => Number.isFinite(s.condition))).toEqual([false, false, false, false, false, true]);
+    expect(r.messages.some((m) => m.code === 'condition-last-only')).toBe(true);
+  });
+});

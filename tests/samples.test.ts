@@ -4,6 +4,7 @@ import { readFileSync } from 'node:fs';
 import { loadPatternText } from '../solver/formats/project';
 import { solveDrives } from '../solver/search/solve';
 import { foldedShape } from '../solver/outputs/shape';
+import { DRAWN_SAMPLES } from '../scripts/make-samples';
 
 const samples: [string, number, number][] = [
   // name, pattern DOF (common practice: a degree-n vertex has n − 3; Miura-ori one; waterbomb base three), drives
@@ -37,6 +38,21 @@ describe('samples', () => {
       // the FOLD copy gives the same first solution
       const again = solveDrives(fold.pattern!, fold.drives!.length ? fold.drives! : drives);
       for (let i = 0; i < first.angles.length; i++) expect(again.solutions[0].angles[i]).toBeCloseTo(first.angles[i], 9);
+    });
+  }
+});
+
+describe('samples drawn for a laser cutter or CAD', () => {
+  for (const name of DRAWN_SAMPLES) {
+    it(`${name}: the DXF and SVG read back to the project's creases, assignments and labels`, () => {
+      const project = loadPatternText(readFileSync(`samples/${name}.hingeplan.json`, 'utf8'), `${name}.hingeplan.json`).pattern!;
+      const key = (p: typeof project) => p.creases.map((c) => `${c.label}:${c.assignment}:${c.length.toFixed(9)}`).sort();
+      for (const ext of ['dxf', 'svg']) {
+        const r = loadPatternText(readFileSync(`samples/${name}.${ext}`, 'utf8'), `${name}.${ext}`);
+        expect(r.messages.filter((m) => m.severity !== 'info'), ext).toEqual([]);
+        expect(key(r.pattern!), ext).toEqual(key(project));
+        expect(r.project!.units).toBe('mm');
+      }
     });
   }
 });

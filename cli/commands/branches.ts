@@ -46,17 +46,21 @@ export const branchesCommand: Command = {
 Lists the rays that leave a state: the tangent-cone analysis at the flat state (first order Σρu = 0 at every
 vertex, second order Σρρ sin = 0), or at a folded state from the real Jacobian and the second order of the
 closure. Rays are grouped: a curve through the state (its two senses, e.g. A+ and A−), or a straight crease
-line folding alone (L1+, L1−, …). Each ray has its first-order angle ratios (dρ/dρ of a reference crease: the
-drive when given, else the crease that moves most), whether its signs match the mountain/valley assignment,
-and an id for \`hingeplan sweep --branch\`. Above 400 free creases the flat analysis lists the straight lines
-and, for meshes of degree-4 vertices, the mode pair found vertex by vertex (marked partial).
+line folding alone (L1+, L1−, …). Where every vertex has at most four free creases the flat state's curves
+are found vertex by vertex (each vertex's two modes, tied together across shared creases): every curve, or
+the first 64 besides the straight lines when there are more (marked partial). Elsewhere the dense tangent-cone
+analysis runs (up to 400 free creases). Ids and names depend on the pattern and the held creases only: "+"
+is the sense in which a curve's lowest-numbered moving crease folds valley-wards; the drive only sets what the
+ratios are relative to. Each ray has its own signed first-order ratios (dρ/|dρ| of the reference crease: the
+drive when it moves, else the curve's lowest-numbered moving crease), whether its signs match the
+mountain/valley assignment, and the id for \`hingeplan sweep --branch\`.
 
   --at <crease>=<deg>    analyse the state with these fold angles instead of the flat state (solved as
                          \`hingeplan solve --set …\` would); repeat for more creases.
   --solution <k>         with --at: which solution (1-based); default: the first matching the assignment.
   --hold <crease>=<deg>  creases held in the analysis (they do not move along any ray; use the same holds as
                          the sweep that will follow a ray). At the flat state holds must be 0.
-  --drive <crease>       ratios relative to this crease, and "+" means it folds valley-wards.
+  --drive <crease>       ratios relative to this crease (ids and names do not change with it).
   --json                 {"state", "nullity", "partial", "angles"?, "branches": [{"id": <int>, "name": <string>,
                          "group", "kind": "curve"|"line"|"direction", "matchesAssignment": <bool>, "tangent":
                          {"<crease>": <num>}, "reference", "ratios": {"<crease>": <num>}, "line"?, "verified"}],
@@ -86,17 +90,19 @@ Exit status 0; 2 invalid input; 3 the --at values have no state.`,
       const drives = drivesFor(io, loaded, ats.map((a) => a), file!);
       if (!drives) return EXIT.usage;
       const all = [...drives, ...holds.filter((h) => !drives.some((d) => d.crease === h.crease))];
-      const report = solveDrives(pattern, all);
-      if (!report.solutions.length) {
+      const report = solveDrives(pattern, all, { detail: 0, conditions: 0 });
+      // isolated solutions, else a point of the family the values leave
+      const states = report.solutions.length ? report.solutions : report.families.map((f) => f.representative);
+      if (!states.length) {
         printMessages(io, report.messages, `${file}: `);
         return exitForStatus(report.status);
       }
-      let k = Math.max(0, report.solutions.findIndex((s) => s.matchesAssignment));
+      let k = Math.max(0, states.findIndex((s) => s.matchesAssignment));
       if (values.solution !== undefined) {
         k = intOption(values.solution as string, 'solution') - 1;
-        if (k < 0 || k >= report.solutions.length) throw new UsageError(`--solution must be from 1 to ${report.solutions.length}, got ${k + 1}`);
+        if (k < 0 || k >= states.length) throw new UsageError(`--solution must be from 1 to ${states.length}, got ${k + 1}`);
       }
-      at = report.solutions[k].angles;
+      at = states[k].angles;
       analysis = branchesAt(pattern, at, { held, drive });
     } else {
       if (holds.some((h) => h.value !== 0)) throw new UsageError('--hold values must be 0 at the flat state (use --at to analyse a folded state)');
@@ -112,11 +118,11 @@ Exit status 0; 2 invalid input; 3 the --at values have no state.`,
     if (analysis.branches.length) {
       out.push('');
       const label = (c: number) => pattern.creases[c].label;
-      out.push(textTable(['id', 'name', 'matches M/V', 'reference', 'ratios (first order)'], analysis.branches.map((b) => {
+      out.push(textTable(['id', 'name', 'matches M/V', 'moves', 'reference', 'ratios (first order)'], analysis.branches.map((b) => {
         const entries = [...b.ratios].filter(([c]) => c !== b.reference);
-        const text = entries.slice(0, 6).map(([c, r]) => `${label(c)} ${r.toFixed(4)}`).join(', ') + (entries.length > 6 ? `, … (${entries.length - 6} more)` : '');
-        return [b.id, b.name, b.matchesAssignment ? 'yes' : 'no', b.reference >= 0 ? label(b.reference) : '', text];
-      }), ['r', 'l', 'l', 'l', 'l']).trimEnd());
+        const text = entries.slice(0, 5).map(([c, r]) => `${label(c)} ${r.toFixed(4)}`).join(', ') + (entries.length > 5 ? ', …' : '');
+        return [b.id, b.name, b.matchesAssignment ? 'yes' : 'no', `${b.ratios.size} creases`, b.reference >= 0 ? label(b.reference) : '', text];
+      }), ['r', 'l', 'l', 'r', 'l', 'l']).trimEnd());
       out.push('');
       for (const g of analysis.groups) out.push(`${g.name}: ${g.text} (ids ${g.branches.join(', ')})`);
     }

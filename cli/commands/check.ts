@@ -12,13 +12,14 @@ export const check: Command = {
   summary: 'validate a pattern file and summarise it (vertices, creases, panels, holes, diagnostics)',
   help: `Usage: hingeplan check <file> [--json]
 
-Reads a project file (.hingeplan.json) or a FOLD file (.fold), validates it, and prints a summary: vertices,
+Reads a project file (.hingeplan.json), a FOLD file (.fold) or a drawing (.dxf, .svg), validates it, and prints a summary: vertices,
 interior vertices, creases by assignment, panels, holes, the base panel, the drives stored in the file, and
 every diagnostic (with the vertex, crease or field it concerns). Exit status 0 when the file is usable,
 2 when it is refused.
 
   --json   JSON on stdout: {valid, name, vertices, interiorVertices, creases, assignments, panels, holes,
-           basePanel, drives, vertexDefects, messages}`,
+           basePanel, drives, vertexDefects, cleaning? (drawings: what each cleaning step did, with the
+           snap), messages}`,
   run(argv, io) {
     const { values, positionals } = parseCommandArgs(argv, { json: { type: 'boolean' } });
     const path = positionals[0];
@@ -28,13 +29,14 @@ every diagnostic (with the vertex, crease or field it concerns). Exit status 0 w
         io.stdout(JSON.stringify({ valid: false, messages: [{ severity: 'error', code: 'unreadable-file', text: read.error }] }, null, 2) + '\n');
         return EXIT.usage;
       }
-      const r = loadPatternText(read.text, path);
+      const r = loadPatternText(read.text, path, io.drawing);
       const valid = !!r.pattern && !r.messages.some((m) => m.severity === 'error');
       if (!valid || !r.pattern) {
         io.stdout(JSON.stringify({ valid: false, messages: r.messages.map(messageJson) }, null, 2) + '\n');
         return EXIT.usage;
       }
-      io.stdout(JSON.stringify({ valid: true, ...summary(r.pattern, r.project?.drives ?? []), messages: r.messages.map(messageJson) }, null, 2) + '\n');
+      const cleaning = r.cleaning ? { cleaning: r.cleaning } : {};
+      io.stdout(JSON.stringify({ valid: true, ...summary(r.pattern, r.project?.drives ?? []), ...cleaning, messages: r.messages.map(messageJson) }, null, 2) + '\n');
       return EXIT.ok;
     }
     const loaded = loadFile(io, path, 'check');

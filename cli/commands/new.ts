@@ -17,6 +17,7 @@ function list(value: string | undefined, name: string): number[] | undefined {
 }
 
 export const newCommand: Command = {
+  readsNoPattern: true,
   name: 'new',
   summary: 'write a project file from a built-in generator (vertex, miura, waterbomb, degree5)',
   help: `Usage: hingeplan new <kind> [options] [--out <file>] [--name <text>]

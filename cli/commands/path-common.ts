@@ -47,8 +47,9 @@ export const PATH_OPTIONS_HELP = `  --hold <crease>=<deg>  hold another crease a
                          auto (default): exact vertex-by-vertex propagation for meshes of degree-4
                          vertices with nothing held, else pseudo-arclength continuation.
   --condition-every <k>  evaluate the condition number every k samples and at the last (default: every sample
-                         up to 400 free creases, every ⌈n/100⌉ up to 4000, none above; 0: none); other samples
-                         show it as empty (CSV) or null. Branch points are detected where it is evaluated.
+                         up to 400 free creases, every ⌈n/100⌉ up to 4000, the last sample only above; 0: none);
+                         other samples show it as empty (CSV) or null. Branch points are detected where it is
+                         evaluated; near-singular flags come from every vertex's own pivots at every sample.
   --progress             show a progress line on stderr even when it is not a terminal.
   --out <file>           write to a file (atomically) instead of stdout. Ctrl-C stops the computation and
                          writes what was computed so far, complete and parseable (exit status 130).`;

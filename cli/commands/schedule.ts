@@ -125,7 +125,7 @@ over a limit; 2 invalid input; 130 stopped by Ctrl-C (the rows computed are writ
     if (!writeOutput(io, 'schedule', text, values.out as string | undefined)) return EXIT.usage;
     if (interrupted || result.status === 'stopped') { io.stderr('hingeplan schedule: stopped by Ctrl-C; the rows computed so far are written, the rest are flagged.\n'); return EXIT_INTERRUPTED; }
     if (result.rows.some((r) => r.unreachable) || result.status === 'failed') return EXIT.noSolution;
-    if (result.rows.some((r) => r.overRate.length || r.overAcceleration.length)) return EXIT.notDetermined;
+    if (result.hinges.some((h) => h.rowsOverRate || h.rowsOverAcceleration || h.overBetweenRows)) return EXIT.notDetermined;
     return EXIT.ok;
   },
 };

@@ -40,24 +40,32 @@ other panel turns about the creases between it and the base. Vertex positions ar
     const { pattern } = loaded;
     const base = values['base-panel'] === undefined ? pattern.basePanel : intOption(values['base-panel'] as string, 'base-panel');
     if (base < 0 || base >= pattern.panels.length) throw new UsageError(`--base-panel must be a panel index from 0 to ${pattern.panels.length - 1}, got ${base}`);
-    const report = solveDrives(pattern, drives);
-    if (!report.solutions.length) {
+    const report = solveDrives(pattern, drives, { detail: 0, conditions: 0 });
+    const family = !report.solutions.length ? report.families[0] : undefined;
+    if (!report.solutions.length && !family) {
       printMessages(io, report.messages, `${path}: `);
       return exitForStatus(report.status);
     }
-    let k: number;
+    let k = 0;
     if (values.solution !== undefined) {
+      if (family) throw new UsageError(`there are no isolated solutions to choose from: the drives leave a family of states (${report.status})`);
       k = intOption(values.solution as string, 'solution') - 1;
       if (k < 0 || k >= report.solutions.length) throw new UsageError(`--solution must be from 1 to ${report.solutions.length}, got ${k + 1}`);
-    } else {
+    } else if (!family) {
       k = Math.max(0, report.solutions.findIndex((s) => s.matchesAssignment));
     }
-    const sol = report.solutions[k];
+    const sol = family ? family.representative : report.solutions[k];
+    if (family) {
+      // a continuum: the shape is one member of it, and the person must know that
+      io.stderr(`warning: the drives leave a family of states (${family.dof} degree(s) of freedom); the shape written is one member of it, not a solution. Add drives to fix the pattern (see hingeplan solve).\n`);
+    }
     const sh = foldedShape(pattern, sol.angles, base);
     const text =
       format === 'obj' ? shapeToOBJ(pattern, sh)
       : format === 'stl' ? shapeToSTL(pattern, sh)
-      : JSON.stringify(shapeToJSON(pattern, sh, { solution: k + 1, status: report.status, maxResidual: sol.maxResidual }), null, 2) + '\n';
+      : JSON.stringify(shapeToJSON(pattern, sh, family
+        ? { family: { dof: family.dof }, status: report.status, maxResidual: sol.maxResidual }
+        : { solution: k + 1, status: report.status, maxResidual: sol.maxResidual }), null, 2) + '\n';
     if (values.out) {
       const w = io.writeFile(values.out as string, text);
       if (w.error) { io.stderr(`hingeplan shape: ${w.error}\n`); return EXIT.usage; }

@@ -141,6 +141,8 @@ const EXPORT_WORDS: Record<ExportKind, string> = {
   'angle-table': 'Angle table of the computed path',
   schedule: 'Deployment schedule of the computed path',
   fold: 'FOLD file (pattern and the fold angles on screen)',
+  dxf: 'Flat pattern as DXF (a layer per assignment, for CAD and laser cutters)',
+  svg: 'Flat pattern as SVG (a group per assignment)',
   obj: 'Folded shape as OBJ',
   stl: 'Folded shape as STL',
   'shape-json': 'Folded shape as JSON',

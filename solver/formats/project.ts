@@ -11,6 +11,10 @@ import { buildPattern } from '../model/pattern';
 import { resolveDrives, type DriveSpec } from '../model/drives';
 import { MAX_CREASES, MAX_TEXT_BYTES, MAX_VERTICES, readJsonText } from './limits';
 import { parseFoldValue } from './fold';
+import { drawingToProject, type DrawingOptions } from './drawing';
+import { parseDxf } from './dxf';
+import { parseSvg } from './svg';
+import type { CleanCounts } from '../model/clean';
 
 export { MAX_CREASES, MAX_TEXT_BYTES, MAX_VERTICES };
 
@@ -274,22 +278,44 @@ export function writeProject(project: Project): string {
 
 // ---------------------------------------------------------------------------------------------------
 
+export type PatternFormat = 'project' | 'fold' | 'dxf' | 'svg';
+
 export interface LoadResult {
   /** which reader took the file */
-  format?: 'project' | 'fold';
+  format?: PatternFormat;
   project?: Project;
   /** present when the pattern built without errors (drive errors do not remove it) */
   pattern?: Pattern;
   /** the project's drives that passed the checks, resolved to crease indices and radians */
   drives?: Drive[];
+  /** DXF and SVG: what the geometry cleaning did, step by step, and the snap it used */
+  cleaning?: CleanCounts & { snap: number };
   messages: Message[];
+}
+
+/** A drawing format told by the file's extension, else by its first characters; undefined for JSON. */
+export function drawingFormat(text: string, fileName?: string): 'dxf' | 'svg' | undefined {
+  if (typeof fileName === 'string') {
+    if (/\.dxf$/i.test(fileName)) return 'dxf';
+    if (/\.svg$/i.test(fileName)) return 'svg';
+    if (/\.(json|fold)$/i.test(fileName)) return undefined;
+  }
+  if (typeof text !== 'string') return undefined;
+  const head = text.slice(0, 4096).replace(/^\uFEFF/, '').trimStart();
+  if (head.startsWith('{') || head.startsWith('[')) return undefined;
+  if (head.startsWith('<') && /<svg[\s>]/.test(head)) return 'svg';
+  if (/^(0\s*\r?\n\s*SECTION|999\s*\r?\n)/.test(head) || head.startsWith('AutoCAD Binary DXF')) return 'dxf';
+  return undefined;
 }
 
 /**
  * Read any pattern file the program knows (a project or FOLD, told apart by the `.fold` extension or a
- * `vertices_coords` key), build the pattern and check the drives. Never throws.
+ * `vertices_coords` key; a DXF or SVG drawing, by extension or content), build the pattern and check the
+ * drives. `drawing` says how to read a drawing's layers, colours and snap. Never throws.
  */
-export function loadPatternText(text: string, fileName?: string): LoadResult {
+export function loadPatternText(text: string, fileName?: string, drawing: DrawingOptions = {}): LoadResult {
+  const kind = drawingFormat(text, fileName);
+  if (kind) return loadDrawing(kind, text, fileName, drawing);
   const read = readJsonText(text, 'file');
   if (read.value === undefined) return { messages: read.messages };
   const value = read.value;
@@ -307,6 +333,19 @@ export function loadPatternText(text: string, fileName?: string): LoadResult {
   const resolved = resolveDrives(built.pattern, project.drives);
   messages.push(...resolved.messages);
   return { format, project, pattern: built.pattern, drives: resolved.drives, messages };
+}
+
+function loadDrawing(format: 'dxf' | 'svg', text: string, fileName: string | undefined, options: DrawingOptions): LoadResult {
+  const drawing = format === 'dxf' ? parseDxf(text, fileName) : parseSvg(text, fileName);
+  const r = drawingToProject(drawing, options);
+  const base: LoadResult = { format, messages: r.messages };
+  if (r.cleaning) base.cleaning = r.cleaning;
+  if (!r.project) return base;
+  const built = buildPattern(r.project.source);
+  base.messages = [...r.messages, ...built.messages.map((m) => (r.locate ? r.locate(m) : m))];
+  base.project = r.project;
+  if (!built.pattern) return base;
+  return { ...base, pattern: built.pattern, drives: [] };
 }
 
 /** Point a pattern message at the place in the file, in that file's own field names. */

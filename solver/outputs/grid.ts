@@ -4,6 +4,7 @@
 
 import type { Drive, Message, Pattern } from '../types';
 import { runSteps, sweepSteps, type SweepHooks } from '../paths/sweep';
+import { assignmentSigns } from '../search/states';
 
 export interface GridAxis {
   drive: number;
@@ -86,8 +87,11 @@ export function* gridSteps(pattern: Pattern, opts: GridOptions, hooks: SweepHook
       samples: x.values,
       holds: [...holds, { crease: y.drive, value: y.values[j] }],
       start: start.angles,
-      // a row that starts at flat takes the ray that continues the row before it
-      ...(j > 0 && nodes[j - 1][Math.min(1, x.values.length - 1)].angles ? { prefer: direction(nodes[j - 1][Math.min(1, x.values.length - 1)].angles!, nodes[j - 1][0].angles) } : {}),
+      // a row that starts at flat takes the ray that continues the row before it, the first row the ray
+      // nearest the assignment's signs (the flat node itself is always reached)
+      prefer: j > 0 && nodes[j - 1][Math.min(1, x.values.length - 1)].angles
+        ? direction(nodes[j - 1][Math.min(1, x.values.length - 1)].angles!, nodes[j - 1][0].angles)
+        : assignmentSigns(pattern),
     }, { shouldStop: hooks.shouldStop });
     const byValue = new Map(row.samples.map((s) => [s.drive, s] as const));
     const why = row.events.find((e) => e.type !== 'branch-point')?.text ?? row.messages.find((m) => m.severity === 'error')?.text ?? 'not reached';

@@ -127,6 +127,8 @@ export interface ScheduleOptions {
   limits?: HingeLimits;
   /** limits per crease index (override the global ones) */
   hingeLimits?: Map<number, HingeLimits>;
+  /** how the path is followed (see SweepOptions.method) */
+  method?: SweepOptions['method'];
 }
 
 export interface ScheduleRow {
@@ -148,14 +150,35 @@ export interface ScheduleRow {
 
 export interface HingeSummary {
   crease: number;
+  /** largest |velocity| (rad/s) over the rows and the profile's checks between them, and when */
   peakRate: number;
+  peakRateAt: number;
+  /** largest |acceleration| (rad/s²), and when */
   peakAcceleration: number;
+  peakAccelerationAt: number;
   rowsOverRate: number;
   rowsOverAcceleration: number;
+  /** over a limit between rows (at a profile breakpoint or a peak found between two rows) */
+  overBetweenRows: boolean;
+}
+
+/** A state solved between rows, where some hinge's velocity or acceleration may peak. */
+export interface ProfileCheck {
+  t: number;
+  drive: number;
+  /** why this instant: a phase boundary of the profile, or a peak between two rows */
+  reason: 'breakpoint' | 'peak';
+  velocities: Float64Array;
+  accelerations: Float64Array;
+  maxResidual: number;
+  overRate: number[];
+  overAcceleration: number[];
 }
 
 export interface ScheduleResult {
   rows: ScheduleRow[];
+  /** states between rows where peaks were looked for (the limits hold between rows too) */
+  checks: ProfileCheck[];
   hinges: HingeSummary[];
   events: SweepEvent[];
   messages: Message[];
@@ -183,13 +206,13 @@ export function deploymentSchedule(pattern: Pattern, opts: ScheduleOptions, hook
 export function* scheduleSteps(pattern: Pattern, opts: ScheduleOptions, hooks: SweepHooks = {}): Generator<void, ScheduleResult> {
   const messages: Message[] = [];
   const { profile, message } = driveProfile(opts.profile);
-  if (!profile) return { rows: [], hinges: [], events: [], messages: [message!], status: 'failed' };
+  if (!profile) return { rows: [], checks: [], hinges: [], events: [], messages: [message!], status: 'failed' };
   if (opts.dt !== undefined && !(opts.dt > 0)) {
-    return { rows: [], hinges: [], events: [], messages: [{ severity: 'error', code: 'bad-step', text: `The time step must be positive, not ${opts.dt}.` }], status: 'failed' };
+    return { rows: [], checks: [], hinges: [], events: [], messages: [{ severity: 'error', code: 'bad-step', text: `The time step must be positive, not ${opts.dt}.` }], status: 'failed' };
   }
   const times = timeRows(opts.profile.duration, opts.dt, opts.rows);
   if (times.length > 100_000) {
-    return { rows: [], hinges: [], events: [], messages: [{ severity: 'error', code: 'too-many-rows', text: `${times.length} rows is more than the 100000 a schedule takes; use a larger time step.` }], status: 'failed' };
+    return { rows: [], checks: [], hinges: [], events: [], messages: [{ severity: 'error', code: 'too-many-rows', text: `${times.length} rows is more than the 100000 a schedule takes; use a larger time step.` }], status: 'failed' };
   }
   const states = times.map((t) => profile.at(t));
   // the path is solved at distinct drive values in order (rest phases repeat a value)
@@ -204,6 +227,7 @@ export function* scheduleSteps(pattern: Pattern, opts: ScheduleOptions, hooks: S
     branch: opts.branch,
     solution: opts.solution,
     curvature: true,
+    method: opts.method,
   };
   const path = yield* sweepSteps(pattern, sweepOpts, hooks);
   messages.push(...path.messages);
@@ -227,12 +251,13 @@ export function* scheduleSteps(pattern: Pattern, opts: ScheduleOptions, hooks: S
     }
     return { t: st.t, drive: st.position, driveVelocity: st.velocity, driveAcceleration: st.acceleration, angles: s.angles, velocities, accelerations, maxResidual: s.maxResidual, overRate, overAcceleration };
   });
-  const hinges = summarize(pattern, rows);
+  const checks = yield* peaksBetweenRows(pattern, opts, profile, rows, limitOf, hooks);
+  const hinges = summarize(pattern, rows, checks);
   const unreachable = rows.filter((r) => r.unreachable).length;
   if (unreachable) {
     messages.push({ severity: 'error', code: 'unreachable-rows', text: `${unreachable} of ${rows.length} rows have no state on the path (${endText}); they are flagged and the others are solved.` });
   }
-  const over = hinges.filter((h) => h.rowsOverRate || h.rowsOverAcceleration);
+  const over = hinges.filter((h) => h.rowsOverRate || h.rowsOverAcceleration || h.overBetweenRows);
   if (over.length) {
     messages.push({
       severity: 'warning',
@@ -240,8 +265,17 @@ export function* scheduleSteps(pattern: Pattern, opts: ScheduleOptions, hooks: S
       text: `${over.length} hinge(s) exceed a rate or acceleration limit: ${over.slice(0, 6).map((h) => pattern.creases[h.crease].label).join(', ')}${over.length > 6 ? ` and ${over.length - 6} more` : ''}.`,
     });
   }
+  const between = hinges.filter((h) => h.overBetweenRows && !h.rowsOverRate && !h.rowsOverAcceleration);
+  if (between.length) {
+    messages.push({
+      severity: 'warning',
+      code: 'over-limit-between-rows',
+      text: `${between.map((h) => `${pattern.creases[h.crease].label} (peak ${(h.peakRate * DEG).toFixed(2)} deg/s at t = ${h.peakRateAt.toFixed(4)} s)`).slice(0, 6).join(', ')} exceed a limit between rows only: no row shows it; a finer time step puts a row there.`,
+    });
+  }
   return {
     rows,
+    checks,
     hinges,
     events: path.events,
     messages,
@@ -251,20 +285,111 @@ export function* scheduleSteps(pattern: Pattern, opts: ScheduleOptions, hooks: S
   };
 }
 
-function summarize(pattern: Pattern, rows: ScheduleRow[]): HingeSummary[] {
+function summarize(pattern: Pattern, rows: ScheduleRow[], checks: ProfileCheck[]): HingeSummary[] {
   const out: HingeSummary[] = [];
   for (const c of pattern.creases) {
     if (c.assignment === 'B' || c.assignment === 'F') continue;
-    let peakRate = 0, peakAcceleration = 0, rowsOverRate = 0, rowsOverAcceleration = 0;
+    const h: HingeSummary = { crease: c.index, peakRate: 0, peakRateAt: 0, peakAcceleration: 0, peakAccelerationAt: 0, rowsOverRate: 0, rowsOverAcceleration: 0, overBetweenRows: false };
+    const take = (t: number, v: Float64Array | undefined, a: Float64Array | undefined) => {
+      if (v && Math.abs(v[c.index]) > h.peakRate) { h.peakRate = Math.abs(v[c.index]); h.peakRateAt = t; }
+      if (a && Math.abs(a[c.index]) > h.peakAcceleration) { h.peakAcceleration = Math.abs(a[c.index]); h.peakAccelerationAt = t; }
+    };
     for (const r of rows) {
-      if (r.velocities) peakRate = Math.max(peakRate, Math.abs(r.velocities[c.index]));
-      if (r.accelerations) peakAcceleration = Math.max(peakAcceleration, Math.abs(r.accelerations[c.index]));
-      if (r.overRate.includes(c.index)) rowsOverRate++;
-      if (r.overAcceleration.includes(c.index)) rowsOverAcceleration++;
+      take(r.t, r.velocities, r.accelerations);
+      if (r.overRate.includes(c.index)) h.rowsOverRate++;
+      if (r.overAcceleration.includes(c.index)) h.rowsOverAcceleration++;
     }
-    out.push({ crease: c.index, peakRate, peakAcceleration, rowsOverRate, rowsOverAcceleration });
+    for (const k of checks) {
+      take(k.t, k.velocities, k.accelerations);
+      if (k.overRate.includes(c.index) || k.overAcceleration.includes(c.index)) h.overBetweenRows = true;
+    }
+    out.push(h);
   }
   return out;
+}
+
+/**
+ * The limits must hold between rows, not only at them. Hinge velocity ρ̇ = r(θ)·θ̇ and acceleration
+ * ρ̈ = r·θ̈ + r′·θ̇² peak where the profile switches phase (θ̈ jumps or turns: each side of the breakpoint is
+ * solved) and where they have a local maximum between two rows; for every limited hinge whose rows show a
+ * local maximum above 80 % of its limit, golden-section search on exactly solved states between the rows
+ * around it finds the peak.
+ */
+function* peaksBetweenRows(
+  pattern: Pattern,
+  opts: ScheduleOptions,
+  profile: DriveProfile,
+  rows: ScheduleRow[],
+  limitOf: (c: number) => HingeLimits,
+  hooks: SweepHooks,
+): Generator<void, ProfileCheck[]> {
+  const limited = pattern.creases.filter((c) => c.assignment !== 'B' && c.assignment !== 'F').map((c) => c.index)
+    .filter((c) => limitOf(c).maxRate !== undefined || limitOf(c).maxAcceleration !== undefined);
+  if (!limited.length) return [];
+  const T = profile.spec.duration, ta = profile.accelTime, tj = profile.jerkTime;
+  const solved = rows.map((r, k) => ({ r, k })).filter(({ r }) => r.angles);
+  if (!solved.length) return [];
+  const checks: ProfileCheck[] = [];
+  /** The exact state at time t, followed from the nearest solved row before it. */
+  const stateAt = function* (t: number): Generator<void, ProfileCheck | undefined> {
+    const st = profile.at(t);
+    let from = solved[0].r;
+    for (const { r } of solved) if (r.t <= t) from = r;
+    const res = yield* sweepSteps(pattern, {
+      drive: opts.drive, from: st.position, to: st.position, samples: [st.position],
+      holds: opts.holds, start: from.angles, curvature: true, conditionEvery: 0, analyzeBranches: false,
+    }, { shouldStop: hooks.shouldStop });
+    const s = res.samples[0];
+    if (!s) return undefined;
+    const n = pattern.creases.length;
+    const velocities = new Float64Array(n), accelerations = new Float64Array(n);
+    const overRate: number[] = [], overAcceleration: number[] = [];
+    for (let c = 0; c < n; c++) {
+      velocities[c] = s.rates[c] * st.velocity;
+      accelerations[c] = s.rates[c] * st.acceleration + (s.curvature?.[c] ?? 0) * st.velocity * st.velocity;
+      const lim = limitOf(c);
+      if (lim.maxRate !== undefined && Math.abs(velocities[c]) > lim.maxRate) overRate.push(c);
+      if (lim.maxAcceleration !== undefined && Math.abs(accelerations[c]) > lim.maxAcceleration) overAcceleration.push(c);
+    }
+    return { t, drive: st.position, reason: 'peak', velocities, accelerations, maxResidual: s.maxResidual, overRate, overAcceleration };
+  };
+  // 1. both sides of every phase boundary of the profile
+  const eps = 1e-9 * T;
+  const breaks = [tj, ta - tj, ta, T - ta, T - ta + tj, T - tj].filter((b) => b > eps && b < T - eps);
+  for (const b of [...new Set(breaks)]) {
+    for (const t of [b - eps, b + eps]) {
+      if (hooks.shouldStop?.()) return checks;
+      const c = yield* stateAt(t);
+      if (c) checks.push({ ...c, reason: 'breakpoint' });
+    }
+  }
+  // 2. local maxima between rows, refined
+  const gr = (Math.sqrt(5) - 1) / 2;
+  for (const c of limited) {
+    const lim = limitOf(c);
+    for (const kind of ['rate', 'acceleration'] as const) {
+      const limit = kind === 'rate' ? lim.maxRate : lim.maxAcceleration;
+      if (limit === undefined) continue;
+      const value = (r: { velocities?: Float64Array; accelerations?: Float64Array }) => Math.abs((kind === 'rate' ? r.velocities : r.accelerations)?.[c] ?? 0);
+      for (let q = 0; q < solved.length; q++) {
+        const v = value(solved[q].r);
+        const before = q > 0 ? value(solved[q - 1].r) : -1, after = q + 1 < solved.length ? value(solved[q + 1].r) : -1;
+        if (!(v >= before && v >= after) || v < 0.8 * limit) continue;
+        let a = q > 0 ? solved[q - 1].r.t : solved[q].r.t, b = q + 1 < solved.length ? solved[q + 1].r.t : solved[q].r.t;
+        if (b - a <= eps) continue;
+        let x1 = b - gr * (b - a), x2 = a + gr * (b - a);
+        let f1 = yield* stateAt(x1), f2 = yield* stateAt(x2);
+        for (let it = 0; it < 30 && b - a > 1e-6 * T; it++) {
+          if (hooks.shouldStop?.()) return checks;
+          if ((f1 ? value(f1) : -1) >= (f2 ? value(f2) : -1)) { b = x2; x2 = x1; f2 = f1; x1 = b - gr * (b - a); f1 = yield* stateAt(x1); }
+          else { a = x1; x1 = x2; f1 = f2; x2 = a + gr * (b - a); f2 = yield* stateAt(x2); }
+        }
+        const best = (f1 ? value(f1) : -1) >= (f2 ? value(f2) : -1) ? f1 : f2;
+        if (best) checks.push(best);
+      }
+    }
+  }
+  return checks.sort((p, q) => p.t - q.t);
 }
 
 // ---------------------------------------------------------------------------------------------------------
@@ -384,6 +509,8 @@ export interface FollowRow {
 
 export interface FollowResult {
   drives: number[];
+  /** the branch followed (from flat), or the start solution, as the first run chose it */
+  branch?: SweepResult['branch'];
   rows: FollowRow[];
   events: SweepEvent[];
   messages: Message[];
@@ -412,6 +539,7 @@ export function* followSteps(pattern: Pattern, schedule: ParsedSchedule, opts: F
   let stopped = false;
   const total = rows.length;
   let done = 0;
+  let branch: SweepResult['branch'];
   const progress = () => hooks.onProgress?.(done, total);
   if (moving.length <= 1) {
     const drive = moving[0] ?? schedule.drives[0];
@@ -448,6 +576,7 @@ export function* followSteps(pattern: Pattern, schedule: ParsedSchedule, opts: F
         }, { shouldStop: hooks.shouldStop });
         messages.push(...res.messages.filter((m) => (i === 0 ? m.code !== 'flat-sample' : m.severity === 'error')));
         events.push(...res.events);
+        if (!start) branch ??= res.branch;
         const byValue = new Map(res.samples.map((x) => [x.drive, x] as const));
         const why = res.events.find((e) => e.type !== 'branch-point')?.text ?? res.messages.find((m) => m.severity === 'error')?.text ?? 'no state on the path';
         for (const r of run) {
@@ -468,7 +597,7 @@ export function* followSteps(pattern: Pattern, schedule: ParsedSchedule, opts: F
       i = j;
     }
   } else {
-    yield* homotopyFollow(pattern, rows, moving, holds, opts, messages, hooks, () => { done++; progress(); }, () => { stopped = true; });
+    branch = yield* homotopyFollow(pattern, rows, moving, holds, opts, messages, hooks, () => { done++; progress(); }, () => { stopped = true; });
   }
   for (const r of rows) if (!r.angles && !r.unreachable) r.unreachable = stopped ? 'not computed (stopped)' : 'no state';
   const bad = rows.filter((r) => r.unreachable && r.unreachable !== 'not computed (stopped)');
@@ -483,7 +612,7 @@ export function* followSteps(pattern: Pattern, schedule: ParsedSchedule, opts: F
     }
     messages.push({ severity: 'error', code: 'unreachable-rows', text: `${bad.length} of ${rows.length} rows have no consistent state on the followed branch (lines ${bad.slice(0, 8).map((r) => r.line).join(', ')}${bad.length > 8 ? ', …' : ''}); they are flagged and the other rows are solved.` });
   }
-  return { drives: schedule.drives, rows, events, messages, status: stopped ? 'stopped' : bad.length ? 'partial' : 'complete' };
+  return { drives: schedule.drives, ...(branch ? { branch } : {}), rows, events, messages, status: stopped ? 'stopped' : bad.length ? 'partial' : 'complete' };
 }
 
 /** Several drives moving together: from row to row by homotopy in small steps, Newton at each. */
@@ -497,7 +626,7 @@ function* homotopyFollow(
   hooks: SweepHooks,
   onRow: () => void,
   onStop: () => void,
-): Generator<void, void> {
+): Generator<void, SweepResult['branch']> {
   const heldSet = new Set([...moving, ...holds.map((h) => h.crease)]);
   const problem = new ClosureProblem(pattern, (c) => heldSet.has(c));
   const first = rows[0];
@@ -509,8 +638,9 @@ function* homotopyFollow(
   if (!state) {
     messages.push({ severity: 'error', code: 'start-unreachable', text: `No ${opts.solution ? `solution ${opts.solution}` : 'state matching the assignment'} at the first row (line ${first.line}).` });
   }
+  const branch = state ? { id: k + 1, name: `solution ${k + 1}`, matchesAssignment: report.solutions[k].matchesAssignment, text: `solution ${k + 1} of the first row's values` } : undefined;
   for (let i = 0; i < rows.length; i++) {
-    if (hooks.shouldStop?.()) { onStop(); return; }
+    if (hooks.shouldStop?.()) { onStop(); return branch; }
     const r = rows[i];
     if (!state) { r.unreachable = 'no start state'; onRow(); continue; }
     if (i === 0) { r.angles = state; r.maxResidual = report.solutions[k].maxResidual; onRow(); continue; }
@@ -539,6 +669,7 @@ function* homotopyFollow(
     onRow();
     yield;
   }
+  return branch;
 }
 
 export type { SweepHooks };

@@ -113,6 +113,12 @@ function holdsText(pattern: Pattern, holds: { crease: number; value: number }[])
   return holds.map((h) => `${pattern.creases[h.crease].label}=${num(h.value * DEG)}`).join(' ') || 'none';
 }
 
+/** The branch a table followed, as its header says it: id and name, and whether it follows the assignment. */
+function branchMeta(b: SweepResult['branch'] | undefined): string {
+  if (!b) return 'none';
+  return `${b.id !== undefined ? `${b.id} ` : ''}${b.name}${b.matchesAssignment ? ' (matches the mountain/valley assignment)' : ''}`;
+}
+
 /** The angle table of a sweep. */
 export function angleTable(
   pattern: Pattern,
@@ -126,7 +132,7 @@ export function angleTable(
   const largest = result.samples.reduce((m, s) => Math.max(m, s.maxResidual), 0);
   const meta = {
     ...sourceMeta(TABLE_FORMAT, header),
-    branch: result.branch ? `${result.branch.id ?? ''}${result.branch.id !== undefined ? ' ' : ''}${result.branch.name}${result.branch.matchesAssignment ? ' (matches the mountain/valley assignment)' : ''}` : 'none',
+    branch: branchMeta(result.branch),
     drive: label(result.drive),
     held: holdsText(pattern, holds),
     units: 'degrees (angles), degrees per degree of drive (rates), radians (residuals)',
@@ -178,7 +184,7 @@ export function scheduleTable(
   const prof = result.profile;
   const meta = {
     ...sourceMeta(SCHEDULE_FORMAT, header),
-    branch: result.sweep?.branch ? `${result.sweep.branch.id ?? ''} ${result.sweep.branch.name}`.trim() : 'none',
+    branch: branchMeta(result.sweep?.branch),
     drive: label(drive),
     held: holdsText(pattern, holds),
     profile: prof ? `${prof.spec.kind} from ${num(prof.spec.from * DEG)} to ${num(prof.spec.to * DEG)} deg in ${num(prof.spec.duration)} s, acceleration time ${num(prof.accelTime)} s, jerk time ${num(prof.jerkTime)} s, peak drive velocity ${num(prof.peakVelocity * DEG)} deg/s, peak drive acceleration ${num(prof.peakAcceleration * DEG)} deg/s^2` : '',
@@ -214,9 +220,12 @@ export function scheduleTable(
       hinges: result.hinges.filter((h) => cols.includes(h.crease)).map((h) => ({
         crease: label(h.crease),
         peakVelocity: deg(h.peakRate),
+        peakVelocityAt: h.peakRateAt,
         peakAcceleration: deg(h.peakAcceleration),
+        peakAccelerationAt: h.peakAccelerationAt,
         rowsOverRate: h.rowsOverRate,
         rowsOverAcceleration: h.rowsOverAcceleration,
+        overBetweenRows: h.overBetweenRows,
       })),
       events: eventsJson(pattern, result.events),
       messages: result.messages.map((m) => ({ severity: m.severity, code: m.code, text: m.text })),
@@ -235,8 +244,8 @@ export function scheduleTable(
     ].join(','));
   }
   for (const h of result.hinges) {
-    if (!cols.includes(h.crease) || !(h.rowsOverRate || h.rowsOverAcceleration)) continue;
-    lines.push(`# over limit: ${label(h.crease)}: peak velocity ${num(h.peakRate * DEG)} deg/s (${h.rowsOverRate} rows over), peak acceleration ${num(h.peakAcceleration * DEG)} deg/s^2 (${h.rowsOverAcceleration} rows over)`);
+    if (!cols.includes(h.crease) || !(h.rowsOverRate || h.rowsOverAcceleration || h.overBetweenRows)) continue;
+    lines.push(`# over limit: ${label(h.crease)}: peak velocity ${num(h.peakRate * DEG)} deg/s at t = ${num(h.peakRateAt)} s (${h.rowsOverRate} rows over), peak acceleration ${num(h.peakAcceleration * DEG)} deg/s^2 at t = ${num(h.peakAccelerationAt)} s (${h.rowsOverAcceleration} rows over)${h.overBetweenRows ? '; over between rows too' : ''}`);
   }
   for (const r of result.rows) if (r.unreachable) lines.push(`# unreachable at t = ${num(r.t)} s: ${r.unreachable.replace(/[\r\n]+/g, ' ')}`);
   return lines.join('\n') + '\n';
@@ -257,6 +266,7 @@ export function followTable(
   const meta = {
     ...sourceMeta(FOLLOW_FORMAT, header),
     drives: result.drives.map(label).join(' '),
+    branch: branchMeta(result.branch),
     held: holdsText(pattern, holds),
     units: 'seconds, degrees; residuals in radians' + (opts.rates ? '; rates in degrees per degree of the drive' : ''),
     ...accuracyMeta(largest),

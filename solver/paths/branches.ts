@@ -503,10 +503,12 @@ function organize(
   return { state, branches, groups: groupsOut, nullity, partial: false, messages };
 }
 
+/** Curve names A, B, …, Z, AA, …; the letter L is left out (straight lines are L1, L2, …). */
 function letters(i: number): string {
+  const alphabet = 'ABCDEFGHIJKMNOPQRSTUVWXYZ';
   let s = '';
   i++;
-  while (i > 0) { const r = (i - 1) % 26; s = String.fromCharCode(65 + r) + s; i = Math.floor((i - 1) / 26); }
+  while (i > 0) { const r = (i - 1) % alphabet.length; s = alphabet[r] + s; i = Math.floor((i - 1) / alphabet.length); }
   return s;
 }
 

@@ -33,6 +33,10 @@ const H_MIN = 1e-9;
 const MAX_ANGLE_STEP = 0.15;
 /** A crease this close to ±180° is folded flat. */
 const FLAT_FOLDED = 1e-7;
+/** Samples this close to flat (radians) on a branch from flat come from the branch's series; see seriesSamples. */
+const SERIES_LIMIT = 1e-3;
+/** where the series' third-order term is fitted (radians, 0.5°) */
+const SERIES_ANCHOR = 0.5 / DEG;
 /** Samples above this count are refused (a request that would not fit in memory). */
 export const MAX_SAMPLES = 100_000;
 
@@ -62,7 +66,7 @@ export interface SweepOptions {
   method?: 'auto' | SweepMethod;
   /** hinge curvature d²ρ/dθ² per sample (needed for hinge accelerations); default false */
   curvature?: boolean;
-  /** evaluate the condition number every k samples, 0 for never (default: see defaultConditionEvery) */
+  /** evaluate the condition number every k samples and at the last, Infinity for the last only, 0 for never (default: see defaultConditionEvery) */
   conditionEvery?: number;
   /** analyse the rays at branch points found (default true) */
   analyzeBranches?: boolean;
@@ -120,11 +124,12 @@ export interface SweepHooks {
 
 /**
  * Samples between condition-number evaluations by default: every sample up to 400 free creases, one in ⌈n/100⌉
- * up to 4000, and none above (0): an evaluation costs a normal-matrix factorization and a few eigen-iterations,
- * far more than a propagated sample on a large sheet. Ask for them with conditionEvery.
+ * up to 4000 (and the last), and above that the last sample only (Infinity): an evaluation costs a
+ * normal-matrix factorization and a few eigen-iterations, far more than a propagated sample on a large sheet.
+ * Ask for more with conditionEvery; 0 evaluates none.
  */
 export function defaultConditionEvery(unknowns: number): number {
-  return unknowns <= 400 ? 1 : unknowns <= 4000 ? Math.ceil(unknowns / 100) : 0;
+  return unknowns <= 400 ? 1 : unknowns <= 4000 ? Math.ceil(unknowns / 100) : Infinity;
 }
 
 /** The requested drive values from → to every `step` (the end value included, also when the step does not divide). */
@@ -233,8 +238,8 @@ export class SweepRun {
     this.targets = o.samples ? [...o.samples] : sampleValues(o.from, o.to, o.step ?? 1 / DEG);
     this.total = this.targets.length;
     this.conditionEvery = Math.max(0, Math.round(o.conditionEvery ?? defaultConditionEvery(this.n)));
-    if (this.conditionEvery === 0 && o.conditionEvery === undefined) {
-      this.messages.push({ severity: 'info', code: 'condition-not-evaluated', text: `With ${this.n} free creases the condition number is not evaluated by default (each evaluation costs a factorization); ask for it every k samples with the condition option. Near-singular flags come from the vertices' own pivots.` });
+    if (this.conditionEvery === Infinity) {
+      this.messages.push({ severity: 'info', code: 'condition-last-only', text: `With ${this.n} free creases the condition number is evaluated at the last sample only by default (each evaluation costs a factorization); ask for it every k samples with the condition option. Near-singular flags come from every vertex's own pivots at every sample.` });
     }
     const problem = this.validate();
     if (problem) {
@@ -437,13 +442,16 @@ export class SweepRun {
       this.nextTarget = 1;
       this.messages.push({ severity: 'info', code: 'flat-sample', text: 'The flat state is singular: its rates are the first-order ratios of the branch followed.' });
     }
+    if (ray) this.seriesSamples(ray);
+    if (this.finished) return;
     if (this.method === 'propagate') {
       this.last = { s: 0, x: flat };
-      this.approaching = first !== 0;
+      this.approaching = this.targets[this.nextTarget] !== 0;
       return;
     }
     // continuation: solve a small step along the ray, then continue
-    const s1 = this.travel * Math.min(0.5 / DEG, Math.abs(first) || 0.5 / DEG);
+    const next = this.targets[this.nextTarget] ?? first;
+    const s1 = this.travel * Math.min(0.5 / DEG, Math.abs(next) || 0.5 / DEG);
     const guess = new Float64Array(flat.length);
     if (ray) for (let c = 0; c < flat.length; c++) guess[c] = (s1 / ray[this.options.drive]) * ray[c];
     else for (const c of this.pattern.creases) guess[c.index] = c.assignment === 'V' ? Math.abs(s1) : c.assignment === 'M' ? -Math.abs(s1) : 0;
@@ -457,6 +465,52 @@ export class SweepRun {
     }
     if (!ray && this.branchInfo) this.branchInfo.matchesAssignment = matchesAssignment(this.pattern, r.angles);
     this.beginAt(r.angles, ray);
+  }
+
+  /**
+   * Samples within SERIES_LIMIT of flat on a branch from flat. Near the singular flat state the closure
+   * residual is second order in the distance, so a solve there (Newton, or the closed form, whose two roots
+   * merge) fixes the state only to about the square root of the tolerance: off the branch by as much as the
+   * drive itself at 1e-6°. The branch is odd in the drive (its mirror image z → −z is the same curve run
+   * backwards), so x(θ) = θ·r + θ³·c + O(θ⁵), with r the ray's ratios and c from a well-solved state at
+   * SERIES_ANCHOR; at |θ| ≤ 1e-3 rad the truncation is below rounding.
+   */
+  private seriesSamples(ray: Float64Array): void {
+    const d = this.options.drive;
+    const tiny = () => {
+      const t = this.targets[this.nextTarget];
+      return t !== undefined && t !== 0 && Math.abs(t) <= SERIES_LIMIT && Math.sign(t) === this.travel;
+    };
+    if (!tiny()) return;
+    const n = this.pattern.creases.length;
+    const r = ray.map((x) => x / ray[d]);
+    const s1 = this.travel * SERIES_ANCHOR;
+    let x1: Float64Array | undefined;
+    if (this.method === 'propagate') {
+      x1 = this.propagateAt(s1, { s: 0, x: new Float64Array(n) }, undefined)?.x;
+    } else {
+      const guess = r.map((v) => v * s1);
+      for (const h of this.options.holds ?? []) guess[h.crease] = h.value;
+      const fixed = new ClosureProblem(this.pattern, (c) => this.holdSet.has(c) || c === d, this.sys);
+      const res = fixed.solve(guess, { polishTolerance: POLISH, maxStep: SERIES_ANCHOR / 2, maxIterations: 80, wrap: false });
+      if (res.converged) x1 = res.angles;
+    }
+    if (!x1) return;
+    const c3 = x1.map((v, c) => (this.holdSet.has(c) || c === d ? 0 : (v - s1 * r[c]) / (s1 * s1 * s1)));
+    while (tiny()) {
+      const t = this.targets[this.nextTarget];
+      const angles = r.map((v, c) => (this.holdSet.has(c) ? 0 : t * v + t * t * t * c3[c]));
+      angles[d] = t;
+      for (const h of this.options.holds ?? []) angles[h.crease] = h.value;
+      const rates = r.map((v, c) => (this.holdSet.has(c) ? 0 : v + 3 * t * t * c3[c]));
+      rates[d] = 1;
+      const curvature = this.options.curvature ? c3.map((v) => 6 * t * v) : undefined;
+      const maxResidual = this.problem.evaluate(angles, false);
+      this.pushSample({ drive: t, angles, maxResidual, rates, ...(curvature ? { curvature } : {}), condition: Infinity, nearSingular: true });
+      this.nextTarget++;
+    }
+    this.messages.push({ severity: 'info', code: 'near-flat-series', text: `Samples within ${(SERIES_LIMIT * DEG).toPrecision(3)}° of flat come from the branch's series through flat (θ·r + θ³·c, fitted at ${(SERIES_ANCHOR * DEG).toPrecision(3)}°): a solve cannot tell the branch from its neighbours that close so near the singular flat state.` });
+    if (this.nextTarget >= this.targets.length) this.finish();
   }
 
   /** A closed state a small step (1e-3 rad) along the ray t from y: closure and t·(x − y) = step. */
@@ -1076,7 +1130,7 @@ export class SweepRun {
     const k = this.samples.length;
     const lastOne = this.nextTarget === this.targets.length - 1;
     if (this.conditionEvery === 0) return undefined;
-    if (k % this.conditionEvery !== 0 && !lastOne) return undefined;
+    if (!lastOne && (this.conditionEvery === Infinity || k % this.conditionEvery !== 0)) return undefined;
     // an underdetermined path: the free creases' Jacobian is singular by construction
     if (this.nsCurve && this.nsCurve.damping > 0) return undefined;
     let tracker: ConditionTracker;

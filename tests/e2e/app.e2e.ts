@@ -379,6 +379,45 @@ export const e2eTests: E2ETest[] = [
     },
   },
   {
+    name: 'a drawing imports through the core readers: an SVG coupon shows its creases, panels and cleaning report, and exports as DXF',
+    async run(h) {
+      await withSession(h, 'import-drawing', { openSample: COUPON_FILE }, async ({ page, host, tmp }) => {
+        await waitSolved(page);
+        const drawn = path.join(tmp, 'coupon-drawn.svg');
+        await fs.copyFile(path.join(SAMPLES, '..', 'tests', 'fixtures', 'drawings', 'coupon.svg'), drawn);
+        const expected = loadPatternText(readFileSync(drawn, 'utf8'), drawn).pattern!;
+        host.openAnswers.push(drawn);
+        await page.click('button:has-text("Import drawing…")');
+        assert.equal(host.openRequests.at(-1)!.title, 'Import drawing (DXF or SVG)');
+        await page.waitForSelector('[data-testid=doc-title]:has-text("coupon-drawn.svg")');
+        const title = (await page.textContent('[data-testid=doc-title]')) ?? '';
+        const creases = expected.creases.filter((c) => c.assignment !== 'B').length;
+        assert.equal(creases, 4);
+        assert.match(title, new RegExp(`${creases} creases, ${expected.panels.length} panels, mm`));
+        const report = page.locator('[data-testid=notice-info]:has-text("how the drawing was read")');
+        await report.waitFor();
+        const text = (await report.textContent()) ?? '';
+        assert.match(text, /Dropped 1 line drawn twice/);
+        assert.match(text, /T-junctions/);
+        await screenshot(page, 'import-drawing');
+        // the flat pattern out as DXF, read back by the same core reader
+        await page.click('button:has-text("Export…")');
+        const dialog = page.getByRole('dialog');
+        await dialog.getByLabel(/Flat pattern as DXF/).check();
+        const target = path.join(tmp, 'coupon-flat.dxf');
+        host.saveAnswers.push(target);
+        await dialog.getByTestId('export-go').click();
+        await page.waitForSelector('[data-testid=notice-info]:has-text("Exported")', { timeout: 30_000 });
+        assert.match(host.saveRequests.at(-1)!.defaultName, /coupon-drawn\.dxf$/);
+        const dxf = await fs.readFile(target, 'utf8');
+        assert.ok(dxf.includes(CAUTIONS), 'the DXF carries the cautions line');
+        const back = loadPatternText(dxf, target).pattern!;
+        assert.equal(back.creases.filter((c) => c.assignment !== 'B').length, creases);
+        assert.equal(back.panels.length, expected.panels.length);
+      });
+    },
+  },
+  {
     name: 'unsaved edits are kept: opening asks first, saving writes the file, undo and redo work from the keyboard',
     async run(h) {
       await withSession(h, 'unsaved-and-save', { openSample: COUPON_FILE }, async ({ page, host, tmp }) => {

@@ -216,6 +216,42 @@ describe('main-process handlers', () => {
     expect(r.message).toContain('does not exist');
   });
 
+  it('imports a DXF or SVG drawing through the same readers, and exports the flat pattern as DXF and SVG', async () => {
+    const drawn = path.join(tmp, 'coupon.svg');
+    await fs.copyFile(path.join(__dirname, '..', 'fixtures', 'drawings', 'coupon.svg'), drawn);
+    host.open.push(drawn);
+    const r = (await call('doc:open', { format: 'drawing' })) as { status: string; document: { format: string; project: { source: { assignments: string[] } }; messages: { code: string }[] } };
+    expect(r.status).toBe('opened');
+    expect(r.document.format).toBe('svg');
+    expect(r.document.project.source.assignments.filter((a) => a !== 'B').sort()).toEqual(['M', 'M', 'M', 'V']);
+    expect(r.document.messages.map((m) => m.code)).toEqual(expect.arrayContaining(['drawing-read', 'duplicates-dropped', 't-junctions-split']));
+    // saving a drawing asks for a project file; it never writes over the drawing
+    const n = host.saveRequests.length;
+    host.save.push(null);
+    await call('doc:save', { project: r.document.project, filePath: drawn, saveAs: false, suggestedName: 'coupon.svg' });
+    expect(host.saveRequests.length).toBe(n + 1);
+    expect(host.saveRequests.at(-1)!.defaultName).toBe('coupon.hingeplan.json');
+    // a drawing that cannot be read says where
+    const curved = path.join(tmp, 'curved.dxf');
+    await fs.writeFile(curved, '  0\nSECTION\n  2\nENTITIES\n  0\nCIRCLE\n  8\ncut\n 10\n0\n 20\n0\n 40\n5\n  0\nENDSEC\n  0\nEOF\n');
+    host.open.push(curved);
+    const bad = (await call('doc:open', { format: 'any' })) as { status: string; messages: { code: string; where?: { line?: number } }[] };
+    expect(bad.status).toBe('failed');
+    expect(bad.messages.find((m) => m.code === 'dxf-curve')?.where?.line).toBe(5);
+    // exports of the flat pattern
+    await call('pattern:set', { key: 'drawn', source: r.document.project.source });
+    for (const kind of ['dxf', 'svg'] as const) {
+      const target = path.join(tmp, `flat.${kind}`);
+      host.save.push(target);
+      const w = await call('doc:export', { kind, project: r.document.project, key: 'drawn', options: {}, suggestedName: 'coupon.svg' });
+      expect(w).toMatchObject({ status: 'saved', filePath: target });
+      expect(host.saveRequests.at(-1)!.defaultName).toBe(`coupon.${kind}`);
+      const back = loadPatternText(readFileSync(target, 'utf8'), target);
+      expect(back.pattern!.creases.filter((c) => c.assignment !== 'B')).toHaveLength(4);
+      expect(readFileSync(target, 'utf8')).toContain(CAUTIONS);
+    }
+  });
+
   it('exports the folded shape as OBJ with the cautions line', async () => {
     const text = readFileSync(coupon, 'utf8');
     const loaded = loadPatternText(text, 'c.hingeplan.json');
