@@ -3,11 +3,12 @@
 
 import type { Drive, Family, Pattern, Solution } from '../types';
 import { ClosureProblem } from '../closure/newton';
-import { analyzeState, RANK_TOLERANCE, type LocalAnalysis } from '../closure/analysis';
+import { analyzeState, estimateCondition, RANK_TOLERANCE, type LocalAnalysis } from '../closure/analysis';
+import { flatCone } from '../paths/cone';
 import { wrapAngle } from '../math/rotation';
 import { orderedRates } from './ordered-rates';
 import type { Candidate } from './candidates';
-import { canonicalFoldedFlat, matchesAssignment, signPattern, stackedCreases } from './states';
+import { canonicalFoldedFlat, limitViolations, matchesAssignment, SAME_STATE_TOLERANCE, signPattern, stackedCreases } from './states';
 
 const DEG_PER_RAD = 180 / Math.PI;
 /** a drive column this far (residual norm, rad) from the range of the free creases' Jacobian cannot move */
@@ -293,4 +294,146 @@ export function worstVerticesText(pattern: Pattern, residuals: number[]): string
     .slice(0, 3)
     .map(([r, v]) => `vertex ${v} (${(r * DEG_PER_RAD).toPrecision(3)}°)`)
     .join(', ');
+}
+
+export interface ClassifyOptions {
+  respectLimits?: boolean;
+  patternDof?: number;
+  detail?: number | 'matching';
+  conditions?: number | 'matching';
+}
+
+/** Every state found, sorted into isolated solutions, family points and families, states past a hinge limit. */
+export interface Classification {
+  /** isolated states in the report's order (matching the assignment first), singular ones included */
+  isolated: Analysed[];
+  familyPoints: Analysed[];
+  families: Family[];
+  /** states past a hinge limit, analysed the same way */
+  excluded: Analysed[];
+  /** singular but isolated states among `isolated` */
+  singularIsolated: number;
+  /** the pattern's DOF at a generic state */
+  patternDof: number;
+  /** how many leading solutions got sensitivities and condition numbers, and how many did not */
+  detail: number;
+  conditions: number;
+  undetailed: number;
+  unconditioned: number;
+}
+
+const DEFAULT_CONDITIONS = 1;
+
+/**
+ * The classification: local DOF of every state (proven by the enumeration, else one rank analysis), family
+ * points grouped into families, the report's order, sensitivities and condition numbers for the leading
+ * solutions, and the pattern's DOF.
+ */
+export function classifyStates(ctx: AnalysisContext, candidates: Candidate[], movable: number[], options: ClassifyOptions): Classification {
+  const { pattern, problem, drives, free } = ctx;
+  const within: Candidate[] = [];
+  const beyond: Candidate[] = [];
+  for (const c of candidates) ((options.respectLimits ?? true) && limitViolations(pattern, c.angles).length ? beyond : within).push(c);
+  const analysed = within.map((c) => analyseCandidate(ctx, c, false));
+  const isolated: Analysed[] = [];
+  const familyPoints: Analysed[] = [];
+  let singularIsolated = 0;
+  for (const a of analysed) {
+    if (a.localDof === 0) isolated.push(a);
+    else if (familyThrough(problem, a.solution.angles, a.local!, free)) familyPoints.push(a);
+    else {
+      // singular but isolated: no closed state near it with these drives
+      a.solution.nullity = a.localDof;
+      a.solution.localDof = 0;
+      a.localDof = 0;
+      isolated.push(a);
+      singularIsolated++;
+    }
+  }
+  const families = groupFamilies(ctx, familyPoints);
+  isolated.sort((p, q) => compareSolutions(p.solution, q.solution));
+  // 'matching': the solutions that follow the assignment (they lead the order), else the first
+  const leading = (n: number | 'matching' | undefined, fallback: number) =>
+    n === 'matching' ? Math.max(1, isolated.filter((x) => x.solution.matchesAssignment).length) : Math.max(0, n ?? fallback);
+  // sensitivities for the leading solutions (one pass each along the enumeration's order)
+  const detail = leading(options.detail, Infinity);
+  isolated.forEach((a, k) => { if (k < detail || drives.length >= 2) detailState(ctx, a); });
+  const excluded = beyond.map((c) => analyseCandidate(ctx, c, false)).sort((p, q) => compareSolutions(p.solution, q.solution));
+  excluded.forEach((a, k) => { if (k < detail) detailState(ctx, a); });
+  // the enumeration proves isolation without a factorization; condition numbers for the leading solutions
+  const conditions = leading(options.conditions, DEFAULT_CONDITIONS);
+  let unconditioned = 0;
+  isolated.forEach((a, k) => {
+    if (!Number.isNaN(a.solution.condition)) return;
+    if (k >= conditions) { unconditioned++; return; }
+    problem.evaluate(a.solution.angles);
+    a.solution.condition = estimateCondition(problem).condition;
+  });
+  return {
+    isolated, familyPoints, families, excluded, singularIsolated,
+    patternDof: options.patternDof ?? patternDofOf(ctx, analysed, movable),
+    detail, conditions, undetailed: isolated.filter((a) => !a.detailed).length, unconditioned,
+  };
+}
+
+/** A folded state away from flat and from folded flat, where the pattern's DOF is its generic value. */
+function generic(free: number[], angles: Float64Array): boolean {
+  let folded = false;
+  for (const c of free) {
+    const a = Math.abs(angles[c]);
+    if (a >= Math.PI - 1e-3) return false;
+    if (a > 1e-3) folded = true;
+  }
+  return folded;
+}
+
+/** The pattern's DOF: from the enumeration's first-order analysis of a generic state, else one rank analysis there. */
+function patternDofOf(ctx: AnalysisContext, analysed: Analysed[], movable: number[]): number {
+  const { problem, free } = ctx;
+  let known = analysed.filter((a) => a.allDof !== undefined && generic(free, a.solution.angles)).map((a) => a.allDof!);
+  if (!known.length) {
+    const first = analysed.find((a) => !a.detailed && a.candidate.regular && generic(free, a.solution.angles));
+    if (first) { detailState(ctx, first); if (first.allDof !== undefined) known = [first.allDof]; }
+  }
+  if (known.length) return Math.min(...known);
+  const at = analysed.find((a) => generic(free, a.solution.angles)) ?? analysed[0];
+  if (!at) return patternDegreesOfFreedom(ctx.pattern);
+  problem.evaluate(at.solution.angles);
+  at.allDof = analyzeState(problem, movable).localDof;
+  return at.allDof;
+}
+
+/** Matching the assignment first, then by sign pattern, then by angles. */
+export function compareSolutions(p: Solution, q: Solution): number {
+  if (p.matchesAssignment !== q.matchesAssignment) return p.matchesAssignment ? -1 : 1;
+  if (p.signs !== q.signs) return p.signs < q.signs ? -1 : 1;
+  for (let i = 0; i < p.angles.length; i++) {
+    const d = p.angles[i] - q.angles[i];
+    if (Math.abs(d) > SAME_STATE_TOLERANCE) return d;
+  }
+  return 0;
+}
+
+/** DOF of the pattern with no drives, at generic folded states reached from flat (smallest found). */
+export function patternDegreesOfFreedom(pattern: Pattern): number {
+  const problem = new ClosureProblem(pattern, () => false);
+  const movable = Array.from(problem.unknownCreases);
+  if (movable.length === 0) return 0;
+  if (pattern.interiorVertices.length === 0) return movable.length;
+  const cone = flatCone(pattern, { starts: 48 });
+  const rays = [...cone.rays].sort((a, b) => Number(!!a.straightLine) - Number(!!b.straightLine));
+  let best = Infinity;
+  for (const ray of rays.slice(0, 6)) {
+    let big = 0;
+    for (const v of ray.tangent) big = Math.max(big, Math.abs(v));
+    if (big === 0) continue;
+    const x = new Float64Array(pattern.creases.length);
+    for (let c = 0; c < x.length; c++) x[c] = (0.35 * ray.tangent[c]) / big;
+    const r = problem.solve(x, { maxStep: 0.1 });
+    if (!r.converged) continue;
+    problem.evaluate(r.angles);
+    best = Math.min(best, analyzeState(problem, movable).localDof);
+  }
+  // fall back on the generic count (creases minus three equations per vertex)
+  return Number.isFinite(best) ? best : Math.max(0, movable.length - 3 * pattern.interiorVertices.length);
 }
