@@ -29,6 +29,7 @@ export interface HingeplanApi {
   openRecent: Call<'doc:open-recent'>;
   save: Call<'doc:save'>;
   exportFile: Call<'doc:export'>;
+  exportChart: Call<'doc:export-chart'>;
   setDocumentState: Call<'doc:state'>;
   confirmDiscard: Call<'doc:confirm-discard'>;
   writeRecovery: Call<'recovery:write'>;
@@ -54,6 +55,7 @@ export const API_CHANNELS = {
   openRecent: 'doc:open-recent',
   save: 'doc:save',
   exportFile: 'doc:export',
+  exportChart: 'doc:export-chart',
   setDocumentState: 'doc:state',
   confirmDiscard: 'doc:confirm-discard',
   writeRecovery: 'recovery:write',

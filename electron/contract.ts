@@ -41,6 +41,8 @@ export const PatternSourceSchema = z.object({
   limits: z.array(optionalLimit).max(MAX_EDGES),
   faces: z.array(z.array(z.number().int().nonnegative())).max(MAX_EDGES).optional(),
   basePanel: z.number().int().nonnegative().optional(),
+  /** a name per panel, in panel order (undefined: known by its index) */
+  panelNames: z.array(optionalString).max(MAX_EDGES).optional(),
 });
 export type PatternSourceDto = z.output<typeof PatternSourceSchema>;
 
@@ -124,6 +126,8 @@ export type GeneratorKind = z.output<typeof GeneratorKindSchema>;
 
 const sectorList = z.array(finite.positive().max(360)).min(3).max(64);
 const optionalName = z.string().max(200).optional();
+/** the length unit of the new document (free text, e.g. mm); the generators' lengths are in it */
+const optionalUnits = z.string().max(50).optional();
 
 /** The `new` kinds and their parameters (lengths in the document's unit, angles in degrees). */
 export const GeneratorSpecSchema = z.discriminatedUnion('kind', [
@@ -133,6 +137,7 @@ export const GeneratorSpecSchema = z.discriminatedUnion('kind', [
     radius: finite.positive().optional(),
     driveDeg: finite.min(-180).max(180).optional(),
     name: optionalName,
+    units: optionalUnits,
   }),
   z.object({
     kind: z.literal('miura'),
@@ -143,9 +148,10 @@ export const GeneratorSpecSchema = z.discriminatedUnion('kind', [
     alphaDeg: finite.positive().max(90),
     driveDeg: finite.min(-180).max(180).optional(),
     name: optionalName,
+    units: optionalUnits,
   }),
-  z.object({ kind: z.literal('waterbomb'), size: finite.positive().optional(), allMidlines: z.boolean().optional(), name: optionalName }),
-  z.object({ kind: z.literal('degree5'), sectorsDeg: sectorList.optional(), radius: finite.positive().optional(), name: optionalName }),
+  z.object({ kind: z.literal('waterbomb'), size: finite.positive().optional(), allMidlines: z.boolean().optional(), name: optionalName, units: optionalUnits }),
+  z.object({ kind: z.literal('degree5'), sectorsDeg: sectorList.optional(), radius: finite.positive().optional(), name: optionalName, units: optionalUnits }),
 ]);
 export type GeneratorSpec = z.input<typeof GeneratorSpecSchema>;
 
@@ -218,6 +224,8 @@ export const SolveResultSchema = z.object({
   families: z.array(FamilySchema),
   search: SearchSummarySchema,
   compromise: SolutionSchema.optional(),
+  /** states that close the pattern but put some hinge past its limit (listed apart, not solutions) */
+  excluded: z.array(SolutionSchema).optional(),
   /** labels of creases that would complete an underspecified set of drives */
   suggestedDrives: z.array(z.string()).optional(),
   conflictingDrives: z.array(z.string()).optional(),
@@ -272,11 +280,17 @@ export const PathResultSchema = z.object({
   driveLabel: z.string(),
   branchId: z.string().optional(),
   branchName: z.string().optional(),
+  /** the branch's signs follow the mountain/valley assignment */
+  branchMatchesAssignment: z.boolean().optional(),
+  /** where the sweep started: the flat state (along a branch), a solved state at the first value, or a given state */
+  startKind: z.enum(['flat', 'solution', 'state']).optional(),
   samples: z.array(PathSampleSchema),
   events: z.array(PathEventSchema),
   messages: z.array(MessageSchema),
   /** the sweep stopped early (cancelled or failed); samples hold what was computed */
   complete: z.boolean(),
+  /** complete; partial: ended early (an event says why); stopped: cancelled; failed: no start (a message says why) */
+  status: z.enum(['complete', 'partial', 'stopped', 'failed']).optional(),
 });
 export type PathResultDto = z.output<typeof PathResultSchema>;
 
@@ -319,6 +333,12 @@ export const SweepOptionsSchema = z.object({
   branchId: z.string().max(200).optional(),
   /** start from this state (the current solution) instead of the flat sheet */
   startAnglesDeg: z.array(finite).optional(),
+  /**
+   * the start state is a solution of the drives: when nothing else is held at a non-zero value and the
+   * state lies on a branch through the flat sheet, follow that branch from flat (the same path, solved
+   * exactly vertex by vertex where it can be, and reproduced by `--branch`)
+   */
+  viaFlatBranch: z.boolean().optional(),
 });
 export type SweepOptionsDto = z.input<typeof SweepOptionsSchema>;
 
@@ -350,6 +370,11 @@ export const ExportOptionsSchema = z.object({
   /** schedule: limits for every hinge (--max-rate deg/s, --max-accel deg/s²) */
   maxRateDegPerS: finite.positive().optional(),
   maxAccelDegPerS2: finite.positive().optional(),
+  /** schedule: limits of single hinges by label, over the ones for every hinge (--limit crease=rate:accel) */
+  hingeLimits: z
+    .array(z.object({ crease: z.string().min(1).max(200), maxRateDegPerS: finite.positive().optional(), maxAccelDegPerS2: finite.positive().optional() }))
+    .max(100_000)
+    .default([]),
   /** shape exports: the folded state's angles; FOLD: also written as the file's fold angles */
   anglesDeg: z.array(finite).optional(),
   basePanel: z.number().int().nonnegative().optional(),
@@ -399,6 +424,16 @@ export const channels = {
       /** the document's file (one this window opened or saved), whose text the table header names and hashes */
       filePath: z.string().max(4096).nullable().default(null),
       ...optionalRequestId,
+    }),
+    response: WriteResultSchema,
+  },
+  'doc:export-chart': {
+    request: z.object({
+      /** svg: the chart's SVG text; png: the picture as base64 (no data: prefix) */
+      format: z.enum(['svg', 'png']),
+      data: z.string().max(50_000_000),
+      /** e.g. "sunshade-panel.angles" (the extension is added) */
+      suggestedName: z.string().max(200),
     }),
     response: WriteResultSchema,
   },

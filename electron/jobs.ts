@@ -141,6 +141,7 @@ export function generateJob(_state: JobState, payload: unknown) {
   }
   const msgs = messages(r.messages);
   if (!r.project) return { ok: false as const, messages: msgs };
+  if (spec.units?.trim()) r.project.units = spec.units.trim();
   const built = buildPattern(r.project.source);
   if (!built.pattern) return { ok: false as const, messages: [...msgs, ...messages(built.messages)] };
   return { ok: true as const, project: toProjectDto(r.project), messages: [...msgs, ...messages(built.messages)] };
@@ -206,6 +207,7 @@ export function solveReportDto(pattern: Pattern, report: SolveReport, extra: Mes
     messages: [...extra, ...messages(report.messages)],
     iterations: report.iterations,
   };
+  if (report.excluded?.length) out.excluded = report.excluded.map(solutionDto);
   if (report.compromise) {
     out.compromise = solutionDto(report.compromise);
     out.worstVertices = report.compromise.vertexResiduals
@@ -344,15 +346,26 @@ function writeAngleTable(pattern: Pattern, path: StoredPath, options: Options, f
   return { data: text, extension: options.format };
 }
 
+/** The dialog's limits of single hinges as the solver takes them (rad/s, rad/s²), over the ones for every hinge. */
+function hingeLimitsByCrease(pattern: Pattern, options: Options, global: HingeLimits): Map<number, HingeLimits> {
+  const out = new Map<number, HingeLimits>();
+  for (const l of options.hingeLimits) {
+    const [c] = chosenCreases(pattern, [l.crease]) ?? [];
+    out.set(c, {
+      ...global,
+      ...(l.maxRateDegPerS !== undefined ? { maxRate: l.maxRateDegPerS * RAD } : {}),
+      ...(l.maxAccelDegPerS2 !== undefined ? { maxAcceleration: l.maxAccelDegPerS2 * RAD } : {}),
+    });
+  }
+  return out;
+}
+
 /**
  * The schedule over the path's drive range, solved anew at its time rows (the profile's drive values, as
  * `hingeplan schedule` does), never picked or interpolated from the path's samples.
  */
 function writeSchedule(pattern: Pattern, path: StoredPath, options: Options, fileName: string, header: (command: string) => TableHeader, ctx?: JobContext): ExportData {
   const sweep = path.request;
-  if (sweep.startAnglesDeg) {
-    throw new JobFailure('schedule-from-state', 'this path starts from a state on a ray of a branch point; a schedule starts at the flat state or at a solution of the first drive value (as `hingeplan schedule` does): export the angle table of this path, or compute the path from the start of the range');
-  }
   const limits: HingeLimits = {
     ...(options.maxRateDegPerS !== undefined ? { maxRate: options.maxRateDegPerS * RAD } : {}),
     ...(options.maxAccelDegPerS2 !== undefined ? { maxAcceleration: options.maxAccelDegPerS2 * RAD } : {}),
@@ -373,14 +386,15 @@ function writeSchedule(pattern: Pattern, path: StoredPath, options: Options, fil
     ...(options.dtS !== undefined ? { dt: options.dtS } : options.rows !== undefined ? { rows: options.rows } : {}),
     holds,
     ...(sweep.branchId !== undefined && /^\d+$/.test(sweep.branchId) ? { branch: Number(sweep.branchId) } : {}),
+    ...(sweep.startAnglesDeg ? { start: anglesFromDegrees(pattern, sweep.startAnglesDeg) } : {}),
     limits,
-    hingeLimits: new Map(),
+    hingeLimits: hingeLimitsByCrease(pattern, options, limits),
   };
   const result = runSteps(scheduleSteps(pattern, scheduleOptions, { onProgress: (done, total) => ctx?.progress(done, total, 'schedule'), shouldStop: () => ctx?.shouldStop() ?? false }));
   if (result.status === 'failed' && !result.rows.length) {
     throw new JobFailure(result.messages[0]?.code ?? 'schedule-failed', result.messages.map((m) => m.text).join(' ') || 'the schedule could not be solved');
   }
-  const text = scheduleTable(pattern, result, header(scheduleCommand(fileName, sweep, options)), path.driveCrease, holds, options.format);
+  const text = scheduleTable(pattern, result, header(scheduleCommand(pattern, fileName, sweep, options)), path.driveCrease, holds, options.format);
   return { data: text, extension: options.format };
 }
 

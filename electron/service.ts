@@ -182,7 +182,7 @@ export function createService(deps: ServiceDeps) {
     };
   }
 
-  async function writeTo(filePath: string, data: string): Promise<WriteResult> {
+  async function writeTo(filePath: string, data: string | Buffer): Promise<WriteResult> {
     try {
       await writeFileAtomic(filePath, data);
     } catch (err) {
@@ -344,6 +344,17 @@ export function createService(deps: ServiceDeps) {
         }
         return streamTo(r, target, payload, progressTo(requestId));
       });
+    },
+
+    async 'doc:export-chart'({ format, data, suggestedName }) {
+      // the picture comes from the window; only the person's choice of file decides where it goes
+      const target = await host.chooseSaveFile({
+        title: `Export chart (${format.toUpperCase()})`,
+        defaultName: `${baseName(suggestedName)}.${format}`,
+        filters: [format === 'svg' ? { name: 'SVG image', extensions: ['svg'] } : { name: 'PNG image', extensions: ['png'] }],
+      });
+      if (!target) return { status: 'canceled' };
+      return writeTo(target, format === 'png' ? Buffer.from(data, 'base64') : data);
     },
 
     async 'doc:state'(state) {

@@ -75,10 +75,14 @@ export function tableCommand(pattern: Pattern, fileName: string, sweep: Sweep, o
   return sweep.startAnglesDeg ? `printf '%s\\n' ${shellWord(startJson(pattern, sweep.startAnglesDeg))} | ${words}` : words;
 }
 
-/** `hingeplan schedule` over the path's drive range with its holds and branch, and the schedule's options. */
-export function scheduleCommand(fileName: string, sweep: Sweep, options: Options): string {
+/**
+ * `hingeplan schedule` over the path's drive range with its holds, branch or start state, and the schedule's
+ * options, per-hinge limits included.
+ */
+export function scheduleCommand(pattern: Pattern, fileName: string, sweep: Sweep, options: Options): string {
   const timed = options.profile !== 'constant';
-  return [
+  const limitWords = options.hingeLimits.flatMap((l) => ['--limit', `${l.crease}=${l.maxRateDegPerS !== undefined ? String(l.maxRateDegPerS) : ''}${l.maxAccelDegPerS2 !== undefined ? `:${String(l.maxAccelDegPerS2)}` : ''}`]);
+  const words = [
     'hingeplan', 'schedule', fileName,
     '--drive', sweep.drive,
     '--from', String(sweep.fromDeg),
@@ -90,10 +94,13 @@ export function scheduleCommand(fileName: string, sweep: Sweep, options: Options
     ...(options.dtS !== undefined ? ['--dt', String(options.dtS)] : options.rows !== undefined ? ['--rows', String(options.rows)] : []),
     ...(options.maxRateDegPerS !== undefined ? ['--max-rate', String(options.maxRateDegPerS)] : []),
     ...(options.maxAccelDegPerS2 !== undefined ? ['--max-accel', String(options.maxAccelDegPerS2)] : []),
+    ...limitWords,
     ...holdWords(sweep.held),
     ...branchWords(sweep),
+    ...(sweep.startAnglesDeg ? ['--start', '/dev/stdin'] : []),
     '--format', options.format,
   ].map(shellWord).join(' ');
+  return sweep.startAnglesDeg ? `printf '%s\\n' ${shellWord(startJson(pattern, sweep.startAnglesDeg))} | ${words}` : words;
 }
 
 /** The whole header of an app export. */

@@ -1,6 +1,7 @@
-// The window: tool bar, drives and solutions on the left, the flat sheet and the folded shape in the
-// middle with the path below, the crease and the hinge table on the right. The views only draw the state;
-// the controller does the work.
+// The window: tool bar; drives, solutions and the crease picked on the left; the flat sheet and the folded
+// shape in the middle with the path (its tabs) below; the hinge table on the right. The main job — set the
+// drives, read every hinge, run the path, export the table — fits a 1280 × 800 screen without scrolling.
+// The views only draw the state; the controller does the work.
 
 import { useCallback, useEffect, useMemo, useRef, useState } from 'react';
 import type { Controller } from './controller';
@@ -8,7 +9,8 @@ import { useStore } from './state/store';
 import { canRedo, canUndo } from './state/history';
 import { isDirty } from './state/app';
 import { hingeRows, hingeTableCsv, shownState } from './state/display';
-import { renameCrease, setBasePanel, setCreaseLimit, addDrive, removeDrive, creaseIndexByLabel } from './state/document';
+import { pathOutcome } from './state/path-words';
+import { renameCrease, setBasePanel, setCreaseLimit, setPanelName, removeDrive, creaseIndexByLabel, limitDeg, panelName } from './state/document';
 import { derivePattern, limitViolations, shapeFor } from './geometry';
 import { shortcutFor } from './shortcuts';
 import { SheetView, Legend } from './views/SheetView';
@@ -57,6 +59,29 @@ export function App({ controller }: { controller: Controller }) {
     [pattern, project, shown.anglesDeg, shown.source],
   );
   const [tableRef, tableHeight] = useElementHeight();
+  const outcome = useMemo(() => pathOutcome(state), [state.path, state.solve.result, state.selectedSolution]);
+  const stops = useMemo(() => {
+    const out: Record<string, { minDeg?: number; maxDeg?: number }> = {};
+    if (project) for (const d of project.drives) {
+      const i = creaseIndexByLabel(project, d.crease);
+      if (i !== undefined) out[d.crease] = limitDeg(project, i);
+    }
+    return out;
+  }, [project]);
+  const lastPatternDof = state.solve.lastValid?.result.patternDof;
+  const solutionOnScreen = useMemo(() => {
+    const r = state.solve.result;
+    if (!r) return null;
+    if (state.selectedFamily !== null && r.families[state.selectedFamily]) return `the state of family ${state.selectedFamily + 1}`;
+    if (!r.solutions.length) return null;
+    const k = Math.min(state.selectedSolution, r.solutions.length - 1);
+    return `solution #${k + 1}${r.solutions[k].matchesAssignment ? ' (M/V)' : ''}`;
+  }, [state.solve.result, state.selectedSolution, state.selectedFamily]);
+  const [pathProblem, setPathProblem] = useState<string | null>(null);
+  const addDriveAt = (label: string) => {
+    const i = project ? creaseIndexByLabel(project, label) : undefined;
+    if (i !== undefined) controller.toggleDrive(i);
+  };
 
   useEffect(() => {
     const onKey = (e: KeyboardEvent) => {
@@ -113,26 +138,46 @@ export function App({ controller }: { controller: Controller }) {
           <aside className="left">
             <DrivePanel
               drives={project.drives}
+              stops={stops}
               result={state.solve.result}
               solveStatus={state.solve.status}
               solveError={state.solve.status === 'error' ? state.solve.error : undefined}
               shown={shown}
+              lastPatternDof={lastPatternDof}
               onChange={(label, v, dragging) => controller.setDrive(label, v, dragging)}
               onDragEnd={() => dispatch({ type: 'seal-edit' })}
               onRemove={(label) => controller.edit((p) => removeDrive(p, label))}
-              onAddSuggested={(label) => {
-                const i = creaseIndexByLabel(project, label);
-                if (i !== undefined) controller.edit((p) => addDrive(p, i, 0));
-              }}
+              onAddSuggested={addDriveAt}
             />
             {state.solve.result && (
               <SolutionCards
                 pattern={pattern}
+                project={project}
                 solutions={state.solve.result.solutions}
+                families={state.solve.result.families}
+                search={state.solve.result.search}
+                suggestedDrives={state.solve.result.suggestedDrives}
                 selected={state.selectedSolution}
-                active={shown.source === 'solution'}
+                selectedFamily={state.selectedFamily}
+                active={shown.source === 'solution' || shown.source === 'family'}
                 basePanel={basePanel}
-                onSelect={(i) => dispatch({ type: 'select-solution', index: i })}
+                onSelect={(i) => controller.selectSolution(i)}
+                onSelectFamily={(i) => controller.selectFamily(i)}
+                onAddDrive={addDriveAt}
+              />
+            )}
+            {selected !== null && pattern.creases[selected] && (
+              <Inspector
+                pattern={pattern}
+                project={project}
+                crease={selected}
+                angleDeg={shown.anglesDeg[selected] ?? 0}
+                rate={shown.rates?.[selected] ?? null}
+                rateDrive={shown.rateDrive}
+                onToggleDrive={(i) => controller.toggleDrive(i)}
+                onBasePanel={(p) => controller.edit((pr) => setBasePanel(pr, p))}
+                onPanelName={(p, name) => controller.edit((pr) => setPanelName(pr, p, name))}
+                onClose={() => dispatch({ type: 'select-crease', index: null })}
               />
             )}
           </aside>
@@ -149,6 +194,7 @@ export function App({ controller }: { controller: Controller }) {
                   selectedCrease={selected}
                   hoverCrease={state.hoverCrease}
                   violatingPanels={violations.panels}
+                  violatingCreases={violations.creases}
                   onHover={(i) => dispatch({ type: 'hover-crease', index: i })}
                   onSelect={(i) => dispatch({ type: 'select-crease', index: i })}
                 />
@@ -166,6 +212,7 @@ export function App({ controller }: { controller: Controller }) {
                   labels={state.view.labels}
                   fitRequest={state.view.fitRequest}
                   maxMismatch={mismatch}
+                  baseName={panelName(project, basePanel)}
                   onToggleGhost={() => dispatch({ type: 'toggle-ghost' })}
                   onToggleLabels={() => dispatch({ type: 'toggle-labels' })}
                   onFit={() => dispatch({ type: 'fit-view' })}
@@ -176,38 +223,51 @@ export function App({ controller }: { controller: Controller }) {
               project={project}
               path={state.path}
               branches={state.branches}
+              form={state.pathForm}
+              tab={state.pathTab}
+              outcome={outcome}
               scrubIndex={state.scrubIndex}
               selectedCrease={selected}
-              defaults={controller.pathDefaults}
-              onCompute={(r) => void controller.computePath(r)}
+              solutionOnScreen={solutionOnScreen}
+              problem={pathProblem}
+              onForm={(patch) => dispatch({ type: 'path-form', patch })}
+              onTab={(tab) => dispatch({ type: 'path-tab', tab })}
+              onCompute={() => {
+                const n = controller.pathNumbers();
+                setPathProblem(typeof n === 'string' ? n : null);
+                if (typeof n !== 'string') void controller.computePath();
+              }}
               onCancel={() => void controller.cancelPath()}
+              onFix={(id) => void controller.applyFix(id)}
               onScrub={(i, done) => {
                 if (i !== null) dispatch({ type: 'scrub', index: i });
                 if (done) controller.commitScrub();
               }}
               onLoadBranches={() => void controller.loadBranches()}
-              onFollowRay={(e, b) => void controller.followRay(e, b)}
+              onPickBranch={(id) => {
+                dispatch({ type: 'path-form', patch: { start: 'flat', branchId: id } });
+                dispatch({ type: 'path-tab', tab: 'charts' });
+                void controller.computePath({ start: 'flat', branchId: id });
+              }}
+              onFollowRay={(e, b) => {
+                dispatch({ type: 'path-tab', tab: 'charts' });
+                void controller.followRay(e, b);
+              }}
+              onExportChart={(format, svg, size) => void controller.exportChart(format, svg, size)}
+              onPickCrease={(i) => dispatch({ type: 'select-crease', index: i })}
             />
           </section>
           <aside className="right">
-            {selected !== null && pattern.creases[selected] && (
-              <Inspector
-                pattern={pattern}
-                project={project}
-                crease={selected}
-                angleDeg={shown.anglesDeg[selected] ?? 0}
-                rate={shown.rates?.[selected] ?? null}
-                onToggleDrive={(i) => controller.toggleDrive(i)}
-                onBasePanel={(p) => controller.edit((pr) => setBasePanel(pr, p))}
-                onClose={() => dispatch({ type: 'select-crease', index: null })}
-              />
-            )}
             <div className="table-holder" ref={tableRef}>
               <HingeTable
                 rows={rows}
                 selectedCrease={selected}
                 caption={`Angles of the ${shown.caption}.`}
-                height={Math.max(120, tableHeight - 80)}
+                height={Math.max(120, tableHeight - (shown.rateDrive ? 100 : 80))}
+                rateDrive={shown.rateDrive}
+                drives={project.drives.map((d) => d.crease)}
+                rateDriveFixed={shown.source === 'path'}
+                onRateDrive={(label) => dispatch({ type: 'rate-drive', label })}
                 onSelect={(i) => dispatch({ type: 'select-crease', index: i })}
                 onRename={(i, label) => controller.edit((p) => renameCrease(p, i, label))}
                 onLimit={(i, limit) => controller.edit((p) => setCreaseLimit(p, i, limit))}

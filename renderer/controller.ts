@@ -4,10 +4,12 @@
 
 import type { HingeplanApi } from './api';
 import type { BranchDto, PathEventDto, DriveSpec, ExportKind, ExportOptionsDto, GeneratorSpec, MenuCommand, OpenResult, ProjectDto, SweepOptionsDto } from '../electron/contract';
-import { currentProject, isDirty, type AppState } from './state/app';
+import { currentProject, isDirty, type AppState, type PathOrigin } from './state/app';
+import { flippedRange, type PathFixId } from './state/path-words';
 import type { Store } from './state/store';
 import { addDrive, creaseIndexByLabel, removeDrive, setDriveAngle, type Edit } from './state/document';
 import { shownState } from './state/display';
+import { svgToPngBase64 } from './chart-export';
 
 let counter = 0;
 export function newId(prefix: string): string {
@@ -23,9 +25,13 @@ export interface PathRequest {
   fromDeg?: number;
   toDeg?: number;
   stepDeg?: number;
+  /** start from the solution on screen (default) or from the flat sheet */
+  start?: 'solution' | 'flat';
+  /** from flat: along this branch (ids of the branches at flat) */
   branchId?: string;
-  /** start from this state (degrees per crease) instead of the flat sheet */
+  /** start from this state (degrees per crease): a ray leaving a branch point */
   startAnglesDeg?: number[];
+  ray?: { name: string; atDeg: number };
 }
 
 export class Controller {
@@ -35,8 +41,8 @@ export class Controller {
   private recoveryTimer: ReturnType<typeof setTimeout> | undefined;
   private lastDocState = '';
   private unsubscribe: (() => void)[] = [];
-  /** path options last used, so "compute path" repeats them */
-  pathDefaults: Required<Omit<PathRequest, 'drive' | 'branchId' | 'startAnglesDeg'>> = { fromDeg: 0, toDeg: 180, stepDeg: 1 };
+  /** a document asked for its path at opening: computed once its first solve is in, from that solution */
+  private autoPath = false;
 
   constructor(
     readonly api: HingeplanApi,
@@ -97,7 +103,7 @@ export class Controller {
     const report = doc.format === 'dxf' || doc.format === 'svg' ? doc.messages.filter((m) => m.severity === 'info') : [];
     if (report.length) this.store.dispatch({ type: 'notice', kind: 'info', title: `${doc.fileName}: how the drawing was read`, messages: report });
     this.store.dispatch({ type: 'fit-view' });
-    if (doc.computePath && doc.project.drives.length === 1) void this.computePath();
+    this.autoPath = !!doc.computePath && doc.project.drives.length === 1;
     if (doc.recovered) this.scheduleRecovery();
     return true;
   }
@@ -198,6 +204,34 @@ export class Controller {
     return r.value.filePath;
   }
 
+  /** The path charts as an SVG file or a PNG picture, to a file the person chooses. */
+  async exportChart(format: 'svg' | 'png', svg: string, size: { width: number; height: number }): Promise<string | null> {
+    const doc = this.state.doc;
+    if (!doc) return null;
+    let data = svg;
+    if (format === 'png') {
+      try {
+        data = await svgToPngBase64(svg, size.width, size.height);
+      } catch (err) {
+        this.fail('The chart was not exported', err instanceof Error ? err.message : String(err));
+        return null;
+      }
+    }
+    const path = this.state.path.result;
+    const r = await this.api.exportChart({ format, data, suggestedName: `${doc.fileName.replace(/\.hingeplan\.json$|\.json$|\.fold$/i, '')}.path-${path?.driveLabel ?? 'chart'}` });
+    if (!r.ok) {
+      this.fail('The chart was not exported', r.error.message);
+      return null;
+    }
+    if (r.value.status === 'failed') {
+      this.fail('The chart was not exported', r.value.message);
+      return null;
+    }
+    if (r.value.status === 'canceled') return null;
+    this.store.dispatch({ type: 'notice', kind: 'info', title: `Exported ${r.value.fileName}`, messages: [{ severity: 'info', code: 'exported', text: r.value.filePath }] });
+    return r.value.filePath;
+  }
+
   async copyText(text: string): Promise<boolean> {
     const r = await this.api.copyText({ text });
     if (!r.ok) this.fail('Nothing was copied', r.error.message);
@@ -230,9 +264,10 @@ export class Controller {
     const label = project.source.labels[index] ?? String(index);
     if (project.drives.some((d) => d.crease === label)) this.edit((p) => removeDrive(p, label));
     else {
-      // start the new drive where the crease is now, so marking it does not jump the shape
+      // start the new drive where the crease is now, to full precision, so marking it does not jump the
+      // shape nor turn a consistent state into an inconsistent one
       const now = this.shownAngles()?.[index] ?? 0;
-      this.edit((p) => addDrive(p, index, Math.round(now * 100) / 100));
+      this.edit((p) => addDrive(p, index, now));
     }
   }
 
@@ -244,7 +279,7 @@ export class Controller {
     const sample = path.samples[s.scrubIndex];
     const project = currentProject(s);
     if (!project || !sample) return;
-    if (project.drives.some((d) => d.crease === path.driveLabel)) this.setDrive(path.driveLabel, Math.round(sample.driveDeg * 1e6) / 1e6);
+    if (project.drives.some((d) => d.crease === path.driveLabel)) this.setDrive(path.driveLabel, sample.driveDeg);
   }
 
   undo(): void {
@@ -303,21 +338,109 @@ export class Controller {
       this.store.dispatch({ type: 'solve-failed', requestId, error: r.error.message });
       return;
     }
-    if (r.value.status === 'done') this.store.dispatch({ type: 'solve-finished', requestId, result: r.value.value, preferAngles: prefer });
+    if (r.value.status === 'done') {
+      this.store.dispatch({ type: 'solve-finished', requestId, result: r.value.value, preferAngles: prefer });
+      if (this.autoPath && this.state.solve.requestId === requestId) {
+        this.autoPath = false;
+        void this.computePath();
+      }
+    }
   }
 
+  /** Choose a solution card; a path that followed the solution on screen follows the new one. */
+  selectSolution(index: number): void {
+    this.store.dispatch({ type: 'select-solution', index });
+    this.refollow();
+  }
+
+  selectFamily(index: number): void {
+    this.store.dispatch({ type: 'select-family', index });
+    this.refollow();
+  }
+
+  private refollow(): void {
+    const p = this.state.path;
+    if (p.status === 'running' || !p.result) return;
+    if (p.origin?.kind === 'solution' || p.origin?.kind === 'family') void this.computePath({ start: 'solution' });
+  }
+
+  /** One of the fixes the path panel offers when a path has no samples or ends early. */
+  async applyFix(id: PathFixId): Promise<void> {
+    const asked = this.state.path.asked;
+    switch (id) {
+      case 'from-solution':
+        this.store.dispatch({ type: 'path-form', patch: { start: 'solution' } });
+        return this.computePath({ start: 'solution' });
+      case 'from-flat':
+        this.store.dispatch({ type: 'path-form', patch: { start: 'flat', branchId: undefined } });
+        return this.computePath({ start: 'flat' });
+      case 'flip': {
+        if (!asked) return;
+        const f = flippedRange(asked);
+        this.store.dispatch({ type: 'path-form', patch: { from: String(f.fromDeg), to: String(f.toDeg), rangeTouched: true } });
+        return this.computePath({ ...f, start: this.state.pathForm.start });
+      }
+      case 'branches':
+        this.store.dispatch({ type: 'path-tab', tab: 'branches' });
+        if (this.state.branches.status !== 'done') await this.loadBranches();
+        return;
+    }
+  }
+
+  /** The path form's numbers, or the first problem with them in words. */
+  pathNumbers(request: PathRequest = {}): { drive: string; fromDeg: number; toDeg: number; stepDeg: number } | string {
+    const form = this.state.pathForm;
+    const project = currentProject(this.state);
+    const drive = request.drive ?? (project?.drives.some((d) => d.crease === form.drive) ? form.drive : project?.drives[0]?.crease);
+    if (!drive) return 'Mark a crease as a drive first (click it on the sheet).';
+    const num = (t: string) => Number(t.trim().replace('°', '').replace(',', '.').replace('−', '-'));
+    const fromDeg = request.fromDeg ?? num(form.from);
+    const toDeg = request.toDeg ?? num(form.to);
+    const stepDeg = request.stepDeg ?? num(form.step);
+    if (![fromDeg, toDeg].every((v) => Number.isFinite(v) && v >= -180 && v <= 180)) return 'The range must lie between −180° and 180°.';
+    if (!(stepDeg > 0 && stepDeg <= 90)) return 'The step must be above 0° and at most 90°.';
+    if (fromDeg === toDeg) return 'The range is empty: “from” equals “to”.';
+    return { drive, fromDeg, toDeg, stepDeg };
+  }
+
+  /**
+   * Compute the path of a drive over the form's range. By default it starts from the solution on screen
+   * (or the family's state on screen): the sweep follows that state's family to the start of the range and
+   * on, so the charts show the solution the person chose. From the flat sheet it leaves along the branch
+   * chosen (or the one that follows the assignment); a ray of a branch point starts from its state.
+   */
   async computePath(request: PathRequest = {}): Promise<void> {
     const project = currentProject(this.state);
     if (!project) return;
-    const drive = request.drive ?? this.state.path.drive ?? project.drives[0]?.crease;
-    if (!drive) {
-      this.store.dispatch({ type: 'notice', kind: 'warning', title: 'No drive to follow', messages: [{ severity: 'warning', code: 'no-drive', text: 'Mark a crease as a drive first (click it on the sheet).' }] });
+    const numbers = this.pathNumbers(request);
+    if (typeof numbers === 'string') {
+      this.store.dispatch({ type: 'notice', kind: 'warning', title: 'The path was not computed', messages: [{ severity: 'warning', code: 'bad-path-request', text: numbers }] });
       return;
     }
-    const defaults = { ...this.pathDefaults, ...Object.fromEntries(Object.entries(request).filter(([k, v]) => v !== undefined && k !== 'startAnglesDeg')) } as typeof this.pathDefaults;
-    if (!request.startAnglesDeg) this.pathDefaults = { fromDeg: defaults.fromDeg, toDeg: defaults.toDeg, stepDeg: defaults.stepDeg };
+    const { drive, fromDeg, toDeg, stepDeg } = numbers;
+    const start = request.start ?? this.state.pathForm.start;
+    let origin: PathOrigin;
+    let startAnglesDeg: number[] | undefined;
+    let branchId: string | undefined;
+    const s = this.state;
+    const result = s.solve.result;
+    if (request.startAnglesDeg) {
+      startAnglesDeg = request.startAnglesDeg;
+      origin = { kind: 'ray', name: request.ray?.name ?? 'a ray', atDeg: request.ray?.atDeg ?? fromDeg };
+      branchId = request.branchId;
+    } else if (start === 'solution' && result && s.selectedFamily !== null && result.families[s.selectedFamily]) {
+      startAnglesDeg = result.families[s.selectedFamily].representative.anglesDeg;
+      origin = { kind: 'family', index: s.selectedFamily };
+    } else if (start === 'solution' && result?.solutions.length) {
+      const k = Math.min(s.selectedSolution, result.solutions.length - 1);
+      startAnglesDeg = result.solutions[k].anglesDeg;
+      origin = { kind: 'solution', index: k, matchesAssignment: result.solutions[k].matchesAssignment };
+    } else {
+      branchId = request.branchId ?? (start === 'flat' ? s.pathForm.branchId : undefined);
+      origin = { kind: 'flat', ...(branchId ? { branchId } : {}) };
+    }
     const requestId = newId('sweep');
-    this.store.dispatch({ type: 'path-started', requestId, drive, branchId: request.branchId });
+    this.store.dispatch({ type: 'path-started', requestId, drive, branchId, origin, asked: { drive, fromDeg, toDeg, stepDeg } });
     const key = await this.ensurePattern(project);
     if (!key) {
       this.store.dispatch({ type: 'path-stopped', requestId, status: 'error', error: 'the pattern could not be given to the solver' });
@@ -325,12 +448,14 @@ export class Controller {
     }
     const options: SweepOptionsDto = {
       drive,
-      fromDeg: defaults.fromDeg,
-      toDeg: defaults.toDeg,
-      stepDeg: defaults.stepDeg,
+      fromDeg,
+      toDeg,
+      stepDeg,
       held: project.drives.filter((d) => d.crease !== drive),
-      ...(request.branchId && !request.startAnglesDeg ? { branchId: request.branchId } : {}),
-      ...(request.startAnglesDeg ? { startAnglesDeg: request.startAnglesDeg } : {}),
+      ...(branchId && !startAnglesDeg ? { branchId } : {}),
+      ...(startAnglesDeg ? { startAnglesDeg } : {}),
+      // a solution's path runs along its branch from flat when it lies on one (exact, and `--branch` repeats it)
+      ...(startAnglesDeg && origin.kind !== 'ray' ? { viaFlatBranch: true } : {}),
     };
     const r = await this.api.sweep({ requestId, key, options });
     if (!r.ok) {
@@ -357,8 +482,10 @@ export class Controller {
     const scale = 0.5 / Math.abs((td * 180) / Math.PI);
     const start = event.anglesDeg.map((a, c) => a + ((branch.tangent[c] ?? 0) * 180 * scale) / Math.PI);
     const fromDeg = start[d];
-    const toDeg = Math.sign(td) > 0 ? Math.max(fromDeg, this.pathDefaults.toDeg) : Math.min(fromDeg, this.pathDefaults.fromDeg);
-    await this.computePath({ drive: path.driveLabel, fromDeg, toDeg: toDeg === fromDeg ? (td > 0 ? 180 : -180) : toDeg, startAnglesDeg: start, branchId: `ray:${branch.name}` });
+    const asked = this.state.path.asked;
+    const ends = asked ? [asked.fromDeg, asked.toDeg] : [0, 180];
+    const toDeg = Math.sign(td) > 0 ? Math.max(fromDeg, ...ends) : Math.min(fromDeg, ...ends);
+    await this.computePath({ drive: path.driveLabel, fromDeg, toDeg: toDeg === fromDeg ? (td > 0 ? 180 : -180) : toDeg, stepDeg: asked?.stepDeg, startAnglesDeg: start, branchId: `ray:${branch.name}`, ray: { name: branch.name, atDeg: event.driveDeg } });
   }
 
   async cancelPath(): Promise<void> {

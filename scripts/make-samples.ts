@@ -58,8 +58,8 @@ function gripperCell(): Project {
   const p = take('gripper-cell', waterbomb({ size: 80, name: 'gripper cell' }));
   p.units = 'mm';
   p.notes =
-    'Gripper cell: the waterbomb base on an 80 mm square. Diagonals d0-d3 are valleys, the x midline (m0, m2) mountains, the y midline ' +
-    '(m1, m3) is flat (F) as in the flat-folded base (4 V + 2 M). Three degrees of freedom (six hinges - 3): three drives are needed to fix ' +
+    'Gripper cell: the waterbomb base on an 80 mm square. Diagonals d0-d3 are valleys, the x midline (x0, x1) mountains, the y midline ' +
+    '(y0, y1) is flat (F) as in the flat-folded base (4 V + 2 M). Three degrees of freedom (six hinges - 3): three drives are needed to fix ' +
     'the state; this file drives d0, d1 and d2 to 60 degrees (the symmetric closing). With fewer drives the solver reports the state as ' +
     'underspecified and suggests creases to drive. ' +
     CAUTIONS;

@@ -46,6 +46,8 @@ export interface PatternSource {
   faces?: number[][];
   /** index into faces (derived panel order when faces are derived) */
   basePanel?: number;
+  /** a name per panel, in panel order (undefined: the panel is known by its index) */
+  panelNames?: (string | undefined)[];
 }
 
 export interface Crease {
@@ -70,6 +72,8 @@ export interface Panel {
   creases: number[];
   area: number;
   centroid: [number, number];
+  /** the name the file gives the panel, if any */
+  name?: string;
 }
 
 export interface InteriorVertex {

@@ -28,6 +28,14 @@ describe('hingeplan command line', () => {
     const j = JSON.parse(r.out);
     expect(j.valid).toBe(true);
     expect(j.interiorVertices).toBe(1);
+    // --units goes into the file (FOLD's frame_unit too)
+    const inches = join(dir, 'inches.hingeplan.json');
+    expect((await run(['new', 'waterbomb', '--size', '4', '--units', 'in', '--out', inches])).code).toBe(0);
+    expect(JSON.parse(readFileSync(inches, 'utf8')).units).toBe('in');
+    const fold = join(dir, 'inches.fold');
+    expect((await run(['new', 'waterbomb', '--units', 'in', '--out', fold])).code).toBe(0);
+    expect(JSON.parse(readFileSync(fold, 'utf8')).frame_unit).toBe('in');
+    expect((await run(['new', 'waterbomb', '--units', ''])).code).toBe(2);
   });
 
   it('solve --json has the documented shape and exits 0 when solved', async () => {

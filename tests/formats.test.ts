@@ -90,6 +90,27 @@ describe('project file', () => {
     expect(text.indexOf('"format"')).toBeLessThan(text.indexOf('"version"'));
   });
 
+  it('names panels: read, written, kept through FOLD, shown on the pattern; a name for a missing panel or a repeated one is refused by name', () => {
+    const p = coupon();
+    p.source.panelNames = ['hinge plate', undefined, 'base'];
+    const text = writeProject(p);
+    expect(text).toContain('"panelNames": {"0":"hinge plate","2":"base"}');
+    const q = parseProject(text).project!;
+    expect(q.source.panelNames).toEqual(['hinge plate', undefined, 'base']);
+    const pattern = buildPattern(q.source).pattern!;
+    expect(pattern.panels.map((x) => x.name)).toEqual(['hinge plate', undefined, 'base', undefined]);
+    // FOLD: a namespaced per-face list, null for an unnamed panel
+    const fold = writeFold(q);
+    expect(JSON.parse(fold)['hingeplan:faces_name']).toEqual(['hinge plate', null, 'base']);
+    expect(parseFold(fold).project!.source.panelNames).toEqual(['hinge plate', undefined, 'base']);
+    // the schema refuses a key that is not a panel index
+    expect(parseProject(text.replace('"2":"base"', '"two":"base"')).messages.some((m) => m.severity === 'error' && m.where?.field?.startsWith('panelNames'))).toBe(true);
+    const built = buildPattern({ ...q.source, panelNames: ['a', 'a', undefined, undefined, 'ghost'] });
+    expect(code(built.messages, 'duplicate-panel-name')!.text).toBe('Panels 0 and 1 are both named "a"; panel 1 is known by its index.');
+    expect(code(built.messages, 'panel-name-unknown')!.text).toContain('Panel 4 is named "ghost", but the pattern has 4 panels');
+    expect(built.pattern!.panels[1].name).toBeUndefined();
+  });
+
   it('not-json: names the line and column of a syntax error (JSON per RFC 8259)', () => {
     const m = refusedWith(parseProject('{\n  "format": "hingeplan-project",\n  "version": 1,\n  "name": oops\n}'), 'not-json');
     expect(m.where).toEqual({ line: 4 });

@@ -237,9 +237,9 @@ describe('waterbomb', () => {
   const p = built(r);
   const iv = p.interiorVertices[0];
 
-  it('is a square with a degree-8 centre vertex: diagonals d0 … d3, midlines m0 … m3', () => {
+  it('is a square with a degree-8 centre vertex: diagonals d0 … d3, midlines x0, x1 and y0, y1', () => {
     expect(iv.creases.length).toBe(8);
-    expect(iv.creases.map((c) => p.creases[c].label)).toEqual(['m0', 'd0', 'm1', 'd1', 'm2', 'd2', 'm3', 'd3']);
+    expect(iv.creases.map((c) => p.creases[c].label)).toEqual(['x0', 'd0', 'y0', 'd1', 'x1', 'd2', 'y1', 'd3']);
     for (const s of iv.sectors) expect(s * DEG).toBeCloseTo(45, 12);
     expect(p.panels.reduce((s, q) => s + q.area, 0)).toBeCloseTo(80 * 80, 9);
   });
@@ -253,7 +253,7 @@ describe('waterbomb', () => {
     const [e, o] = alternateSums(sectors);
     expect(e).toBeCloseTo(180, 9);
     expect(o).toBeCloseTo(180, 9);
-    expect(['m1', 'm3'].map((l) => p.creases[p.labelIndex.get(l)!].assignment)).toEqual(['F', 'F']);
+    expect(['y0', 'y1'].map((l) => p.creases[p.labelIndex.get(l)!].assignment)).toEqual(['F', 'F']);
     // the five-DOF variant with every midline a hinge is 4 M + 4 V: it cannot fold flat (Maekawa fails)
     const all = built(waterbomb({ allMidlines: true }));
     expect(maekawa(all, all.interiorVertices[0])).toBe(0);
@@ -265,7 +265,7 @@ describe('waterbomb', () => {
     const err = (mu: number) =>
       closureError(iv, (c) => {
         const l = p.creases[c].label;
-        return l.startsWith('d') ? 60 * RAD : l === 'm0' || l === 'm2' ? mu : 0;
+        return l.startsWith('d') ? 60 * RAD : l === 'x0' || l === 'x1' ? mu : 0;
       });
     let best = 0;
     for (let mu = -Math.PI; mu <= Math.PI; mu += RAD) if (err(mu) < err(best)) best = mu;

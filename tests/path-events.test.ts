@@ -150,3 +150,33 @@ describe('folded flat', () => {
     for (let c = 0; c < 4; c++) expect(Math.abs(Math.abs(last.angles[c]) - Math.PI)).toBeLessThan(1e-6);
   });
 });
+
+describe('a path started from a folded state whose samples lie across flat', () => {
+  it('reaches flat along the start state\'s own branch and goes on along it: the same samples as the path from flat, through the start', async () => {
+    const { loadPatternText } = await import('../solver/formats/project');
+    const { solveDrives } = await import('../solver/search/solve');
+    const { readFileSync } = await import('node:fs');
+    const loaded = loadPatternText(readFileSync('samples/sunshade-panel.hingeplan.json', 'utf8'), 'sunshade-panel.hingeplan.json');
+    const p = loaded.pattern!, d = loaded.drives![0];
+    const rep = solveDrives(p, [d], { detail: 1, cap: 4 });
+    const D = Math.PI / 180, sign = Math.sign(d.value);
+    for (const k of [0, 1]) {
+      const st = rep.solutions[k].angles;
+      const fromFlat = sweep(p, { drive: d.crease, from: 0, to: sign * 90 * D, step: 5 * D, branch: undefined });
+      const fromStart = sweep(p, { drive: d.crease, from: 0, to: sign * 90 * D, step: 5 * D, start: st });
+      expect(fromStart.status).toBe('complete');
+      const at60 = fromStart.samples.find((x) => Math.abs(x.drive - d.value) < 1e-12)!;
+      // the path passes through the start state
+      for (let c = 0; c < st.length; c++) expect(Math.abs(at60.angles[c] - st[c])).toBeLessThan(1e-9);
+      if (k === 0) {
+        // the start is the assignment's own state: the path is the default path from flat
+        fromFlat.samples.forEach((x, i) => {
+          for (let c = 0; c < st.length; c++) {
+            expect(Math.abs(x.angles[c] - fromStart.samples[i].angles[c])).toBeLessThan(1e-9);
+            expect(Math.abs(x.rates[c] - fromStart.samples[i].rates[c])).toBeLessThan(1e-7);
+          }
+        });
+      }
+    }
+  });
+});

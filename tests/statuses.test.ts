@@ -91,3 +91,24 @@ describe('specification statuses', () => {
     expect(r.dof).toBe(1);
   });
 });
+
+describe('a continuum is one family, not its members', () => {
+  it('the two-motor rig (a degree-5 vertex) with one drive: no solutions, one one-DOF family with its free direction', async () => {
+    const { loadPatternText } = await import('../solver/formats/project');
+    const { readFileSync } = await import('node:fs');
+    const loaded = loadPatternText(readFileSync('samples/two-motor-rig.hingeplan.json', 'utf8'), 'two-motor-rig.hingeplan.json');
+    const p = loaded.pattern!;
+    const r = solveDrives(p, [{ crease: p.labelIndex.get('c0')!, value: 40 * D }]);
+    expect(r.status).toBe('underspecified');
+    expect(r.solutions).toHaveLength(0);
+    // the degree-5 vertex with one crease fixed is a spherical 4R loop, whose states form at most two closed
+    // curves (its assembly circuits; J. M. McCarthy, G. S. Soh, "Geometric Design of Linkages", 2nd ed., 2011,
+    // ch. 5, from memory): every state found lies on one of at most two families, not dozens
+    expect(r.families.length).toBeGreaterThanOrEqual(1);
+    expect(r.families.length).toBeLessThanOrEqual(2);
+    for (const f of r.families) expect(f.dof).toBe(1);
+    const dir = r.families[0].directions[0];
+    expect(Math.hypot(...dir.values())).toBeCloseTo(1, 12);
+    expect(r.families[0].representative.maxResidual).toBeLessThanOrEqual(1e-10);
+  });
+});

@@ -20,7 +20,7 @@ export const newCommand: Command = {
   readsNoPattern: true,
   name: 'new',
   summary: 'write a project file from a built-in generator (vertex, miura, waterbomb, degree5)',
-  help: `Usage: hingeplan new <kind> [options] [--out <file>] [--name <text>]
+  help: `Usage: hingeplan new <kind> [options] [--out <file>] [--name <text>] [--units <text>]
 
 Kinds:
   vertex     a single vertex from its sector angles
@@ -31,13 +31,16 @@ Kinds:
   degree5    a generic degree-5 vertex with two suggested drives: [--sectors <five angles>] [--radius <len>]
 
 The file holds the pattern and the generator's suggested drives. --out <file> writes it (a .fold ending
-writes FOLD, anything else our project file); without --out the project file goes to stdout.`,
+writes FOLD, anything else our project file); without --out the project file goes to stdout. --units names
+the unit of the lengths given (free text, e.g. mm); it is written into the file.`,
   run(argv, io) {
     const { values, positionals } = parseCommandArgs(argv, {
       sectors: { type: 'string' }, assign: { type: 'string' }, radius: { type: 'string' },
       rows: { type: 'string' }, cols: { type: 'string' }, a: { type: 'string' }, b: { type: 'string' },
-      alpha: { type: 'string' }, size: { type: 'string' }, out: { type: 'string' }, name: { type: 'string' },
+      alpha: { type: 'string' }, size: { type: 'string' }, out: { type: 'string' }, name: { type: 'string' }, units: { type: 'string' },
     });
+    const units = (values.units as string | undefined)?.trim();
+    if (units !== undefined && (!units || units.length > 50)) throw new UsageError('--units must be a unit name of 1 to 50 characters, e.g. mm');
     const kind = positionals[0];
     const name = values.name as string | undefined;
     const radius = values.radius === undefined ? undefined : numberOption(values.radius as string, 'radius');
@@ -73,6 +76,7 @@ writes FOLD, anything else our project file); without --out the project file goe
       printMessages(io, result.messages, `new ${kind}: `);
       return EXIT.usage;
     }
+    if (units) result.project.units = units;
     const built = buildPattern(result.project.source);
     if (!built.pattern) {
       printMessages(io, built.messages, `new ${kind}: `);

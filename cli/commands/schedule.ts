@@ -7,7 +7,7 @@ import { scheduleSteps, type HingeLimits, type ProfileKind, type ScheduleOptions
 import { scheduleTable } from '../../solver/outputs/table';
 import { findCrease } from '../../solver/model/pattern';
 import {
-  creaseOption, EXIT_INTERRUPTED, holdsOption, intOrUndefined, printSolverMessages, runResponsive, tableHeader, writeOutput, joinNegativeNumbers,
+  creaseOption, EXIT_INTERRUPTED, holdsOption, intOrUndefined, printSolverMessages, runResponsive, startOption, tableHeader, writeOutput, joinNegativeNumbers,
 } from './path-common';
 
 const RAD = Math.PI / 180;
@@ -32,7 +32,7 @@ export const scheduleCommand: Command = {
                           [--profile constant|trapezoid|s-curve] [--accel-time <s> | --accel <deg/s²>]
                           [--jerk-time <s>] [--dt <s> | --rows <n>] [--max-rate <deg/s>] [--max-accel <deg/s²>]
                           [--limit <crease>=<deg/s>[:<deg/s²>] …] [--hold <crease>=<deg> …]
-                          [--branch <id> | --solution <k>] [--format csv|json] [--out <file>]
+                          [--branch <id> | --solution <k> | --start <file>] [--format csv|json] [--out <file>]
 
 Moves the drive from --from to --to in --time seconds with the chosen profile, and solves every hinge at each
 time row exactly on the path (as \`hingeplan sweep\`). Hinge velocity = rate × drive velocity; hinge
@@ -51,7 +51,7 @@ Profiles (symmetric start and stop; Δ = |to − from|, T = --time):
   --dt <s> | --rows <n>  time step between rows (default: 101 rows); the last row is at exactly T.
   --max-rate, --max-accel   limits for every hinge (deg/s, deg/s²).
   --limit <crease>=<rate>[:<accel>]   a limit for one hinge (overrides the global ones); repeat.
-  --hold, --branch, --solution, --progress, --out   as for \`hingeplan sweep\`.
+  --hold, --branch, --solution, --start, --progress, --out   as for \`hingeplan sweep\`.
   --format csv|json      csv (default): metadata header ("# key: value", as \`hingeplan table\`, plus the
                          profile), then columns t, drive, drive_velocity, drive_acceleration, every hinge angle,
                          velocity:<crease> …, acceleration:<crease> …, max_residual, flags ("rate:<crease>",
@@ -65,7 +65,7 @@ over a limit; 2 invalid input; 130 stopped by Ctrl-C (the rows computed are writ
       profile: { type: 'string' }, 'accel-time': { type: 'string' }, accel: { type: 'string' }, 'jerk-time': { type: 'string' },
       dt: { type: 'string' }, rows: { type: 'string' }, 'max-rate': { type: 'string' }, 'max-accel': { type: 'string' },
       limit: { type: 'string', multiple: true }, hold: { type: 'string', multiple: true }, branch: { type: 'string' },
-      solution: { type: 'string' }, format: { type: 'string' }, out: { type: 'string' }, progress: { type: 'boolean' },
+      solution: { type: 'string' }, start: { type: 'string' }, format: { type: 'string' }, out: { type: 'string' }, progress: { type: 'boolean' },
     };
     const { values, positionals } = parseCommandArgs(joinNegativeNumbers(argv, spec), spec);
     const format = (values.format as string | undefined) ?? 'csv';
@@ -84,6 +84,8 @@ over a limit; 2 invalid input; 130 stopped by Ctrl-C (the rows computed are writ
     const from = numberOption(values.from as string | undefined, 'from');
     const to = numberOption(values.to as string | undefined, 'to');
     for (const [v, n] of [[from, 'from'], [to, 'to']] as const) if (Math.abs(v) > 180) throw new UsageError(`--${n} must be within −180 … 180 degrees, got ${v}`);
+    const start = startOption(io, pattern, values.start as string | undefined);
+    if (start === null) return EXIT.usage;
     const duration = numberOption(values.time as string | undefined, 'time');
     if (!(duration > 0)) throw new UsageError(`--time must be a positive number of seconds, got ${duration}`);
     const hingeLimits = new Map<number, HingeLimits>();
@@ -112,6 +114,7 @@ over a limit; 2 invalid input; 130 stopped by Ctrl-C (the rows computed are writ
       holds,
       branch: intOrUndefined(values.branch, 'branch'),
       solution: intOrUndefined(values.solution, 'solution'),
+      ...(start ? { start } : {}),
       limits: global,
       hingeLimits: new Map([...hingeLimits].map(([c, l]) => [c, { ...global, ...l }])),
     };

@@ -35,9 +35,29 @@ export interface SolveState {
   status: JobStatus;
   requestId?: string;
   result?: SolveResultDto;
+  /**
+   * the last result that had a state to show, kept while the current one has none because a drive is past
+   * its hinge stop: the views keep that state on screen with the violation marked
+   */
+  lastValid?: { result: SolveResultDto; selected: number };
   /** the drives the result belongs to (JSON), to tell a stale result from a current one */
   forDrives?: string;
   error?: string;
+}
+
+/** What a path started from: the solution on screen, a family's representative, the flat sheet along a branch, or a ray of a branch point. */
+export type PathOrigin =
+  | { kind: 'solution'; index: number; matchesAssignment: boolean }
+  | { kind: 'family'; index: number }
+  | { kind: 'flat'; branchId?: string }
+  | { kind: 'ray'; name: string; atDeg: number };
+
+/** The numbers a path was computed for (the form can change after). */
+export interface PathAsked {
+  drive: string;
+  fromDeg: number;
+  toDeg: number;
+  stepDeg: number;
 }
 
 export interface PathState {
@@ -49,7 +69,28 @@ export interface PathState {
   /** what the path was asked for, to redo it after a branch switch */
   drive?: string;
   branchId?: string;
+  /** what the path on screen (result) started from and was asked for */
+  origin?: PathOrigin;
+  asked?: PathAsked;
+  /** the same for the path being computed */
+  pending?: { origin?: PathOrigin; asked?: PathAsked };
 }
+
+/** The path's form as typed (text, so a half-typed number stays as it is). */
+export interface PathForm {
+  drive: string;
+  from: string;
+  to: string;
+  step: string;
+  /** start from the solution on screen, or from the flat sheet (along branchId, or the one that follows M/V) */
+  start: 'solution' | 'flat';
+  branchId?: string;
+  /** the range was typed by hand: a change of drive no longer resets it */
+  rangeTouched: boolean;
+}
+
+/** Tabs of the path area; other panels (drive torque, tolerance) add theirs here. */
+export type PathTab = 'charts' | 'events' | 'branches';
 
 export interface BranchState {
   status: JobStatus;
@@ -78,6 +119,12 @@ export interface AppState {
   doc: DocState | null;
   solve: SolveState;
   selectedSolution: number;
+  /** a family chosen in the solutions panel: its representative is on screen (null: a solution is) */
+  selectedFamily: number | null;
+  pathForm: PathForm;
+  pathTab: PathTab;
+  /** the drive the rates on screen are taken against (label; null: the first drive) */
+  rateDrive: string | null;
   path: PathState;
   branches: BranchState;
   /** when set, the shown state is this sample of the path (scrubbing) */
@@ -91,10 +138,22 @@ export interface AppState {
   editError: string | null;
 }
 
+export const initialPathForm: PathForm = { drive: '', from: '0', to: '180', step: '1', start: 'solution', rangeTouched: false };
+
+/** The form a document starts with: its first drive, 0° to ±180° on the side the drive folds to now. */
+export function pathFormFor(project: ProjectDto, drive?: string): PathForm {
+  const d = project.drives.find((x) => x.crease === drive) ?? project.drives[0];
+  return { ...initialPathForm, drive: d?.crease ?? '', to: d && d.angleDeg < 0 ? '-180' : '180' };
+}
+
 export const initialState: AppState = {
   doc: null,
   solve: { status: 'idle' },
   selectedSolution: 0,
+  selectedFamily: null,
+  pathForm: initialPathForm,
+  pathTab: 'charts',
+  rateDrive: null,
   path: { status: 'idle' },
   branches: { status: 'idle' },
   scrubIndex: null,
@@ -118,7 +177,11 @@ export type Action =
   | { type: 'solve-finished'; requestId: string; result: SolveResultDto; preferAngles?: number[] }
   | { type: 'solve-failed'; requestId: string; error: string }
   | { type: 'select-solution'; index: number }
-  | { type: 'path-started'; requestId: string; drive: string; branchId?: string }
+  | { type: 'select-family'; index: number }
+  | { type: 'path-form'; patch: Partial<PathForm> }
+  | { type: 'path-tab'; tab: PathTab }
+  | { type: 'rate-drive'; label: string | null }
+  | { type: 'path-started'; requestId: string; drive: string; branchId?: string; origin?: PathOrigin; asked?: PathAsked }
   | { type: 'path-progress'; requestId: string; done: number; total: number }
   | { type: 'path-finished'; requestId: string; result: PathResultDto }
   | { type: 'path-stopped'; requestId: string; status: 'cancelled' | 'error'; error?: string }
@@ -175,6 +238,7 @@ export function reducer(state: AppState, action: Action): AppState {
         ...initialState,
         view: state.view,
         notices: state.notices.filter((n) => n.kind !== 'error'),
+        pathForm: pathFormFor(d.project),
         doc: {
           id: action.id,
           history: startHistory(d.project),
@@ -214,25 +278,56 @@ export function reducer(state: AppState, action: Action): AppState {
       return { ...state, solve: { ...state.solve, status: 'running', requestId: action.requestId, forDrives: action.forDrives } };
     case 'solve-finished': {
       if (state.solve.requestId !== action.requestId) return state;
+      const prev = state.solve.result;
+      const hasState = (r: SolveResultDto | undefined) => !!r && (r.solutions.length > 0 || r.families.length > 0);
+      // a drive past its stop leaves nothing to show: keep the last state that had one
+      const pastStop = !hasState(action.result) && action.result.messages.some((m) => m.code === 'drive-outside-limit' || m.code === 'outside-hinge-limits');
+      const lastValid = pastStop ? (hasState(prev) ? { result: prev!, selected: state.selectedSolution } : state.solve.lastValid) : undefined;
+      const families = action.result.families.length;
       return {
         ...state,
-        solve: { status: 'done', requestId: action.requestId, result: action.result, forDrives: state.solve.forDrives },
+        solve: { status: 'done', requestId: action.requestId, result: action.result, forDrives: state.solve.forDrives, ...(lastValid ? { lastValid } : {}) },
         selectedSolution: nearestSolution(action.result, action.preferAngles),
+        // a family stays chosen while the drives keep one; with no isolated solution its representative is shown
+        selectedFamily: state.selectedFamily !== null && state.selectedFamily < families ? state.selectedFamily : !action.result.solutions.length && families ? 0 : null,
       };
     }
     case 'solve-failed':
       if (state.solve.requestId !== action.requestId) return state;
       return { ...state, solve: { ...state.solve, status: 'error', error: action.error } };
     case 'select-solution':
-      return { ...state, selectedSolution: action.index, scrubIndex: null };
+      return { ...state, selectedSolution: action.index, selectedFamily: null, scrubIndex: null };
+    case 'select-family':
+      return { ...state, selectedFamily: action.index, scrubIndex: null };
+    case 'path-form': {
+      const form = { ...state.pathForm, ...action.patch };
+      // a new drive to follow gets the range on the side it folds to, unless the range was typed
+      if (action.patch.drive !== undefined && action.patch.drive !== state.pathForm.drive && !form.rangeTouched && state.doc) {
+        const { from, to } = pathFormFor(state.doc.history.present, action.patch.drive);
+        form.from = from;
+        form.to = to;
+      }
+      return { ...state, pathForm: form };
+    }
+    case 'path-tab':
+      return state.pathTab === action.tab ? state : { ...state, pathTab: action.tab };
+    case 'rate-drive':
+      return { ...state, rateDrive: action.label };
     case 'path-started':
-      return { ...state, path: { status: 'running', requestId: action.requestId, progress: { done: 0, total: 0 }, drive: action.drive, branchId: action.branchId, result: state.path.result }, scrubIndex: null };
+      return {
+        ...state,
+        path: {
+          status: 'running', requestId: action.requestId, progress: { done: 0, total: 0 }, drive: action.drive, branchId: action.branchId,
+          result: state.path.result, origin: state.path.origin, asked: state.path.asked, pending: { origin: action.origin, asked: action.asked },
+        },
+        scrubIndex: null,
+      };
     case 'path-progress':
       if (state.path.requestId !== action.requestId || state.path.status !== 'running') return state;
       return { ...state, path: { ...state.path, progress: { done: action.done, total: action.total } } };
     case 'path-finished':
       if (state.path.requestId !== action.requestId) return state;
-      return { ...state, path: { ...state.path, status: 'done', result: action.result, progress: undefined } };
+      return { ...state, path: { ...state.path, status: 'done', result: action.result, progress: undefined, origin: state.path.pending?.origin, asked: state.path.pending?.asked, pending: undefined } };
     case 'path-stopped':
       if (state.path.requestId !== action.requestId) return state;
       return { ...state, path: { ...state.path, status: action.status, error: action.error } };

@@ -1,9 +1,9 @@
 // What the views show, computed from the state as plain functions: the status in words, the state on
 // screen (a solution or a path sample), the hinge table rows and its CSV, the tint scale, chart curves.
 
-import { scaleDiverging } from 'd3-scale';
 import type { PathResultDto, ProjectDto, SolutionDto, SolveResultDto } from '../../electron/contract';
 import { CAUTIONS } from '../../solver/formats/cautions';
+import { angleColor } from '../palette';
 import type { AppState } from './app';
 import { creaseIndexByLabel, creaseLabel, limitDeg, limitState } from './document';
 
@@ -25,16 +25,18 @@ const listLabels = (labels: string[] | undefined, max = 6): string => {
 
 const plural = (n: number, one: string, many = `${one}s`) => `${n} ${n === 1 ? one : many}`;
 
-export function statusInWords(result: SolveResultDto | undefined, driveCount: number): StatusWords {
+export function statusInWords(result: SolveResultDto | undefined, driveCount: number, drives: string[] = []): StatusWords {
   if (!result) return { headline: 'Not solved yet', detail: 'Set a drive to fold the pattern.', tone: 'note' };
   const firstError = result.messages.find((m) => m.severity === 'error')?.text;
+  const fam = result.families.length;
+  const famWords = fam ? ` ${plural(fam, 'family', 'families')} of states also ${fam === 1 ? 'passes' : 'pass'} through these values.` : '';
   switch (result.status) {
     case 'solved':
-      return { headline: 'Solved', detail: 'One folded state meets the drives.', tone: 'good' };
+      return { headline: 'Solved', detail: `One folded state meets the drives.${famWords}`, tone: 'good' };
     case 'several-solutions':
       return {
         headline: 'Several solutions',
-        detail: `${result.solutions.length} folded states meet the drives; choose one below.`,
+        detail: `${result.solutions.length} folded states meet the drives; choose one below.${famWords}`,
         tone: 'note',
       };
     case 'underspecified': {
@@ -44,16 +46,30 @@ export function statusInWords(result: SolveResultDto | undefined, driveCount: nu
         detail:
           driveCount === 0
             ? `No drive is set; the pattern has ${plural(result.patternDof, 'degree')} of freedom.${add ? ` Mark a drive, e.g. ${add}.` : ''}`
-            : `${plural(result.dof, 'degree')} of freedom left.${add ? ` Add a drive at ${add}.` : ''}`,
+            : `${plural(result.dof, 'degree')} of freedom left: the drives leave ${fam ? `${plural(fam, 'family', 'families')} of states` : 'a family of states'}, not one state.${add ? ` Add a drive at ${add}.` : ''}`,
         tone: 'note',
       };
     }
-    case 'overspecified':
+    case 'overspecified': {
+      // consistent: the extra drives agree with the others, so it is a note, not an error
+      const implied = (result.conflictingDrives ?? []).filter((d) => drives.includes(d));
+      const free = drives.filter((d) => !implied.includes(d));
+      const which =
+        implied.length && implied.length < drives.length
+          ? ` ${listLabels(implied)} ${implied.length === 1 ? 'follows' : 'follow'} from ${listLabels(free)}; remove ${implied.length === 1 ? 'it' : 'them'} or let ${implied.length === 1 ? 'it' : 'them'} follow.`
+          : implied.length
+            ? (() => {
+                const extra = Math.max(1, drives.length - result.patternDof);
+                const others = implied.length - extra === 1 ? 'the other' : 'the others';
+                return extra === 1 ? ` One of ${listLabels(implied)} follows from ${others}; remove one.` : ` ${extra} of ${listLabels(implied)} follow from ${others}; remove ${extra}.`;
+              })()
+            : ' Remove a drive.';
       return {
-        headline: 'Overspecified',
-        detail: `${plural(driveCount, 'drive')} for a pattern with ${plural(result.patternDof, 'degree')} of freedom. ${firstError ?? 'Remove a drive.'}`,
-        tone: 'bad',
+        headline: 'Overspecified, consistent',
+        detail: `${plural(driveCount, 'drive')} for a pattern with ${plural(result.patternDof, 'degree')} of freedom; the values agree.${which}`,
+        tone: 'note',
       };
+    }
     case 'inconsistent': {
       const worst = (result.worstVertices ?? []).map(([v, r]) => `vertex ${v} (${((r * 180) / Math.PI).toFixed(2)}°)`);
       return {
@@ -70,20 +86,24 @@ export function statusInWords(result: SolveResultDto | undefined, driveCount: nu
       };
     case 'unreachable': {
       const ranges = (result.reachableRangeDeg ?? []).map(([a, b]) => `${a.toFixed(1)}° to ${b.toFixed(1)}°`);
+      const stops = result.excluded?.length ? ` ${plural(result.excluded.length, 'state')} would close but ${result.excluded.length === 1 ? 'puts' : 'put'} a hinge past its stop (drawn in the past-limit colour).` : '';
       return {
         headline: 'Unreachable',
-        detail: `The pattern cannot fold to this drive value.${ranges.length ? ` Reachable: ${ranges.join(', ')}.` : ''}`,
+        detail: `The pattern cannot fold to this drive value.${ranges.length ? ` Reachable: ${ranges.join(', ')}.` : ''}${stops}`,
         tone: 'bad',
       };
     }
     case 'not-isolated':
       return {
         headline: 'Not isolated',
-        detail: `The drives do not pin the pattern down here (${plural(result.dof, 'degree')} of freedom left at this state).`,
+        detail: `The drives do not pin the pattern down here: ${plural(result.dof, 'degree')} of freedom left at this state, a family passes through it.`,
         tone: 'note',
       };
-    case 'invalid':
+    case 'invalid': {
+      const stop = result.messages.find((m) => m.code === 'drive-outside-limit');
+      if (stop) return { headline: 'Past a hinge stop', detail: `${stop.text} The last solved state stays on screen.`, tone: 'bad' };
       return { headline: 'Cannot solve', detail: firstError ?? 'The pattern or the drives have errors; see the messages.', tone: 'bad' };
+    }
   }
 }
 
@@ -91,9 +111,11 @@ export function statusInWords(result: SolveResultDto | undefined, driveCount: nu
 
 export interface ShownState {
   anglesDeg: number[];
-  /** d(crease)/d(first drive), degrees per degree; null where unknown */
+  /** d(crease)/d(rate drive), degrees per degree; null where unknown */
   rates: (number | null)[] | null;
-  source: 'solution' | 'compromise' | 'path' | 'flat';
+  /** the drive the rates are against (label), when there are rates */
+  rateDrive?: string;
+  source: 'solution' | 'family' | 'last-valid' | 'excluded' | 'compromise' | 'path' | 'flat';
   caption: string;
   solution?: SolutionDto;
 }
@@ -103,27 +125,55 @@ export function shownState(state: AppState, creaseCount: number): ShownState {
   const path = state.path.result;
   if (state.scrubIndex !== null && path && path.samples[state.scrubIndex]) {
     const s = path.samples[state.scrubIndex];
-    return { anglesDeg: s.anglesDeg, rates: s.rates, source: 'path', caption: `path sample ${state.scrubIndex + 1} of ${path.samples.length}, ${path.driveLabel} = ${s.driveDeg.toFixed(2)}°` };
+    return { anglesDeg: s.anglesDeg, rates: s.rates, rateDrive: path.driveLabel, source: 'path', caption: `path sample ${state.scrubIndex + 1} of ${path.samples.length}, ${path.driveLabel} = ${s.driveDeg.toFixed(2)}°` };
   }
+  const fits = (s: SolutionDto | undefined) => !!s && s.anglesDeg.length === creaseCount;
   const result = state.solve.result;
-  if (result && result.solutions.length && result.solutions[0].anglesDeg.length === creaseCount) {
+  const rateDrive = rateDriveOf(state, project);
+  if (result && state.selectedFamily !== null && fits(result.families[state.selectedFamily]?.representative)) {
+    const f = result.families[state.selectedFamily];
+    return { anglesDeg: f.representative.anglesDeg, rates: null, source: 'family', caption: `one state of family ${state.selectedFamily + 1} (${plural(f.dof, 'degree')} of freedom)`, solution: f.representative };
+  }
+  if (result && result.solutions.length && fits(result.solutions[0])) {
     const i = Math.min(state.selectedSolution, result.solutions.length - 1);
     const sol = result.solutions[i];
-    return { anglesDeg: sol.anglesDeg, rates: ratesOf(sol, project, creaseCount), source: 'solution', caption: `solution ${i + 1} of ${result.solutions.length}`, solution: sol };
+    // a state on a continuum has no sensitivities: its rates are not defined there
+    if (sol.localDof > 0) return { anglesDeg: sol.anglesDeg, rates: null, source: 'solution', caption: `state ${i + 1} of ${result.solutions.length} found, on a family (${plural(sol.localDof, 'degree')} of freedom)`, solution: sol };
+    return { anglesDeg: sol.anglesDeg, rates: ratesOf(sol, project, creaseCount, rateDrive), rateDrive, source: 'solution', caption: `solution ${i + 1} of ${result.solutions.length}`, solution: sol };
   }
-  if (result?.compromise && result.compromise.anglesDeg.length === creaseCount) {
+  const last = state.solve.lastValid;
+  if (last && last.result.solutions.length && fits(last.result.solutions[0])) {
+    const sol = last.result.solutions[Math.min(last.selected, last.result.solutions.length - 1)];
+    const driveStop = !!result?.messages.some((m) => m.code === 'drive-outside-limit');
+    const caption = driveStop ? 'last solved state (a drive is now past its stop)' : 'last solved state (it is now past a hinge stop)';
+    return { anglesDeg: sol.anglesDeg, rates: ratesOf(sol, project, creaseCount, rateDrive), rateDrive, source: 'last-valid', caption, solution: sol };
+  }
+  if (result?.excluded?.length && fits(result.excluded[0])) {
+    return { anglesDeg: result.excluded[0].anglesDeg, rates: null, source: 'excluded', caption: 'a state past a hinge stop (not a solution)', solution: result.excluded[0] };
+  }
+  if (result?.compromise && fits(result.compromise)) {
     return { anglesDeg: result.compromise.anglesDeg, rates: null, source: 'compromise', caption: 'closest compromise (does not close)', solution: result.compromise };
   }
   return { anglesDeg: new Array(creaseCount).fill(0), rates: null, source: 'flat', caption: 'flat sheet' };
 }
 
-/** Rate of every crease with respect to the first drive, from the solution's sensitivity. */
-export function ratesOf(sol: SolutionDto, project: ProjectDto | undefined, creaseCount: number): (number | null)[] | null {
+/** The drive rates are shown against: the one chosen, when it is still a drive, else the first. */
+export function rateDriveOf(state: AppState, project: ProjectDto | undefined): string | undefined {
+  const drives = project?.drives ?? [];
+  return drives.find((d) => d.crease === state.rateDrive)?.crease ?? drives[0]?.crease;
+}
+
+/** Rate of every crease with respect to one drive (default the first), from the solution's sensitivity. */
+export function ratesOf(sol: SolutionDto, project: ProjectDto | undefined, creaseCount: number, driveLabel?: string): (number | null)[] | null {
   if (!project || !project.drives.length) return null;
-  const drive = creaseIndexByLabel(project, project.drives[0].crease);
+  const drive = creaseIndexByLabel(project, driveLabel ?? project.drives[0].crease);
   if (drive === undefined) return null;
   const rates: (number | null)[] = new Array(creaseCount).fill(null);
-  rates[drive] = 1;
+  for (const d of project.drives) {
+    const k = creaseIndexByLabel(project, d.crease);
+    // a drive moves only with itself; the other drives are held while this one moves
+    if (k !== undefined) rates[k] = k === drive ? 1 : 0;
+  }
   for (const [c, d, v] of sol.sensitivity) if (d === drive) rates[c] = v;
   return rates;
 }
@@ -161,9 +211,9 @@ export function hingeRows(project: ProjectDto, shown: ShownState, includeBoundar
     const words: string[] = [];
     if (isDrive) words.push('drive');
     if (assignment === 'F') words.push('held flat');
-    if (lim === 'beyond') words.push('beyond limit');
-    else if (lim === 'at-limit') words.push('at limit');
-    if ((assignment === 'M' && sign === 'V') || (assignment === 'V' && sign === 'M')) words.push('against assignment');
+    if (lim === 'beyond') words.push('past stop');
+    else if (lim === 'at-limit') words.push('at stop');
+    if ((assignment === 'M' && sign === 'V') || (assignment === 'V' && sign === 'M')) words.push('opposes M/V');
     if (Math.abs(Math.abs(angleDeg) - 180) < 0.5) words.push('folded flat');
     rows.push({ index: i, label, assignment, minDeg, maxDeg, angleDeg, rate: shown.rates?.[i] ?? null, status: words.join(', ') || 'ok', isDrive, violates: lim === 'beyond' });
   }
@@ -222,20 +272,8 @@ export function hingeTableCsv(rows: HingeRow[], caption: string): string {
 
 // ---------- tint by signed fold angle ----------
 
-/** Mountain end (−180°), flat (0°) and valley end (+180°) of the diverging scale: colours of our own. */
-export const TINT_STOPS = { mountain: [178, 74, 36], flat: [226, 223, 214], valley: [22, 104, 140] } as const;
-
-function mix(a: readonly number[], b: readonly number[], t: number): string {
-  // ease toward the ends so small angles still read as tinted
-  const s = Math.sqrt(t);
-  const c = a.map((x, i) => Math.round(x + (b[i] - x) * s));
-  return `rgb(${c[0]}, ${c[1]}, ${c[2]})`;
-}
-
-/** Diverging scale over the signed fold angle: d3's scale maps the domain, we supply the colours. */
-export const tintScale = scaleDiverging<string>((t: number) =>
-  t < 0.5 ? mix(TINT_STOPS.flat, TINT_STOPS.mountain, (0.5 - t) * 2) : mix(TINT_STOPS.flat, TINT_STOPS.valley, (t - 0.5) * 2),
-).domain([-180, 0, 180]).clamp(true);
+/** The colour of a signed fold angle (degrees): Hingeplan's diverging scale (renderer/palette.ts). */
+export const tintScale = (angleDeg: number): string => angleColor(angleDeg);
 
 /** Tints are drawn in steps of this many degrees, so a sheet of thousands of creases needs few paths. */
 export const TINT_STEP_DEG = 5;
@@ -248,7 +286,7 @@ const bucketColors = new Map<number, string>();
 export function bucketColor(bucket: number): string {
   let c = bucketColors.get(bucket);
   if (c === undefined) {
-    c = tintScale(bucket * TINT_STEP_DEG);
+    c = angleColor(bucket * TINT_STEP_DEG);
     bucketColors.set(bucket, c);
   }
   return c;

@@ -118,6 +118,26 @@ export function limitDeg(project: ProjectDto, index: number): LimitInputDeg {
   };
 }
 
+/** A panel's name as shown: its name from the file, else "panel <index>". */
+export function panelName(project: ProjectDto, panel: number): string {
+  return project.source.panelNames?.[panel] ?? `panel ${panel}`;
+}
+
+/** Name a panel (an empty name clears it); names are unique, at most 200 characters. */
+export function setPanelName(project: ProjectDto, panel: number, name: string): Edit {
+  const n = name.trim();
+  if (!Number.isInteger(panel) || panel < 0) return { ok: false, message: `There is no panel ${panel}.` };
+  if (n.length > 200) return { ok: false, message: `The name of panel ${panel} is longer than 200 characters.` };
+  const names = [...(project.source.panelNames ?? [])];
+  if ((names[panel] ?? '') === n) return { ok: true, project };
+  const twin = names.findIndex((x, k) => k !== panel && x === n);
+  if (n && twin >= 0) return { ok: false, message: `Panel ${twin} is already named "${n}"; panel names must be unique.` };
+  while (names.length <= panel) names.push(undefined);
+  names[panel] = n || undefined;
+  while (names.length && names[names.length - 1] === undefined) names.pop();
+  return { ok: true, project: { ...project, source: { ...project.source, panelNames: names.length ? names : undefined } } };
+}
+
 export function setBasePanel(project: ProjectDto, panel: number): Edit {
   if (!Number.isInteger(panel) || panel < 0) return { ok: false, message: `There is no panel ${panel}.` };
   if (project.source.basePanel === panel) return { ok: true, project };

@@ -39,21 +39,23 @@ export function generatorSpec(kind: Kind, f: Record<string, string>): GeneratorS
   const num = (k: string) => Number(f[k]);
   const list = (k: string) => f[k].split(/[,\s]+/).filter(Boolean).map(Number);
   const name = f.name?.trim() || undefined;
+  const units = f.units?.trim() || undefined;
+  if (units && units.length > 50) return 'The unit of length is at most 50 characters (e.g. mm).';
   switch (kind) {
     case 'miura':
       if (![num('rows'), num('cols')].every((n) => Number.isInteger(n) && n > 0)) return 'Rows and columns must be whole numbers above 0.';
-      return { kind, rows: num('rows'), cols: num('cols'), a: num('a'), b: num('b'), alphaDeg: num('alphaDeg'), driveDeg: num('driveDeg'), name };
+      return { kind, rows: num('rows'), cols: num('cols'), a: num('a'), b: num('b'), alphaDeg: num('alphaDeg'), driveDeg: num('driveDeg'), name, units };
     case 'single-vertex': {
       const s = list('sectorsDeg');
       if (s.length < 3 || s.some((x) => !Number.isFinite(x) || x <= 0)) return 'Give at least three positive sector angles, separated by commas.';
-      return { kind, sectorsDeg: s, radius: num('radius'), name };
+      return { kind, sectorsDeg: s, radius: num('radius'), name, units };
     }
     case 'waterbomb':
-      return { kind, size: num('size'), name };
+      return { kind, size: num('size'), name, units };
     case 'degree5': {
       const s = list('sectorsDeg5');
       if (s.length !== 5 || s.some((x) => !Number.isFinite(x) || x <= 0)) return 'A degree-5 vertex needs five positive sector angles.';
-      return { kind, sectorsDeg: s, radius: num('radius'), name };
+      return { kind, sectorsDeg: s, radius: num('radius'), name, units };
     }
   }
 }
@@ -62,7 +64,7 @@ export function NewDialog({ onCreate, onClose }: { onCreate(spec: GeneratorSpec)
   const [kind, setKind] = useState<Kind>('miura');
   const [f, setF] = useState<Record<string, string>>({
     rows: '4', cols: '6', a: '40', b: '30', alphaDeg: '70', driveDeg: '60',
-    sectorsDeg: '70, 110, 110, 70', radius: '50', size: '100', sectorsDeg5: '70, 80, 65, 75, 70', name: '',
+    sectorsDeg: '70, 110, 110, 70', radius: '50', size: '100', sectorsDeg5: '70, 80, 65, 75, 70', name: '', units: 'mm',
   });
   const [problems, setProblems] = useState<string[]>([]);
   const [busy, setBusy] = useState(false);
@@ -92,7 +94,7 @@ export function NewDialog({ onCreate, onClose }: { onCreate(spec: GeneratorSpec)
             <NumberField label="straight segment a" value={f.a} onChange={set('a')} />
             <NumberField label="zigzag segment b" value={f.b} onChange={set('b')} />
             <NumberField label="zigzag angle α (°)" value={f.alphaDeg} onChange={set('alphaDeg')} hint="between 0° and 90°" />
-            <NumberField label="suggested drive (°)" value={f.driveDeg} onChange={set('driveDeg')} />
+            <NumberField label="suggested drive (°)" value={f.driveDeg} onChange={set('driveDeg')} hint="folded the way its zigzag crease is assigned (a mountain gets −)" />
           </>
         )}
         {kind === 'single-vertex' && (
@@ -115,9 +117,14 @@ export function NewDialog({ onCreate, onClose }: { onCreate(spec: GeneratorSpec)
             <NumberField label="radius" value={f.radius} onChange={set('radius')} />
           </>
         )}
-        <label className="field wide">
+        <label className="field">
           <span>name (optional)</span>
           <input value={f.name} onChange={(e) => set('name')(e.target.value)} />
+        </label>
+        <label className="field">
+          <span>unit of length</span>
+          <input value={f.units} onChange={(e) => set('units')(e.target.value)} aria-label="unit of length" />
+          <small>the lengths above are in it, e.g. mm</small>
         </label>
       </div>
       {problems.length > 0 && (
@@ -191,6 +198,32 @@ export function scheduleOptions(f: Record<string, string>, profile: ScheduleProf
   return out;
 }
 
+/** One hinge's own limits as typed in the schedule dialog. */
+export interface HingeLimitText {
+  crease: string;
+  rate: string;
+  accel: string;
+}
+
+/** The per-hinge rows as export options (empty rows skipped), or the first problem in words. */
+export function hingeLimitOptions(rows: HingeLimitText[]): NonNullable<ExportOptionsDto['hingeLimits']> | string {
+  const out: NonNullable<ExportOptionsDto['hingeLimits']> = [];
+  const seen = new Set<string>();
+  for (const [k, r] of rows.entries()) {
+    const crease = r.crease.trim();
+    const rate = optionalNumber(r.rate), accel = optionalNumber(r.accel);
+    if (!crease && rate === undefined && accel === undefined) continue;
+    if (!crease) return `Hinge limit ${k + 1}: name the crease (its label).`;
+    if (seen.has(crease)) return `Crease ${crease} has two rows of limits; keep one.`;
+    seen.add(crease);
+    if (rate === undefined && accel === undefined) return `Hinge limit for ${crease}: give a rate limit, an acceleration limit, or both.`;
+    if (rate !== undefined && !(rate > 0)) return `The rate limit of ${crease} must be above 0 °/s.`;
+    if (accel !== undefined && !(accel > 0)) return `The acceleration limit of ${crease} must be above 0 °/s².`;
+    out.push({ crease, ...(rate !== undefined ? { maxRateDegPerS: rate } : {}), ...(accel !== undefined ? { maxAccelDegPerS2: accel } : {}) });
+  }
+  return out;
+}
+
 export function ExportDialog({ hasPath, onExport, onClose }: { hasPath: boolean; onExport(kind: ExportKind, options: ExportOptionsDto): Promise<string | null>; onClose(): void }) {
   const [kind, setKind] = useState<ExportKind>(hasPath ? 'angle-table' : 'obj');
   const [format, setFormat] = useState<'csv' | 'json'>('csv');
@@ -202,6 +235,8 @@ export function ExportDialog({ hasPath, onExport, onClose }: { hasPath: boolean;
   const set = (k: string) => (v: string) => setF({ ...f, [k]: v });
   const [busy, setBusy] = useState(false);
   const [problem, setProblem] = useState<string | null>(null);
+  const [hingeRows, setHingeRows] = useState<HingeLimitText[]>([{ crease: '', rate: '', accel: '' }]);
+  const setHingeRow = (k: number, patch: Partial<HingeLimitText>) => setHingeRows(hingeRows.map((r, i) => (i === k ? { ...r, ...patch } : r)));
   const needsPath = kind === 'angle-table' || kind === 'schedule';
   const go = async () => {
     let options: ExportOptionsDto = {};
@@ -209,7 +244,9 @@ export function ExportDialog({ hasPath, onExport, onClose }: { hasPath: boolean;
     if (kind === 'schedule') {
       const o = scheduleOptions(f, profile, rowsBy);
       if (typeof o === 'string') return setProblem(o);
-      options = { ...o, format };
+      const own = hingeLimitOptions(hingeRows);
+      if (typeof own === 'string') return setProblem(own);
+      options = { ...o, format, hingeLimits: own };
     }
     setProblem(null);
     setBusy(true);
@@ -271,6 +308,21 @@ export function ExportDialog({ hasPath, onExport, onClose }: { hasPath: boolean;
               {rowsBy === 'rows' ? <NumberField label="rows" value={f.rows} onChange={set('rows')} step="1" hint="the last row is at the total time" /> : <NumberField label="time step (s)" value={f.dtS} onChange={set('dtS')} hint="the last row is at the total time" />}
               <NumberField label="hinge rate limit (°/s)" value={f.maxRate} onChange={set('maxRate')} hint="every hinge; empty: none" />
               <NumberField label="hinge acceleration limit (°/s²)" value={f.maxAccel} onChange={set('maxAccel')} hint="every hinge; empty: none" />
+              <div className="hinge-limits" role="group" aria-label="limits of single hinges">
+                <span className="field-title">limits of single hinges (over the ones above)</span>
+                {hingeRows.map((r, k) => (
+                  <div key={k} className="hinge-limit-row">
+                    <input placeholder="crease" value={r.crease} onChange={(e) => setHingeRow(k, { crease: e.target.value })} aria-label={`crease of hinge limit ${k + 1}`} />
+                    <input placeholder="rate °/s" value={r.rate} onChange={(e) => setHingeRow(k, { rate: e.target.value })} aria-label={`rate limit ${k + 1} (°/s)`} />
+                    <input placeholder="accel. °/s²" value={r.accel} onChange={(e) => setHingeRow(k, { accel: e.target.value })} aria-label={`acceleration limit ${k + 1} (°/s²)`} />
+                    {k === hingeRows.length - 1 ? (
+                      <button className="icon-button" onClick={() => setHingeRows([...hingeRows, { crease: '', rate: '', accel: '' }])} aria-label="another hinge limit" title="another hinge">+</button>
+                    ) : (
+                      <button className="icon-button" onClick={() => setHingeRows(hingeRows.filter((_, i) => i !== k))} aria-label={`remove hinge limit ${k + 1}`}>×</button>
+                    )}
+                  </div>
+                ))}
+              </div>
             </>
           )}
         </div>

@@ -1,5 +1,6 @@
-// The folded shape in 3D: orbit (drag), pan (right-drag or shift-drag), zoom (wheel), fit, optional flat
-// ghost and labels. The scene itself is renderer/views/folded-scene.ts.
+// The folded shape in 3D: orbit (drag), pan (right-drag or shift-drag), zoom (wheel), fit (and follow the
+// shape as it folds until the person zooms or pans), optional flat ghost and labels, an axis triad and a
+// scale bar in the document's unit. The scene itself is renderer/views/folded-scene.ts.
 
 import { useEffect, useRef, useState } from 'react';
 import type { Pattern } from '../../solver/types';
@@ -19,6 +20,8 @@ export interface FoldedViewProps {
   labels: boolean;
   fitRequest: number;
   maxMismatch?: number;
+  /** the base panel's name (or "panel k") */
+  baseName?: string;
   onToggleGhost(): void;
   onToggleLabels(): void;
   onFit(): void;
@@ -28,6 +31,7 @@ export function FoldedView(props: FoldedViewProps) {
   const hostRef = useRef<HTMLDivElement>(null);
   const sceneRef = useRef<FoldedScene | null>(null);
   const [failed, setFailed] = useState<string | null>(null);
+  const [following, setFollowing] = useState(true);
   const { pattern, project, anglesDeg, selectedCrease, violatingPanels, ghost, labels, fitRequest } = props;
   const basePanel = project.source.basePanel ?? pattern.basePanel;
   const fitted = useRef<Pattern | null>(null);
@@ -47,6 +51,7 @@ export function FoldedView(props: FoldedViewProps) {
       return;
     }
     sceneRef.current = scene;
+    scene.onAutoFitChange = setFollowing;
     const ro = typeof ResizeObserver !== 'undefined' ? new ResizeObserver(() => scene.resize()) : null;
     ro?.observe(host);
     return () => {
@@ -60,13 +65,14 @@ export function FoldedView(props: FoldedViewProps) {
   useEffect(() => {
     const scene = sceneRef.current;
     if (!scene) return;
+    scene.units = project.units ?? '';
     scene.setPattern(pattern);
     scene.setAngles(anglesDeg, basePanel);
     if (fitted.current !== pattern) {
       fitted.current = pattern;
       scene.fit();
     }
-  }, [pattern, anglesDeg, basePanel]);
+  }, [pattern, anglesDeg, basePanel, project.units]);
 
   useEffect(() => {
     const scene = sceneRef.current;
@@ -91,25 +97,36 @@ export function FoldedView(props: FoldedViewProps) {
     <div className="folded-view">
       <div className="view-toolbar">
         <span className="view-caption" data-testid="shape-caption">{props.caption}</span>
-        <button onClick={props.onFit} title="Fit the shape to the view (F)">Fit</button>
-        <label title="Show the flat sheet behind the shape (G)">
-          <input type="checkbox" checked={ghost} onChange={props.onToggleGhost} /> ghost
-        </label>
-        <label title="Label every hinge (L)">
-          <input type="checkbox" checked={labels} onChange={props.onToggleLabels} /> labels
-        </label>
+        <button onClick={props.onFit} title="Fit the shape to the view and follow it as it folds (F)" className={following ? 'is-on' : ''} data-testid="fit">
+          {following ? 'Fit: following' : 'Fit'}
+        </button>
       </div>
       <div className="scene-host" ref={hostRef} data-testid="scene">
         {failed && <div className="scene-failed">{failed}</div>}
       </div>
       <div className="scene-key">
-        <span className="key-swatch key-base" /> base panel (held)
-        <span className="key-swatch key-violating" /> past a hinge limit
-        <span className="key-swatch key-under" /> underside
-        {props.maxMismatch !== undefined && props.maxMismatch > 1e-6 * 1 && (
-          <span className="mismatch" title="Largest gap between two placements of one vertex">gap {props.maxMismatch.toExponential(1)}</span>
+        <span className="key-item">
+          <span className="key-swatch key-base" /> <span data-testid="key-base">base: {props.baseName ?? 'panel'} (held)</span>
+        </span>
+        <span className="key-item">
+          <span className="key-swatch key-violating" />
+          <span className={violatingPanels.size ? 'key-used' : ''} data-testid="key-past-limit">past a hinge stop{violatingPanels.size ? ` (${violatingPanels.size} panels)` : ''}</span>
+        </span>
+        <span className="key-item">
+          <span className="key-swatch key-under" /> underside
+        </span>
+        {props.maxMismatch !== undefined && props.maxMismatch > 1e-6 && (
+          <span className="mismatch" data-testid="mismatch" title="The panels do not close up: the largest distance between two placements of one vertex, reached through different panels">
+            closure gap {props.maxMismatch.toPrecision(2)}{project.units ? ` ${project.units}` : ' (file units)'}
+          </span>
         )}
-        <span className="scene-hint">drag: orbit · right-drag: pan · wheel: zoom</span>
+        <label className="scene-toggle" title="Show the flat sheet behind the shape (G)">
+          <input type="checkbox" checked={ghost} onChange={props.onToggleGhost} /> ghost
+        </label>
+        <label className="scene-toggle" title="Label every hinge (L)">
+          <input type="checkbox" checked={labels} onChange={props.onToggleLabels} /> labels
+        </label>
+        <span className="scene-hint" title="drag: orbit · right-drag or shift-drag: pan · wheel: zoom">drag · right-drag · wheel</span>
       </div>
     </div>
   );

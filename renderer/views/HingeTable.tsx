@@ -18,6 +18,11 @@ export interface HingeTableProps {
   onCopy(rows: HingeRow[]): void;
   /** height of the scrolling body in pixels */
   height: number;
+  /** the drive the rate column is against, the drives to choose from, and whether the choice is open (path samples fix it) */
+  rateDrive?: string;
+  drives?: string[];
+  rateDriveFixed?: boolean;
+  onRateDrive?(label: string): void;
 }
 
 function parseLimit(text: string): number | undefined | null {
@@ -53,13 +58,11 @@ function EditCell({ value, onCommit, ariaLabel, className }: { value: string; on
 }
 
 const COLUMNS: { key: SortKey | null; title: string; className: string; tip?: string }[] = [
-  { key: 'index', title: '#', className: 'c-index' },
-  { key: 'label', title: 'label', className: 'c-label' },
+  { key: 'label', title: 'crease', className: 'c-label', tip: 'crease label (click to rename); the file order is the default order' },
   { key: 'assignment', title: 'M/V', className: 'c-assign', tip: 'mountain/valley assignment' },
-  { key: null, title: 'min °', className: 'c-limit', tip: 'lower hinge limit (empty: none)' },
-  { key: null, title: 'max °', className: 'c-limit', tip: 'upper hinge limit (empty: none)' },
-  { key: 'angle', title: 'angle', className: 'c-angle', tip: 'fold angle on screen, valley positive' },
-  { key: 'rate', title: 'rate', className: 'c-rate', tip: 'degrees per degree of the first drive' },
+  { key: null, title: 'stops °', className: 'c-limit', tip: 'hinge stops: lower and upper limit in degrees (empty: none)' },
+  { key: 'angle', title: 'angle °', className: 'c-angle', tip: 'fold angle on screen, degrees, valley positive' },
+  { key: 'rate', title: 'rate', className: 'c-rate', tip: 'degrees of hinge per degree of the drive named above the table' },
   { key: 'status', title: 'status', className: 'c-status' },
 ];
 
@@ -87,11 +90,29 @@ export function HingeTable(props: HingeTableProps) {
         <h2>
           Hinges <span className="count">{rows.length}</span>
         </h2>
-        <input className="table-filter" placeholder="find label or status" aria-label="filter hinges" value={filter} onChange={(e) => setFilter(e.target.value)} />
+        <input className="table-filter" placeholder="find crease or status" aria-label="filter hinges" value={filter} onChange={(e) => setFilter(e.target.value)} />
         <button onClick={() => props.onCopy(filtered)} title="Copy the rows shown as CSV, with the cautions line">
           Copy as CSV
         </button>
       </div>
+      {props.rateDrive && (
+        <div className="rate-against" data-testid="rate-against">
+          rates in ° per ° of{' '}
+          {props.drives && props.drives.length > 1 && !props.rateDriveFixed ? (
+            <select value={props.rateDrive} onChange={(e) => props.onRateDrive?.(e.target.value)} aria-label="rates against drive">
+              {props.drives.map((d) => (
+                <option key={d} value={d}>
+                  {d}
+                </option>
+              ))}
+            </select>
+          ) : (
+            <strong>{props.rateDrive}</strong>
+          )}
+          {props.drives && props.drives.length > 1 ? ', the other drives held' : ''}
+          {props.rateDriveFixed ? ' (the path’s drive)' : ''}
+        </div>
+      )}
       <div className="table" role="table" aria-rowcount={filtered.length + 1}>
         <div className="row head" role="row">
           {COLUMNS.map((c) => (
@@ -120,8 +141,7 @@ export function HingeTable(props: HingeTableProps) {
                 style={{ top: (first + k) * ROW_HEIGHT, height: ROW_HEIGHT }}
                 onClick={() => props.onSelect(r.index)}
               >
-                <div className="cell c-index" role="cell">{r.index}</div>
-                <div className="cell c-label" role="cell">
+                <div className="cell c-label" role="cell" title={`crease ${r.index}`}>
                   <EditCell value={r.label} ariaLabel={`label of crease ${r.index}`} onCommit={(t) => props.onRename(r.index, t)} />
                 </div>
                 <div className={`cell c-assign assign-${r.assignment}`} role="cell" title={ASSIGNMENT_WORDS[r.assignment]}>
@@ -129,6 +149,7 @@ export function HingeTable(props: HingeTableProps) {
                 </div>
                 <div className="cell c-limit" role="cell">
                   <EditCell
+                    className="limit-input"
                     value={r.minDeg !== undefined ? String(+r.minDeg.toFixed(3)) : ''}
                     ariaLabel={`lower limit of crease ${r.label}`}
                     onCommit={(t) => {
@@ -136,9 +157,9 @@ export function HingeTable(props: HingeTableProps) {
                       if (v !== null) props.onLimit(r.index, { minDeg: v, maxDeg: r.maxDeg });
                     }}
                   />
-                </div>
-                <div className="cell c-limit" role="cell">
+                  <span className="limit-sep">…</span>
                   <EditCell
+                    className="limit-input"
                     value={r.maxDeg !== undefined ? String(+r.maxDeg.toFixed(3)) : ''}
                     ariaLabel={`upper limit of crease ${r.label}`}
                     onCommit={(t) => {

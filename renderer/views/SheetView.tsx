@@ -1,12 +1,14 @@
 // The flat sheet: panels shaded, creases in the trade's line styles (valley dashed, mountain dash-dot),
-// tinted by the signed fold angle on screen, the base panel hatched, drives marked. Creases are drawn as a
+// tinted by the signed fold angle on screen (Hingeplan's scale, renderer/palette.ts), the base panel
+// hatched, panels past a hinge stop cross-hatched, drives haloed. Creases are drawn as a
 // few paths grouped by style and tint step, so a sheet of thousands of creases stays cheap to redraw;
 // hovering and clicking find the crease geometrically.
 
 import { memo, useCallback, useMemo, useRef, useState, type PointerEvent as ReactPointerEvent, type WheelEvent as ReactWheelEvent } from 'react';
 import type { Pattern } from '../../solver/types';
 import type { ProjectDto } from '../../electron/contract';
-import { bucketColor, formatAngle, tintBucket, tintScale, ASSIGNMENT_WORDS } from '../state/display';
+import { bucketColor, formatAngle, tintBucket, ASSIGNMENT_WORDS } from '../state/display';
+import { PALETTE, angleColor } from '../palette';
 import { creaseLabel } from '../state/document';
 import { flatBounds, pickerFor } from '../geometry';
 
@@ -17,6 +19,8 @@ export interface SheetViewProps {
   selectedCrease: number | null;
   hoverCrease: number | null;
   violatingPanels: Set<number>;
+  /** creases past a hinge stop, haloed in the past-limit colour */
+  violatingCreases?: Set<number>;
   onHover(index: number | null): void;
   onSelect(index: number | null): void;
 }
@@ -63,7 +67,7 @@ export function creaseGroups(pattern: Pattern, anglesDeg: readonly number[]): Cr
   const segs = segments(pattern);
   for (const c of pattern.creases) {
     const style = STYLE_OF[c.assignment] ?? 'unassigned';
-    const color = style === 'boundary' ? '#3b3934' : style === 'flat' ? '#8c877c' : bucketColor(tintBucket(anglesDeg[c.index] ?? 0));
+    const color = style === 'boundary' ? PALETTE.boundary : style === 'flat' ? PALETTE.heldFlat : bucketColor(tintBucket(anglesDeg[c.index] ?? 0));
     const key = `${style}|${color}`;
     const seg = segs[c.index];
     const g = parts.get(key);
@@ -97,64 +101,92 @@ const Panels = memo(function Panels({ pattern, basePanel }: { pattern: Pattern; 
   return (
     <>
       <path d={all} className="sheet-panels" />
-      <path d={base} className="sheet-base" fill="url(#base-hatch)" data-testid="base-panel" />
+      <path d={base} className="sheet-base" fill="url(#sheet-base)" data-testid="base-panel" />
     </>
   );
 });
 
-export function Legend() {
-  const stops = [-180, -135, -90, -45, 0, 45, 90, 135, 180];
+/** Hatch patterns of the base panel and of panels past a hinge stop, in screen pixels (scale: sheet units per pixel). */
+export function HatchDefs({ id, scale = 1 }: { id: string; scale?: number }) {
   return (
-    <div className="legend" aria-label="Fold angle colour scale">
+    <defs>
+      <pattern id={`${id}-base`} width="6" height="6" patternUnits="userSpaceOnUse" patternTransform={`rotate(45) scale(${scale})`}>
+        <rect width="6" height="6" fill="#dcebe4" />
+        <line x1="0" y1="0" x2="0" y2="6" stroke={PALETTE.base} strokeWidth="2" />
+      </pattern>
+      <pattern id={`${id}-past`} width="6" height="6" patternUnits="userSpaceOnUse" patternTransform={`scale(${scale})`}>
+        <rect width="6" height="6" fill="#f4d9d5" />
+        <path d="M0 0L6 6M6 0L0 6" stroke={PALETTE.pastLimit} strokeWidth="1.3" />
+      </pattern>
+    </defs>
+  );
+}
+
+function LineKey({ dash, color, width = 2 }: { dash?: string; color: string; width?: number }) {
+  return (
+    <svg width="30" height="8" aria-hidden="true">
+      <line x1="1" y1="4" x2="29" y2="4" stroke={color} strokeWidth={width} strokeDasharray={dash} />
+    </svg>
+  );
+}
+
+export function Legend() {
+  const stops = [-180, -150, -120, -90, -60, -30, -15, 0, 15, 30, 60, 90, 120, 150, 180];
+  const W = 196;
+  // room for the half of "−180°" that hangs past each end of the ramp
+  const PAD = 18;
+  return (
+    <div className="legend" aria-label="Colour code">
       <div className="legend-scale">
-      <svg width="220" height="34" viewBox="0 0 220 34" role="img">
-        <defs>
-          <linearGradient id="tint-ramp" x1="0" x2="1" y1="0" y2="0">
-            {stops.map((s) => (
-              <stop key={s} offset={(s + 180) / 360} stopColor={tintScale(s)} />
-            ))}
-          </linearGradient>
-        </defs>
-        <rect x="10" y="4" width="200" height="10" fill="url(#tint-ramp)" stroke="#77736a" strokeWidth="0.5" />
-        {[-180, -90, 0, 90, 180].map((s) => (
-          <g key={s} transform={`translate(${10 + ((s + 180) / 360) * 200} 0)`}>
-            <line y1="14" y2="18" stroke="#55524b" />
-            <text y="28" textAnchor="middle" className="legend-tick">
-              {s > 0 ? `+${s}` : s}°
-            </text>
-          </g>
-        ))}
-      </svg>
-      <div className="legend-words">
-        <span className="mountain-word">mountain −</span>
-        <span>flat</span>
-        <span className="valley-word">+ valley</span>
-      </div>
+        <svg width={W + 2 * PAD} height="30" viewBox={`0 0 ${W + 2 * PAD} 30`} role="img" aria-label="fold angle scale from mountain −180° through flat 0° to valley +180°">
+          <defs>
+            <linearGradient id="tint-ramp" x1="0" x2="1" y1="0" y2="0">
+              {stops.map((s) => (
+                <stop key={s} offset={(s + 180) / 360} stopColor={angleColor(s)} />
+              ))}
+            </linearGradient>
+          </defs>
+          <rect x={PAD} y="3" width={W} height="9" fill="url(#tint-ramp)" stroke="#77736a" strokeWidth="0.5" />
+          {[-180, -90, 0, 90, 180].map((s) => (
+            <g key={s} transform={`translate(${PAD + ((s + 180) / 360) * W} 0)`}>
+              <line y1="12" y2="16" stroke="#55524b" />
+              <text y="26" textAnchor="middle" className="legend-tick">
+                {s > 0 ? `+${s}` : s < 0 ? `−${-s}` : '0'}°
+              </text>
+            </g>
+          ))}
+        </svg>
+        <div className="legend-words">
+          <span className="mountain-word">mountain −</span>
+          <span>flat</span>
+          <span className="valley-word">+ valley</span>
+        </div>
       </div>
       <div className="legend-lines">
-        <svg width="34" height="8"><line x1="1" y1="4" x2="33" y2="4" stroke="#444" strokeWidth="2" strokeDasharray={DASHES.valley} /></svg>
+        <LineKey dash={DASHES.valley} color={PALETTE.valley} />
         <span>valley</span>
-        <svg width="34" height="8"><line x1="1" y1="4" x2="33" y2="4" stroke="#444" strokeWidth="2" strokeDasharray={DASHES.mountain} /></svg>
+        <LineKey dash={DASHES.mountain} color={PALETTE.mountain} />
         <span>mountain</span>
-        <svg width="34" height="8"><line x1="1" y1="4" x2="33" y2="4" stroke="#444" strokeWidth="2" /></svg>
+        <LineKey color={PALETTE.flat} />
         <span>unassigned</span>
-        <svg width="16" height="12"><rect x="1" y="1" width="14" height="10" fill="url(#base-hatch-legend)" stroke="#8a6d1f" /></svg>
+        <LineKey dash="8 0" color={PALETTE.drive} width={7} />
+        <span>drive</span>
+        <svg width="16" height="12" aria-hidden="true">
+          <HatchDefs id="legend" />
+          <rect x="1" y="1" width="14" height="10" fill="url(#legend-base)" stroke={PALETTE.base} />
+        </svg>
         <span>base panel</span>
+        <svg width="16" height="12" aria-hidden="true">
+          <rect x="1" y="1" width="14" height="10" fill="url(#legend-past)" stroke={PALETTE.pastLimit} />
+        </svg>
+        <span>past a stop</span>
       </div>
-      <svg width="0" height="0" aria-hidden="true">
-        <defs>
-          <pattern id="base-hatch-legend" width="4" height="4" patternUnits="userSpaceOnUse" patternTransform="rotate(45)">
-            <rect width="4" height="4" fill="#f3e4b5" />
-            <line x1="0" y1="0" x2="0" y2="4" stroke="#b8953a" strokeWidth="1.5" />
-          </pattern>
-        </defs>
-      </svg>
     </div>
   );
 }
 
 export function SheetView(props: SheetViewProps) {
-  const { pattern, project, anglesDeg, selectedCrease, hoverCrease, violatingPanels, onHover, onSelect } = props;
+  const { pattern, project, anglesDeg, selectedCrease, hoverCrease, violatingPanels, violatingCreases, onHover, onSelect } = props;
   const groupRef = useRef<SVGGElement>(null);
   const wrapRef = useRef<HTMLDivElement>(null);
   const bounds = useMemo(() => flatBounds(pattern), [pattern]);
@@ -254,17 +286,15 @@ export function SheetView(props: SheetViewProps) {
         role="img"
         aria-label={`Flat sheet of ${pattern.name}: ${pattern.creases.length} creases, ${pattern.panels.length} panels`}
       >
-        <defs>
-          <pattern id="base-hatch" width="6" height="6" patternUnits="userSpaceOnUse" patternTransform={`rotate(45) scale(${pixelSize()})`}>
-            <rect width="6" height="6" fill="#f3e4b5" />
-            <line x1="0" y1="0" x2="0" y2="6" stroke="#c9a64a" strokeWidth="2" />
-          </pattern>
-        </defs>
+        <HatchDefs id="sheet" scale={pixelSize()} />
         <g ref={groupRef} className="sheet-flip" transform="scale(1 -1)">
           <Panels pattern={pattern} basePanel={basePanel} />
-          {violating && <path d={violating} className="sheet-violating" />}
+          {violating && <path d={violating} className="sheet-violating" fill="url(#sheet-past)" data-testid="past-limit-panels" />}
           {drives.map((i) => (
             <path key={`drive-${i}`} d={segment(pattern, i)} className="sheet-drive-halo" vectorEffect="non-scaling-stroke" />
+          ))}
+          {[...(violatingCreases ?? [])].map((i) => (
+            <path key={`past-${i}`} d={segment(pattern, i)} className="sheet-past-halo" vectorEffect="non-scaling-stroke" data-testid="past-limit-crease" />
           ))}
           {selectedCrease !== null && <path d={segment(pattern, selectedCrease)} className="sheet-selected-halo" vectorEffect="non-scaling-stroke" />}
           {hoverCrease !== null && hoverCrease !== selectedCrease && (

@@ -8,6 +8,7 @@ import type { Pattern } from '../../solver/types';
 import { triangulatePanel } from '../../solver/formats/shape-export';
 import { flatBounds } from '../geometry';
 import { placePanels, planShape, type ShapePlan } from '../shape-kernel';
+import { PALETTE } from '../palette';
 
 export interface SceneOptions {
   ghost: boolean;
@@ -20,16 +21,27 @@ export interface SceneOptions {
 }
 
 const COLORS = {
-  top: new THREE.Color('#f7f5f0'),
-  base: new THREE.Color('#efd88f'),
-  violating: new THREE.Color('#e0573f'),
-  valley: new THREE.Color('#16688c'),
-  mountain: new THREE.Color('#b24a24'),
-  unassigned: new THREE.Color('#5d5a53'),
-  boundary: new THREE.Color('#2f2d29'),
+  top: new THREE.Color(PALETTE.panelTop),
+  base: new THREE.Color(PALETTE.base),
+  violating: new THREE.Color(PALETTE.pastLimit),
+  valley: new THREE.Color(PALETTE.valley),
+  mountain: new THREE.Color(PALETTE.mountain),
+  unassigned: new THREE.Color(PALETTE.flat),
+  boundary: new THREE.Color(PALETTE.boundary),
   selected: new THREE.Color('#111111'),
-  drive: new THREE.Color('#d49b00'),
+  drive: new THREE.Color(PALETTE.drive),
 };
+
+const SVG_NS = 'http://www.w3.org/2000/svg';
+
+/** A length of 1, 2 or 5 × 10ᵏ units near `target` (for the scale bar). */
+export function niceLength(target: number): number {
+  if (!(target > 0) || !Number.isFinite(target)) return 1;
+  const k = Math.floor(Math.log10(target));
+  const base = 10 ** k;
+  const m = target / base;
+  return (m >= 5 ? 5 : m >= 2 ? 2 : 1) * base;
+}
 
 /** Most labels drawn at once; beyond that the drives and the selected crease are labelled. */
 export const MAX_LABELS = 250;
@@ -64,6 +76,13 @@ export class FoldedScene {
   private labelPool: HTMLDivElement[] = [];
   private frameRequested = false;
   private disposed = false;
+  /** the axis triad and the scale bar, drawn over the canvas */
+  private overlay: SVGSVGElement;
+  /** re-fit the view as the shape changes, until the person zooms or pans */
+  autoFit = true;
+  onAutoFitChange?: (on: boolean) => void;
+  /** the length unit shown with the scale bar */
+  units = '';
   /** frames drawn so far (the benchmark counts them) */
   frames = 0;
 
@@ -84,7 +103,7 @@ export class FoldedScene {
     this.scene.add(this.camera);
 
     const top = new THREE.MeshLambertMaterial({ vertexColors: true, side: THREE.FrontSide, polygonOffset: true, polygonOffsetFactor: 1, polygonOffsetUnits: 1 });
-    const back = new THREE.MeshLambertMaterial({ vertexColors: true, side: THREE.BackSide, color: '#aeb9c2', polygonOffset: true, polygonOffsetFactor: 1, polygonOffsetUnits: 1 });
+    const back = new THREE.MeshLambertMaterial({ vertexColors: true, side: THREE.BackSide, color: PALETTE.panelUnder, polygonOffset: true, polygonOffsetFactor: 1, polygonOffsetUnits: 1 });
     this.topMesh = new THREE.Mesh(this.geometry, top);
     this.backMesh = new THREE.Mesh(this.geometry, back);
     this.lines = new THREE.LineSegments(this.lineGeometry, new THREE.LineBasicMaterial({ vertexColors: true }));
@@ -97,6 +116,20 @@ export class FoldedScene {
     this.controls.enableDamping = false;
     this.controls.screenSpacePanning = true;
     this.controls.addEventListener('change', () => this.requestFrame());
+    // zooming or panning by hand takes the view over: stop re-fitting until Fit is pressed
+    const takeOver = () => {
+      if (!this.autoFit) return;
+      this.autoFit = false;
+      this.onAutoFitChange?.(false);
+    };
+    this.renderer.domElement.addEventListener('wheel', takeOver, { passive: true });
+    this.renderer.domElement.addEventListener('pointerdown', (e) => {
+      if (e.button === 2 || e.shiftKey || e.ctrlKey || e.metaKey) takeOver();
+    });
+    this.overlay = document.createElementNS(SVG_NS, 'svg');
+    this.overlay.setAttribute('class', 'scene-overlay');
+    this.overlay.setAttribute('aria-hidden', 'true');
+    host.appendChild(this.overlay);
     this.resize();
   }
 
@@ -171,7 +204,25 @@ export class FoldedScene {
     this.lineGeometry.attributes.position.needsUpdate = true;
     this.lineGeometry.computeBoundingSphere();
     this.updateMarks();
+    if (this.autoFit) this.refit();
     this.requestFrame();
+  }
+
+  /** Keep the direction of view, centre the shape and fit its size (as the sheet folds it shrinks). */
+  private refit(): void {
+    const sphere = this.geometry.boundingSphere;
+    if (!sphere || !Number.isFinite(sphere.radius) || sphere.radius === 0) return;
+    const fov = (this.camera.fov * Math.PI) / 180;
+    const dist = (sphere.radius * 1.15) / Math.sin(Math.min(fov, fov * this.camera.aspect) / 2);
+    const dir = this.camera.position.clone().sub(this.controls.target);
+    if (dir.lengthSq() === 0) dir.set(0.35, -0.75, 0.85);
+    dir.normalize();
+    this.camera.position.copy(sphere.center).addScaledVector(dir, dist);
+    this.camera.near = dist / 1000;
+    this.camera.far = dist * 100;
+    this.camera.updateProjectionMatrix();
+    this.controls.target.copy(sphere.center);
+    this.controls.update();
   }
 
   setOptions(options: SceneOptions): void {
@@ -212,8 +263,12 @@ export class FoldedScene {
     this.markGeometry.setAttribute('color', new THREE.BufferAttribute(col, 3));
   }
 
-  /** Look at the whole shape from above and to the side. */
+  /** Look at the whole shape from above and to the side, and follow it again as it folds. */
   fit(): void {
+    if (!this.autoFit) {
+      this.autoFit = true;
+      this.onAutoFitChange?.(true);
+    }
     this.geometry.computeBoundingSphere();
     const sphere = this.geometry.boundingSphere;
     const pattern = this.pattern;
@@ -267,6 +322,43 @@ export class FoldedScene {
     this.frames++;
     this.host.dataset.frames = String(this.frames);
     this.drawLabels();
+    this.drawOverlay();
+  }
+
+  /**
+   * The axis triad of the sheet's frame (x, y in the flat sheet, z towards the side valleys fold to) at the
+   * lower left, and a scale bar of a round length at the lower right, both from the camera as it is now.
+   */
+  private drawOverlay(): void {
+    const o = this.overlay;
+    const w = this.width, h = this.height;
+    const view = new THREE.Matrix4().extractRotation(this.camera.matrixWorldInverse);
+    const axes: [string, THREE.Vector3, string][] = [
+      ['x', new THREE.Vector3(1, 0, 0), '#a8170d'],
+      ['y', new THREE.Vector3(0, 1, 0), '#00764c'],
+      ['z', new THREE.Vector3(0, 0, 1), '#2e2a7a'],
+    ];
+    const cx = 30, cy = h - 30, len = 20;
+    const parts: string[] = [`<circle cx="${cx}" cy="${cy}" r="2" fill="#4a473f"/>`];
+    for (const [name, v, color] of axes) {
+      const p = v.clone().applyMatrix4(view);
+      const x = cx + p.x * len, y = cy - p.y * len;
+      parts.push(`<line x1="${cx}" y1="${cy}" x2="${x.toFixed(1)}" y2="${y.toFixed(1)}" stroke="${color}" stroke-width="2"/>`);
+      parts.push(`<text x="${(cx + p.x * (len + 8)).toFixed(1)}" y="${(cy - p.y * (len + 8) + 3).toFixed(1)}" font-size="10" text-anchor="middle" fill="${color}">${name}</text>`);
+    }
+    // pixels per unit of length at the distance of the view's centre
+    const dist = this.camera.position.distanceTo(this.controls.target);
+    const pxPerUnit = h / (2 * dist * Math.tan((this.camera.fov * Math.PI) / 360));
+    if (Number.isFinite(pxPerUnit) && pxPerUnit > 0) {
+      const units = niceLength(80 / pxPerUnit);
+      const px = units * pxPerUnit;
+      const x1 = w - 14, x0 = x1 - px, y = h - 16;
+      parts.push(`<path d="M${x0.toFixed(1)} ${y - 4}V${y}H${x1.toFixed(1)}V${y - 4}" fill="none" stroke="#22211e" stroke-width="1.5"/>`);
+      parts.push(`<text x="${((x0 + x1) / 2).toFixed(1)}" y="${y - 6}" font-size="10" text-anchor="middle" fill="#22211e" class="scale-text">${units}${this.units ? ` ${this.units.replace(/[<&>]/g, '')}` : ''}</text>`);
+    }
+    o.setAttribute('width', String(w));
+    o.setAttribute('height', String(h));
+    o.innerHTML = parts.join('');
   }
 
   private drawLabels(): void {
@@ -320,6 +412,7 @@ export class FoldedScene {
     this.renderer.dispose();
     this.renderer.domElement.remove();
     this.labelLayer.remove();
+    this.overlay.remove();
   }
 }
 

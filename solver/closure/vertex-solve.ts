@@ -187,9 +187,7 @@ const wScratch = new Float64Array(3 * 64);
  * (unit columns) for one or two unknowns, |det| for three. 0 when they are dependent: the state is then not
  * fixed to first order by this vertex.
  */
-function transversality(ux: ArrayLike<number>, uy: ArrayLike<number>, n: number, state: Float64Array, o: number, slots: number[]): number {
-  const w = n <= 64 ? wScratch : new Float64Array(3 * n);
-  vertexResidual(ux, uy, n, state, o, w);
+function transversality(w: Float64Array, slots: number[]): number {
   if (slots.length === 0) return Infinity;
   if (slots.length === 1) return 1;
   const i = 3 * slots[0], j = 3 * slots[1];
@@ -205,9 +203,11 @@ function transversality(ux: ArrayLike<number>, uy: ArrayLike<number>, n: number,
   );
 }
 
-/** One or two Gauss–Newton steps on the unknown slots of a state (cleans the closed form's rounding). */
-function polish(ux: ArrayLike<number>, uy: ArrayLike<number>, n: number, state: Float64Array, o: number, slots: number[]): number {
-  const w = n <= 64 ? wScratch : new Float64Array(3 * n);
+/**
+ * One or two Gauss–Newton steps on the unknown slots of a state (cleans the closed form's rounding); returns
+ * the residual, with the folded directions of the state returned left in w.
+ */
+function polish(ux: ArrayLike<number>, uy: ArrayLike<number>, n: number, state: Float64Array, o: number, slots: number[], w: Float64Array): number {
   let r = vertexResidual(ux, uy, n, state, o, w);
   for (let it = 0; it < 3 && r > 1e-15 && r < 1e-3; it++) {
     // residual φ ≈ Σ w_k δ_k near closure: least squares over the unknown slots
@@ -230,8 +230,9 @@ function polish(ux: ArrayLike<number>, uy: ArrayLike<number>, n: number, state: 
     if (!(r2 < r)) { slots.forEach((s, a) => (state[o + s] = before[a])); vertexResidual(ux, uy, n, state, o, w); break; }
     r = r2;
   }
+  // wrapping by whole turns leaves every rotation, the residual and the folded directions as they are
   for (const s of slots) state[o + s] = wrap(state[o + s]);
-  return vertexResidual(ux, uy, n, state, o);
+  return r;
 }
 
 function solveSmallSym(G: number[], g: number[], m: number): number[] | undefined {
@@ -298,7 +299,8 @@ export function closeVertex(
     const o = count * n;
     for (let k = 0; k < n; k++) out[o + k] = angles[k];
     unknown.forEach((s, a) => (out[o + s] = wrap(values[a])));
-    const res = unknown.length ? polish(ux, uy, n, out, o, unknown) : vertexResidual(ux, uy, n, out, o);
+    const w = n <= 64 ? wScratch : new Float64Array(3 * n);
+    const res = unknown.length ? polish(ux, uy, n, out, o, unknown, w) : vertexResidual(ux, uy, n, out, o, w);
     // with fewer than three unknowns, known values that do not close are a conflict; a real root of the
     // three-unknown closed form always closes, so one that does not is numerical trouble (counted)
     if (res > tolerance) {
@@ -313,7 +315,7 @@ export function closeVertex(
       twin = same;
     }
     if (twin) continue;
-    pivot[count] = transversality(ux, uy, n, out, o, unknown);
+    pivot[count] = transversality(w, unknown);
     count++;
   }
   return { kind: 'states', count, dropped };

@@ -8,6 +8,7 @@
 //   hingeplan:edges_limits  per edge, null or {min?, max?} in degrees: hinge stops
 //   hingeplan:drives        [{crease, angle}] in degrees
 //   hingeplan:basePanel     index into faces_vertices (or the derived panel order)
+//   hingeplan:faces_name    per panel in the same order, string or null: panel names
 //   hingeplan:units         free-text units when frame_unit cannot say them
 //   hingeplan:cautions      the cautions line, written with solved fold angles (ignored on reading)
 import type { Assignment, HingeLimit, Message, PatternSource } from '../types';
@@ -38,6 +39,7 @@ const CONSUMED = new Set([
   `${NS}edges_limits`,
   `${NS}drives`,
   `${NS}basePanel`,
+  `${NS}faces_name`,
   `${NS}units`,
   `${NS}cautions`,
 ]);
@@ -279,6 +281,11 @@ export function parseFoldValue(value: unknown, fileName?: string): { project?: P
   const source: PatternSource = { name, vertices, edges, assignments, labels, limits };
   if (faces) source.faces = faces;
   if (basePanel !== undefined) source.basePanel = basePanel;
+  const fn = obj[`${NS}faces_name`];
+  if (fn !== undefined) {
+    if (Array.isArray(fn) && fn.every((x) => x === null || typeof x === 'string')) source.panelNames = fn.map((x) => (typeof x === 'string' && x ? x : undefined));
+    else warn('bad-panel-names', `${NS}faces_name is not a list of names (or null) by panel; the panels are known by their index.`, `${NS}faces_name`);
+  }
   const project: Project = { source, drives, fold: { extra } };
   if (z !== undefined) project.fold!.z = z;
   if (units !== undefined) project.units = units;
@@ -334,6 +341,7 @@ export function writeFold(project: Project, opts: FoldWriteOptions = {}): string
   }
   if (project.drives.length > 0) entries.push([`${NS}drives`, arrayLines(project.drives.map((d) => ({ crease: d.crease, angle: d.angleDeg })))]);
   if (src.basePanel !== undefined) entries.push([`${NS}basePanel`, j(src.basePanel)]);
+  if (src.panelNames?.some((n) => n)) entries.push([`${NS}faces_name`, j(Array.from(src.panelNames, (n) => n || null))]);
   if (project.units !== undefined && !unitIsFold) entries.push([`${NS}units`, j(project.units)]);
   const written = new Set(entries.map(([k]) => k));
   for (const [k, v] of Object.entries(extra)) {

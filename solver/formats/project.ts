@@ -212,6 +212,11 @@ export function parseProjectValue(value: unknown): ParseResult {
   };
   if (obj.faces !== undefined) source.faces = (obj.faces as number[][]).map((f) => f.slice());
   if (obj.basePanel !== undefined) source.basePanel = obj.basePanel as number;
+  if (obj.panelNames !== undefined) {
+    const names: (string | undefined)[] = [];
+    for (const [k, v] of Object.entries(obj.panelNames as Record<string, string>)) names[Number(k)] = v;
+    source.panelNames = Array.from(names, (v) => v);
+  }
   const drives: DriveSpec[] = ((obj.drives as { crease: string; angle: number }[] | undefined) ?? []).map((d, k) => ({
     crease: d.crease,
     angleDeg: d.angle,
@@ -271,6 +276,8 @@ export function writeProject(project: Project): string {
   entries.push(['creases', arrayLines(creases)]);
   if (src.faces !== undefined) entries.push(['faces', arrayLines(src.faces)]);
   if (src.basePanel !== undefined) entries.push(['basePanel', j(src.basePanel)]);
+  const named = (src.panelNames ?? []).map((n, k) => [String(k), n] as const).filter(([, n]) => n !== undefined && n !== '');
+  if (named.length) entries.push(['panelNames', j(Object.fromEntries(named))]);
   if (project.drives.length > 0) entries.push(['drives', arrayLines(project.drives.map((d) => ({ crease: d.crease, angle: d.angleDeg })))]);
   if (project.foldAngles !== undefined) entries.push(['foldAngles', j(project.foldAngles.map(toDegrees))]);
   return '{\n' + entries.map(([k, v]) => `  ${j(k)}: ${v}`).join(',\n') + '\n}\n';
@@ -354,7 +361,7 @@ function withField(m: Message, format: 'project' | 'fold', hasFaces: boolean): M
   if (!w) return m;
   if (w.field !== undefined) {
     if (format !== 'fold') return m;
-    const renamed = w.field.replace(/^faces\b/, 'faces_vertices').replace(/^basePanel$/, 'hingeplan:basePanel');
+    const renamed = w.field.replace(/^faces\b/, 'faces_vertices').replace(/^basePanel$/, 'hingeplan:basePanel').replace(/^panelNames\.(\d+)$/, 'hingeplan:faces_name[$1]');
     return renamed === w.field ? m : { ...m, where: { ...w, field: renamed } };
   }
   let field: string | undefined;

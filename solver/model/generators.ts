@@ -234,8 +234,10 @@ export interface WaterbombOptions {
 
 /**
  * The waterbomb base: a square with its two diagonals and two midlines meeting at a degree-8 centre
- * vertex. Creases ccw from +x: m0 (0°), d0 (45°), m1 (90°), d1 (135°), m2 (180°), d2 (225°), m3 (270°),
- * d3 (315°); rim edges rim0 … rim7. Suggested drives: d0, d1 and d2 (three DOF need three), each 60°.
+ * vertex. Creases ccw from +x: x0 (0°), d0 (45°), y0 (90°), d1 (135°), x1 (180°), d2 (225°), y1 (270°),
+ * d3 (315°): the x midline's halves x0, x1, the y midline's y0, y1 (plain names: an "m" would read as
+ * mountain on a crease held flat); rim edges rim0 … rim7. Suggested drives: d0, d1 and d2 (three DOF need
+ * three), each 60°.
  */
 export function waterbomb(opts: WaterbombOptions = {}): GeneratorResult {
   const size = opts.size ?? 100;
@@ -253,7 +255,8 @@ export function waterbomb(opts: WaterbombOptions = {}): GeneratorResult {
     edges.push([0, k + 1]);
     const m = k / 2;
     if (k % 2 === 0) {
-      labels.push(`m${m}`);
+      // m = 0, 2 lie on the x axis, m = 1, 3 on the y axis
+      labels.push(`${m % 2 === 0 ? 'x' : 'y'}${m < 2 ? 0 : 1}`);
       assignments.push(opts.allMidlines || m % 2 === 0 ? 'M' : 'F');
     } else {
       labels.push(`d${(k - 1) / 2}`);

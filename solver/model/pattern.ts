@@ -797,6 +797,7 @@ function build(src: PatternSource, out: Messages): Pattern | undefined {
   }
 
   const basePanel = chooseBasePanel(src.basePanel, panels, xy, nv, out);
+  namePanels(src.panelNames, panels, out);
   const labelIndex = new Map<string, number>();
   for (let e = 0; e < ne; e++) labelIndex.set(c.label[e], e);
   const vertices: [number, number][] = [];
@@ -827,6 +828,34 @@ function centroid(xy: Float64Array, vs: number[], area: number): [number, number
     cy += (ay + by) * cr;
   }
   return [ox + cx / (6 * area), oy + cy / (6 * area)];
+}
+
+/** Panel names from the file: each must name an existing panel, and no two panels share one. */
+function namePanels(names: unknown, panels: Panel[], out: Messages): void {
+  if (names === undefined || names === null) return;
+  if (!Array.isArray(names)) {
+    out.add('warning', 'bad-panel-names', 'The panel names are not a list by panel; they are ignored.', { field: 'panelNames' });
+    return;
+  }
+  const seen = new Map<string, number>();
+  names.forEach((n: unknown, k) => {
+    if (n === undefined || n === null) return;
+    if (typeof n !== 'string' || !n.trim()) {
+      out.add('warning', 'bad-panel-name', `The name of panel ${k} is not text; the panel is known by its index.`, { field: `panelNames.${k}`, panel: k });
+      return;
+    }
+    if (k >= panels.length) {
+      out.add('warning', 'panel-name-unknown', `Panel ${k} is named "${n}", but the pattern has ${panels.length} panels (numbered from 0); the name is ignored.`, { field: `panelNames.${k}` });
+      return;
+    }
+    const twin = seen.get(n);
+    if (twin !== undefined) {
+      out.add('warning', 'duplicate-panel-name', `Panels ${twin} and ${k} are both named "${n}"; panel ${k} is known by its index.`, { field: `panelNames.${k}`, panel: k });
+      return;
+    }
+    seen.set(n, k);
+    panels[k].name = n;
+  });
 }
 
 function chooseBasePanel(requested: unknown, panels: Panel[], xy: Float64Array, nv: number, out: Messages): number {

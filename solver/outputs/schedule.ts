@@ -123,6 +123,8 @@ export interface ScheduleOptions {
   holds?: Drive[];
   branch?: number;
   solution?: number;
+  /** a closed state to start from (full crease vector, radians), as the sweep's start */
+  start?: Float64Array;
   /** limits for every hinge */
   limits?: HingeLimits;
   /** limits per crease index (override the global ones) */
@@ -226,6 +228,7 @@ export function* scheduleSteps(pattern: Pattern, opts: ScheduleOptions, hooks: S
     holds: opts.holds,
     branch: opts.branch,
     solution: opts.solution,
+    ...(opts.start ? { start: opts.start } : {}),
     curvature: true,
     method: opts.method,
   };

@@ -419,8 +419,10 @@ function organize(
   let dropped = 0;
   for (const r of curves) {
     if (pending.some((p) => p.rays.some((q) => same(q, r.tangent)))) continue;
-    if (!checked(r.tangent)) { dropped++; continue; }
     const twin = pending.find((p) => !p.line && p.rays.length === 1 && opposite(p.rays[0], r.tangent));
+    // at flat the mirror image (z → −z turns every angle around) of a closed state closes: one check per curve
+    if (twin && state === 'flat') { twin.rays.push(r.tangent); continue; }
+    if (!checked(r.tangent)) { dropped++; continue; }
     if (twin) twin.rays.push(r.tangent);
     else pending.push({ rays: [r.tangent], kind: state === 'regular' ? 'direction' : 'curve' });
   }

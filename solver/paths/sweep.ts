@@ -340,6 +340,21 @@ export class SweepRun {
         this.beginAt(off, b.tangent);
         return;
       }
+      // the samples lie across the flat state from the start: the start's curve reaches flat along one of the
+      // flat state's branches, where a solve could step onto another; go on from flat along that branch
+      const s0 = r.angles[o.drive];
+      if (holdsZero && s0 !== 0 && first * s0 <= 0) {
+        const through = this.flatBranchThrough(r.angles);
+        if (through) {
+          this.travel = first !== 0 ? Math.sign(first) : Math.sign(this.targets[this.targets.length - 1] || 1);
+          const ray = Math.sign(through.tangent[o.drive]) === this.travel ? through.tangent : through.tangent.map((x) => -x);
+          const twin = Math.sign(through.tangent[o.drive]) === this.travel ? through : through.opposite ?? through;
+          this.branchInfo = { id: twin.id, name: twin.name, matchesAssignment: twin.matchesAssignment, text: `the curve through the given start state, from flat along branch ${twin.name}` };
+          this.messages.push({ severity: 'info', code: 'start-through-flat', text: `The start state's curve reaches the flat state along branch ${through.name}; the samples on the far side of flat follow ${twin.name}.` });
+          this.beginAtFlat(ray);
+          return;
+        }
+      }
       this.branchInfo = { name: 'start state', matchesAssignment: tangentMatchesAssignment(this.pattern, r.angles), text: 'the family through the given start state' };
       this.beginAt(r.angles, null);
       return;
@@ -465,6 +480,33 @@ export class SweepRun {
     }
     if (!ray && this.branchInfo) this.branchInfo.matchesAssignment = matchesAssignment(this.pattern, r.angles);
     this.beginAt(r.angles, ray);
+  }
+
+  /**
+   * The flat-state branch along which the curve through `start` reaches flat: the curve is followed to
+   * SERIES_ANCHOR from flat, where x(θ)/θ is the branch's tangent to O(θ²), and the nearest branch of the flat
+   * analysis is taken (and its opposite sense); undefined when the curve does not reach there or no branch is near.
+   */
+  private flatBranchThrough(start: Float64Array): (Branch & { opposite?: Branch }) | undefined {
+    const d = this.options.drive;
+    const s0 = start[d];
+    const near = Math.sign(s0) * SERIES_ANCHOR;
+    const approach = sweep(this.pattern, { drive: d, from: near, to: near, samples: [near], start, holds: this.options.holds, conditionEvery: 0, analyzeBranches: false, method: this.options.method });
+    const x = approach.samples[0]?.angles;
+    if (!x) return undefined;
+    let norm = 0;
+    for (const v of x) norm += v * v;
+    norm = Math.sqrt(norm);
+    const analysis = flatBranches(this.pattern, { held: this.holdSet, drive: d });
+    let best: Branch | undefined, bestDot = 0;
+    for (const b of analysis.branches) {
+      let dot = 0;
+      for (let c = 0; c < x.length; c++) dot += (b.tangent[c] * x[c]) / norm;
+      if (dot > bestDot) { bestDot = dot; best = b; }
+    }
+    if (!best || bestDot < 0.999) return undefined;
+    const opposite = analysis.branches.find((b) => b.group === best!.group && b.id !== best!.id);
+    return { ...best, ...(opposite ? { opposite } : {}) };
   }
 
   /**

@@ -228,18 +228,86 @@ function sparseNullVectors(problem: ClosureProblem, angles: Float64Array): Float
 
 /** Group family points: one family per group of states joined by a walk; the representative matches the assignment when one does. */
 export function groupFamilies(ctx: AnalysisContext, members: Analysed[]): Family[] {
-  const reps: Analysed[] = [];
+  const reps: { a: Analysed; loop?: Float64Array[]; step: number }[] = [];
   const sorted = [...members].sort((p, q) => Number(q.solution.matchesAssignment) - Number(p.solution.matchesAssignment));
   for (const m of sorted) {
-    if (reps.some((r) => r.localDof === m.localDof && sameFamily(ctx.problem, r.solution.angles, m.solution.angles))) continue;
-    reps.push(m);
+    const joined = reps.some((r) => r.a.localDof === m.localDof && (r.loop
+      ? onLoop(ctx.problem, r.loop, m.solution.angles, r.step)
+      : sameFamily(ctx.problem, r.a.solution.angles, m.solution.angles)));
+    if (joined) continue;
+    // a one-DOF family is a closed curve: traced once, every other point is tested against it
+    const traced = m.localDof === 1 ? traceLoop(ctx, m.solution.angles) : undefined;
+    reps.push({ a: m, ...(traced ? { loop: traced.points, step: traced.step } : { step: 0 }) });
   }
-  return reps.map((r) => ({
+  return reps.map(({ a: r }) => ({
     dof: r.localDof,
     representative: { ...r.solution, sensitivity: new Map() },
     directions: familyDirections(ctx.problem, ctx.free, r.local, r.solution.angles),
     matchesAssignment: r.solution.matchesAssignment,
   }));
+}
+
+const LOOP_STEP = 0.05;
+const LOOP_STEPS = 800;
+
+/**
+ * The closed curve of states through `start` of a one-DOF family (drives held), traced by pseudo-arclength
+ * steps: tangent from the Jacobian's null space, a predictor step, a corrector with the arclength equation.
+ * Undefined when it does not close within the step budget (then the walk between points groups them).
+ */
+function traceLoop(ctx: AnalysisContext, start: Float64Array): { points: Float64Array[]; step: number } | undefined {
+  const { problem, free } = ctx;
+  const uc = problem.unknownCreases;
+  const n = uc.length;
+  const tangentAt = (x: Float64Array, prev?: Float64Array): Float64Array | undefined => {
+    problem.evaluate(x);
+    const dirs = familyDirections(problem, free, analyzeState(problem, free), x);
+    if (dirs.length !== 1) return undefined;
+    const t = new Float64Array(n);
+    for (const [c, v] of dirs[0]) t[problem.unknownOf[c]] = v;
+    if (prev) {
+      let dot = 0;
+      for (let a = 0; a < n; a++) dot += t[a] * prev[a];
+      if (dot < 0) for (let a = 0; a < n; a++) t[a] = -t[a];
+    }
+    return t;
+  };
+  let x: Float64Array = Float64Array.from(start);
+  let t: Float64Array | undefined = tangentAt(x);
+  if (!t) return undefined;
+  const points = [Float64Array.from(x)];
+  let h = LOOP_STEP;
+  for (let k = 0; k < LOOP_STEPS; k++) {
+    const guess = Float64Array.from(x);
+    let target = 0;
+    for (let a = 0; a < n; a++) { guess[uc[a]] += h * t[a]; target += t[a] * x[uc[a]]; }
+    const r = problem.solve(guess, { constraints: [{ coef: t, target: target + h }], maxStep: h, maxIterations: 20, wrap: false });
+    if (!r.converged) {
+      h /= 2;
+      if (h < 1e-4) return undefined;
+      continue;
+    }
+    const tn = tangentAt(r.angles, t);
+    if (!tn) return undefined;
+    x = r.angles;
+    t = tn;
+    points.push(Float64Array.from(x));
+    if (h < LOOP_STEP) h = Math.min(LOOP_STEP, h * 2);
+    if (k > 4 && distance(uc, x, start) < 0.75 * LOOP_STEP) return { points, step: LOOP_STEP };
+  }
+  return undefined;
+}
+
+function distance(uc: Int32Array, a: Float64Array, b: Float64Array): number {
+  let s = 0;
+  for (const c of uc) { const d = wrapAngle(a[c] - b[c]); s += d * d; }
+  return Math.sqrt(s);
+}
+
+/** A state on a traced loop: within a step of one of its points (the points are at most a step apart). */
+function onLoop(problem: ClosureProblem, loop: Float64Array[], x: Float64Array, step: number): boolean {
+  for (const p of loop) if (distance(problem.unknownCreases, p, x) < 0.6 * step + 1e-9) return true;
+  return false;
 }
 
 /** Drives whose value is implied by the other drives at this state. */

@@ -35,16 +35,12 @@ export interface PlanOutcome {
 export function planEnumeration(pattern: Pattern, sys: ClosureSystem, known: (crease: number) => boolean): PlanOutcome {
   const isKnown = new Uint8Array(pattern.creases.length);
   for (const c of pattern.creases) if (c.assignment === 'B' || c.assignment === 'F' || known(c.index)) isKnown[c.index] = 1;
-  const blocksOf: number[][] = pattern.creases.map(() => []);
+  const blocksOf = blocksOfCreases(pattern, sys);
   const unknownCount = new Int32Array(sys.blockCount);
   for (let b = 0; b < sys.blockCount; b++) {
     const s = sys.blockStart[b], e = sys.blockStart[b + 1];
     if (e - s > 32) return { reason: `vertex ${sys.blockVertex[b]} has more than 32 creases` };
-    for (let p = s; p < e; p++) {
-      const c = sys.slotCrease[p];
-      blocksOf[c].push(b);
-      if (!isKnown[c]) unknownCount[b]++;
-    }
+    for (let p = s; p < e; p++) if (!isKnown[sys.slotCrease[p]]) unknownCount[b]++;
   }
   const loose: number[] = [];
   for (const c of pattern.creases) if (!isKnown[c.index] && blocksOf[c.index].length === 0) loose.push(c.index);
@@ -88,6 +84,19 @@ export function planEnumeration(pattern: Pattern, sys: ClosureSystem, known: (cr
     masks.push(mask);
   }
   return { plan: { order: Int32Array.from(order), knownMask: Uint32Array.from(masks), loose } };
+}
+
+const blocksCache = new WeakMap<ClosureSystem, number[][]>();
+
+/** The blocks (interior vertices) each crease meets; depends on the pattern only, so kept per closure system. */
+export function blocksOfCreases(pattern: Pattern, sys: ClosureSystem): number[][] {
+  let out = blocksCache.get(sys);
+  if (!out) {
+    out = pattern.creases.map(() => []);
+    for (let b = 0; b < sys.blockCount; b++) for (let p = sys.blockStart[b]; p < sys.blockStart[b + 1]; p++) out[sys.slotCrease[p]].push(b);
+    blocksCache.set(sys, out);
+  }
+  return out;
 }
 
 export interface EnumeratedState {

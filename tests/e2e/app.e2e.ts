@@ -216,7 +216,8 @@ export const e2eTests: E2ETest[] = [
         await page.getByLabel('path to, degrees').fill('160');
         await page.getByLabel('path step, degrees').fill('10');
         await page.click('[data-testid=compute-path]');
-        await page.waitForSelector('[data-testid=path-summary]', { timeout: 60_000 });
+        // the path asked for (not the one computed at opening): its samples run to 160°
+        await page.waitForSelector('[data-testid=path-summary]:has-text("to 160.0°")', { timeout: 60_000 });
         await page.click('button:has-text("Export…")');
         const dialog = page.getByRole('dialog');
         await dialog.getByLabel('Angle table of the computed path').check();
@@ -237,7 +238,8 @@ export const e2eTests: E2ETest[] = [
         assert.equal(meta.get('file'), COUPON_FILE);
         // Node's SHA-256 (OpenSSL) of the file the app opened
         assert.equal(meta.get('fileSha256'), createHash('sha256').update(readFileSync(path.join(tmp, COUPON_FILE))).digest('hex'));
-        assert.equal(meta.get('command'), `hingeplan table ${COUPON_FILE} --drive c0 --from 0 --to 160 --step 10 --format csv --rates`);
+        // the path started from solution 1 on screen, which lies on branch 1 (A+) from flat: `--branch 1` repeats it
+        assert.equal(meta.get('command'), `hingeplan table ${COUPON_FILE} --drive c0 --from 0 --to 160 --step 10 --branch 1 --format csv --rates`);
         const body = text.split('\n').filter((l) => l && !l.startsWith('#')).join('\n');
         const parsed = Papa.parse<Record<string, string>>(body, { header: true, skipEmptyLines: true });
         assert.deepEqual(parsed.errors, []);
@@ -265,7 +267,8 @@ export const e2eTests: E2ETest[] = [
         await page.getByLabel('path to, degrees').fill('160');
         await page.getByLabel('path step, degrees').fill('20');
         await page.click('[data-testid=compute-path]');
-        await page.waitForSelector('[data-testid=path-summary]', { timeout: 60_000 });
+        // the path asked for (not the one computed at opening): its samples run to 160°
+        await page.waitForSelector('[data-testid=path-summary]:has-text("to 160.0°")', { timeout: 60_000 });
         await page.click('button:has-text("Export…")');
         const dialog = page.getByRole('dialog');
         await dialog.getByLabel('Deployment schedule of the computed path').check();
@@ -275,6 +278,9 @@ export const e2eTests: E2ETest[] = [
         await dialog.getByLabel('jerk time (s)').fill('0.5');
         await dialog.getByRole('spinbutton', { name: /^rows/ }).fill('41');
         await dialog.getByLabel('hinge rate limit (°/s)').fill('40');
+        // a limit of one hinge of its own, as the command line's --limit
+        await dialog.getByLabel('crease of hinge limit 1').fill('c1');
+        await dialog.getByLabel('rate limit 1 (°/s)').fill('30');
         const target = path.join(tmp, 'coupon.schedule.csv');
         host.saveAnswers.push(target);
         await screenshot(page, 'export-dialog-schedule');
@@ -285,7 +291,7 @@ export const e2eTests: E2ETest[] = [
         const meta = metadata(text);
         assert.equal(meta.get('format'), 'hingeplan-deployment-schedule');
         assert.equal(meta.get('cautions'), CAUTIONS);
-        assert.equal(meta.get('command'), `hingeplan schedule ${COUPON_FILE} --drive c0 --from 0 --to 160 --time 8 --profile s-curve --accel-time 2 --jerk-time 0.5 --rows 41 --max-rate 40 --format csv`);
+        assert.equal(meta.get('command'), `hingeplan schedule ${COUPON_FILE} --drive c0 --from 0 --to 160 --time 8 --profile s-curve --accel-time 2 --jerk-time 0.5 --rows 41 --max-rate 40 --limit c1=30 --branch 1 --format csv`);
         const body = text.split('\n').filter((l) => l && !l.startsWith('#')).join('\n');
         const parsed = Papa.parse<Record<string, string>>(body, { header: true, skipEmptyLines: true });
         assert.deepEqual(parsed.errors, []);

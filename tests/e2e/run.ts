@@ -2,7 +2,10 @@
 // with its own backend, and closes with "N passed, N failed". `tsx tests/e2e/run.ts <word> …` runs only the
 // tests whose names contain one of the words.
 import { Harness } from './harness';
-import { e2eTests } from './app.e2e';
+import { e2eTests as appTests } from './app.e2e';
+import { workflowTests } from './workflow.e2e';
+
+const e2eTests = [...appTests, ...workflowTests];
 
 const words = process.argv.slice(2).map((w) => w.toLowerCase());
 const chosen = e2eTests.filter((t) => !words.length || words.some((w) => t.name.toLowerCase().includes(w)));

@@ -50,8 +50,11 @@ describe('table header of an app export', () => {
     const sweep = SweepOptionsSchema.parse({ drive: 'c0', fromDeg: -30, toDeg: 45.25, stepDeg: 0.5, held: [{ crease: 'c2', angleDeg: -12.5 }], branchId: '2' });
     expect(tableCommand(pattern, 'my coupon.json', sweep, ExportOptionsSchema.parse({ rates: true, format: 'json' })))
       .toBe("hingeplan table 'my coupon.json' --drive c0 --from -30 --to 45.25 --step 0.5 --hold c2=-12.5 --branch 2 --format json --rates");
-    expect(scheduleCommand('c.json', sweep, ExportOptionsSchema.parse({ profile: 's-curve', timeS: 8, accelTimeS: 2, jerkTimeS: 0.5, dtS: 0.05 })))
+    expect(scheduleCommand(pattern, 'c.json', sweep, ExportOptionsSchema.parse({ profile: 's-curve', timeS: 8, accelTimeS: 2, jerkTimeS: 0.5, dtS: 0.05 })))
       .toBe('hingeplan schedule c.json --drive c0 --from -30 --to 45.25 --time 8 --profile s-curve --accel-time 2 --jerk-time 0.5 --dt 0.05 --hold c2=-12.5 --branch 2 --format csv');
+    // per-hinge limits as --limit CREASE=RATE[:ACCEL], a rate alone or an acceleration alone
+    const limited = ExportOptionsSchema.parse({ hingeLimits: [{ crease: 'c1', maxRateDegPerS: 30, maxAccelDegPerS2: 120 }, { crease: 'c3', maxAccelDegPerS2: 50 }] });
+    expect(scheduleCommand(pattern, 'c.json', sweep, limited)).toContain('--limit c1=30:120 --limit c3=:50 --hold');
   });
 
   it('gives a path started from a state its start on standard input, every angle exact', () => {

@@ -7,7 +7,7 @@ import { CAUTIONS } from '../../solver/formats/cautions';
 import { buildPattern } from '../../solver/model/pattern';
 import { miura } from '../../solver/model/generators';
 import type { PathResultDto, ProjectDto, SolveResultDto } from '../../electron/contract';
-import { groupCurves, hingeRows, hingeTableCsv, sortRows, statusInWords, tintScale, TINT_STOPS, type ShownState } from '../../renderer/state/display';
+import { groupCurves, hingeRows, hingeTableCsv, sortRows, statusInWords, type ShownState } from '../../renderer/state/display';
 import { CreasePicker, segmentDistance } from '../../renderer/geometry';
 
 const base: SolveResultDto = { status: 'solved', dof: 0, patternDof: 1, solutions: [], families: [], search: { complete: true, method: 'test', found: 0, note: '' }, messages: [], iterations: 3 };
@@ -15,7 +15,16 @@ const base: SolveResultDto = { status: 'solved', dof: 0, patternDof: 1, solution
 describe('status in words', () => {
   it('names every status and says what to do', () => {
     expect(statusInWords(base, 1)).toMatchObject({ headline: 'Solved', tone: 'good' });
-    expect(statusInWords({ ...base, status: 'underspecified', dof: 1, suggestedDrives: ['z1', 'z2'] }, 1).detail).toBe('1 degree of freedom left. Add a drive at z1, z2.');
+    expect(statusInWords({ ...base, status: 'underspecified', dof: 1, suggestedDrives: ['z1', 'z2'] }, 1).detail).toBe('1 degree of freedom left: the drives leave a family of states, not one state. Add a drive at z1, z2.');
+    // overspecified but consistent is a note, and names the drive that follows from the others, not every drive
+    const over = statusInWords({ ...base, status: 'overspecified', patternDof: 1, conflictingDrives: ['c1'] }, 2, ['c0', 'c1']);
+    expect(over).toMatchObject({ headline: 'Overspecified, consistent', tone: 'note' });
+    expect(over.detail).toContain('c1 follows from c0');
+    expect(statusInWords({ ...base, status: 'overspecified', patternDof: 1, conflictingDrives: ['c0', 'c1'] }, 2, ['c0', 'c1']).detail).toContain('One of c0, c1 follows from the other; remove one.');
+    // a drive past its hinge stop says so and keeps the last state on screen
+    const stop = statusInWords({ ...base, status: 'invalid', messages: [{ severity: 'error', code: 'drive-outside-limit', text: 'Drive 1: 175° for crease c0 (index 0) is outside its hinge limits 0° … 170°.' }] }, 1);
+    expect(stop.headline).toBe('Past a hinge stop');
+    expect(stop.detail).toContain('last solved state stays on screen');
     expect(statusInWords({ ...base, status: 'underspecified', patternDof: 3, suggestedDrives: ['d0'] }, 0).detail).toContain('No drive is set; the pattern has 3 degrees of freedom');
     const inc = statusInWords({ ...base, status: 'inconsistent', conflictingDrives: ['a', 'b'], worstVertices: [[7, Math.PI / 180]] }, 2);
     expect(inc.headline).toBe('Inconsistent');
@@ -46,9 +55,9 @@ describe('hinge table', () => {
 
   it('lists folding creases with their state in words', () => {
     expect(rows.map((r) => r.label)).toEqual(['c0', 'label, with "quotes"', '2', 'c3']);
-    expect(rows[0].status).toBe('drive, beyond limit');
+    expect(rows[0].status).toBe('drive, past stop');
     expect(rows[0].violates).toBe(true);
-    expect(rows[1].status).toBe('against assignment');
+    expect(rows[1].status).toBe('opposes M/V');
     expect(rows[3].status).toBe('ok');
   });
 
@@ -69,22 +78,6 @@ describe('hinge table', () => {
     expect(Number(parsed.data[1][5])).toBe(100);
     expect(parsed.data[1][4]).toBe('90.0000');
     expect(parsed.data[3][6]).toBe('');
-  });
-});
-
-describe('tint scale', () => {
-  // Sign convention: valley positive, mountain negative, as the FOLD format's edges_foldAngle (common practice).
-  const rgb = (c: readonly number[]) => `rgb(${c[0]}, ${c[1]}, ${c[2]})`;
-  it('runs from the mountain colour at −180° through the flat colour to the valley colour at +180°', () => {
-    expect(tintScale(-180)).toBe(rgb(TINT_STOPS.mountain));
-    expect(tintScale(0)).toBe(rgb(TINT_STOPS.flat));
-    expect(tintScale(180)).toBe(rgb(TINT_STOPS.valley));
-    expect(tintScale(400)).toBe(rgb(TINT_STOPS.valley));
-  });
-  it('tints a small valley visibly bluer than flat', () => {
-    const blue = (s: string) => Number(s.match(/\d+/g)![2]) - Number(s.match(/\d+/g)![0]);
-    expect(blue(tintScale(10))).toBeGreaterThan(blue(tintScale(0)) + 20);
-    expect(blue(tintScale(-10))).toBeLessThan(blue(tintScale(0)) - 20);
   });
 });
 

@@ -2,7 +2,7 @@
 // is a stack of documents, with one step per slider drag.
 import { describe, expect, it } from 'vitest';
 import type { ProjectDto } from '../../electron/contract';
-import { addDrive, creaseIndexByLabel, creaseLabel, limitDeg, limitState, removeDrive, renameCrease, setCreaseLimit, setDriveAngle } from '../../renderer/state/document';
+import { addDrive, creaseIndexByLabel, creaseLabel, limitDeg, limitState, panelName, removeDrive, renameCrease, setCreaseLimit, setDriveAngle, setPanelName } from '../../renderer/state/document';
 import { commit, redo, seal, startHistory, undo, canUndo, HISTORY_LIMIT } from '../../renderer/state/history';
 import { initialState, isDirty, nearestSolution, reducer } from '../../renderer/state/app';
 
@@ -21,6 +21,19 @@ function coupon(): ProjectDto {
 }
 
 describe('document edits', () => {
+  it('names panels uniquely, clears a name with an empty one, and shows unnamed panels by index', () => {
+    const p = coupon();
+    const named = setPanelName(p, 2, '  hinge plate ');
+    expect(named.ok && named.project.source.panelNames).toEqual([undefined, undefined, 'hinge plate']);
+    if (!named.ok) return;
+    expect(panelName(named.project, 2)).toBe('hinge plate');
+    expect(panelName(named.project, 0)).toBe('panel 0');
+    expect(setPanelName(named.project, 0, 'hinge plate')).toEqual({ ok: false, message: 'Panel 2 is already named "hinge plate"; panel names must be unique.' });
+    const cleared = setPanelName(named.project, 2, '');
+    expect(cleared.ok && cleared.project.source.panelNames).toBeUndefined();
+    expect(p.source.panelNames).toBeUndefined();
+  });
+
   it('reads labels as the solver does: the file label, else the index', () => {
     const p = coupon();
     expect(creaseLabel(p, 0)).toBe('c0');

@@ -111,7 +111,7 @@ describe('hinge table', () => {
     render(<HingeTable rows={hingeRows(project, shown)} selectedCrease={null} caption="c" height={400} onSelect={() => {}} onRename={onRename} onLimit={onLimit} onCopy={onCopy} />);
     const order = () => Array.from(document.querySelectorAll('.table-body .row')).map((r) => r.getAttribute('data-label'));
     expect(order()).toEqual(['c0', 'c1', 'c2', 'c3']);
-    fireEvent.click(screen.getByText('angle'));
+    fireEvent.click(screen.getByText('angle °'));
     const byAngle = [...hingeRows(project, shown)].sort((a, b) => a.angleDeg - b.angleDeg).map((r) => r.label);
     expect(order()).toEqual(byAngle);
     const label = screen.getByLabelText('label of crease 1');
@@ -134,7 +134,7 @@ describe('solution cards', () => {
   it('shows each solution with its sign pattern and assignment match, and selects on click', () => {
     const onSelect = vi.fn();
     const sols = reference.solutions.map((_, i) => solutionDto(i));
-    render(<SolutionCards pattern={pattern} solutions={sols} selected={0} active basePanel={pattern.basePanel} onSelect={onSelect} />);
+    render(<SolutionCards pattern={pattern} project={project} solutions={sols} selected={0} active basePanel={pattern.basePanel} onSelect={onSelect} />);
     const cards = screen.getAllByTestId('solution-card');
     expect(cards.length).toBeGreaterThan(0);
     expect(cards[0].querySelectorAll('polygon').length).toBe(pattern.panels.length);
