@@ -4,6 +4,7 @@ import { UsageError } from './args';
 import { EXIT } from './exit-codes';
 import { nodeIo, type Io } from './io';
 import { VERSION } from './version';
+import { isMainThread } from 'node:worker_threads';
 import { DRAWING_OPTIONS_HELP, takeDrawingOptions } from './drawing-options';
 
 export const USAGE = `hingeplan ${VERSION}: fold-angle solver for rigid-panel deployable structures
@@ -56,9 +57,10 @@ export async function main(argv: string[], io: Io): Promise<number> {
   }
 }
 
-// run when bundled as the program (dist/cli.js), not when imported by tests
+// run when bundled as the program (dist/cli.js), not when imported by tests, nor in a worker thread the
+// program starts (workers load the same bundle)
 const entry = process.argv[1] ?? '';
-if (/hingeplan(\.js)?$|cli\.js$|cli[\\/]main\.ts$/.test(entry)) {
+if (isMainThread && /hingeplan(\.js)?$|cli\.js$|cli[\\/]main\.ts$/.test(entry)) {
   main(process.argv.slice(2), nodeIo()).then(
     (code) => {
       process.exitCode = code;

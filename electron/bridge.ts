@@ -39,6 +39,7 @@ export interface HingeplanApi {
   solve: Call<'solve'>;
   branches: Call<'branches'>;
   sweep: Call<'sweep'>;
+  tolerance: Call<'tolerance'>;
   shape: Call<'shape'>;
   cancelJob: Call<'job:cancel'>;
   copyText: Call<'clipboard:write'>;
@@ -65,6 +66,7 @@ export const API_CHANNELS = {
   solve: 'solve',
   branches: 'branches',
   sweep: 'sweep',
+  tolerance: 'tolerance',
   shape: 'shape',
   cancelJob: 'job:cancel',
   copyText: 'clipboard:write',

@@ -342,6 +342,72 @@ export const SweepOptionsSchema = z.object({
 });
 export type SweepOptionsDto = z.input<typeof SweepOptionsSchema>;
 
+/**
+ * The tolerance panel's request: the sheets follow the path on screen (computed by the `sweep` channel, kept
+ * in the worker under its path id), at its samples every `everyDeg` of drive; the options of
+ * `hingeplan tolerance` besides (degrees, the document's length unit).
+ */
+export const ToleranceOptionsSchema = z.object({
+  /** the path the sheets follow: the request id of its sweep */
+  pathId: z.string().min(1).max(120),
+  /** take the path's samples about this far apart (the first and the last always) */
+  everyDeg: finite.positive().max(360),
+  /** diameter of the positional zone around every vertex, in the document's unit (--position-tol) */
+  positionTol: finite.nonnegative().max(1e9).default(0),
+  /** every sector angle within ± this many degrees (--sector-tol) */
+  sectorTolDeg: finite.nonnegative().lt(45).default(0),
+  samples: z.number().int().min(1).max(100_000),
+  seed: z.number().int().min(0).max(4_294_967_295),
+});
+export type ToleranceOptionsDto = z.input<typeof ToleranceOptionsSchema>;
+
+/** Undefined figures (a spread of fewer than two sheets, the first order at a singular state) cross as null. */
+const figure = z.number().nullable();
+
+export const ToleranceHingeSchema = z.object({
+  crease: z.number().int(),
+  label: z.string(),
+  /** per drive value, degrees */
+  nominalDeg: z.array(figure),
+  meanDeg: z.array(figure),
+  stdDeg: z.array(figure),
+  p05Deg: z.array(figure),
+  p50Deg: z.array(figure),
+  p95Deg: z.array(figure),
+  /** first-order standard deviation from the sensitivities, degrees */
+  linearStdDeg: z.array(figure),
+});
+export type ToleranceHingeDto = z.output<typeof ToleranceHingeSchema>;
+
+const SpreadFigures = z.object({ p05: figure, p50: figure, p95: figure, max: figure });
+
+export const ToleranceResultSchema = z.object({
+  driveCrease: z.number().int(),
+  driveLabel: z.string(),
+  branchName: z.string().optional(),
+  /** drive values the nominal path reached, degrees */
+  atDeg: z.array(finite),
+  samples: z.number().int(),
+  requested: z.number().int(),
+  seed: z.number().int(),
+  status: z.enum(['complete', 'stopped', 'partial', 'failed']),
+  /** the tolerance model in words */
+  model: z.string(),
+  hinges: z.array(ToleranceHingeSchema),
+  /** per drive value: the largest vertex closure residual over the sheets (radians) */
+  misfit: z.array(SpreadFigures),
+  /** per drive value: the equivalent gap at panel edges (the document's unit) */
+  gap: z.array(SpreadFigures),
+  /** per drive value: first-order RMS residual at the worst vertex (radians) */
+  linearMisfit: z.array(figure),
+  rigidFraction: z.array(figure),
+  lost: z.array(z.number().int()),
+  /** the vertices with the largest average share of the misfit, largest first */
+  worstVertices: z.array(z.object({ vertex: z.number().int(), share: finite })),
+  messages: z.array(MessageSchema),
+});
+export type ToleranceResultDto = z.output<typeof ToleranceResultSchema>;
+
 export const ExportKindSchema = z.enum(['fold', 'dxf', 'svg', 'obj', 'stl', 'shape-json', 'angle-table', 'schedule']);
 export type ExportKind = z.output<typeof ExportKindSchema>;
 
@@ -466,6 +532,10 @@ export const channels = {
   'sweep': {
     request: z.object({ requestId, key: patternKey, options: SweepOptionsSchema }),
     response: jobResult(PathResultSchema),
+  },
+  'tolerance': {
+    request: z.object({ requestId, key: patternKey, options: ToleranceOptionsSchema }),
+    response: jobResult(ToleranceResultSchema),
   },
   'shape': {
     request: z.object({ key: patternKey, anglesDeg: z.array(finite), basePanel: z.number().int().nonnegative().optional(), ...optionalRequestId }),

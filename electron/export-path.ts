@@ -1,6 +1,7 @@
-// The path a table export writes from. Exports run in a worker of their own (so they never hold up a
-// sweep), which has not computed the path the window shows: main hands it the sweep's request and the path
-// is solved again here, to the same numbers (the sweep is deterministic), and kept for the next export.
+// The path a table export writes from (and an analysis follows). Exports run in a worker of their own (so
+// they never hold up a sweep), which has not computed the path the window shows, and a worker may have lost
+// a path (restarted, evicted): main hands the job the sweep's request and the path is solved again here, to
+// the same numbers (the sweep is deterministic), and kept for the next job.
 
 import { z } from 'zod';
 import type { Pattern } from '../solver/types';
@@ -16,7 +17,7 @@ export type ExportSweep = z.output<typeof ExportSweepSchema>;
  * The stored path of a sweep request for a table. A schedule solves its own rows and needs only the
  * request (`samples: false`); an angle table needs the samples, computed here when this worker lacks them.
  */
-export function exportPath(state: JobState, pattern: Pattern, key: string, sweep: ExportSweep | undefined, samples: boolean, ctx?: JobContext): StoredPath {
+export function storedPathFor(state: JobState, pattern: Pattern, key: string, sweep: ExportSweep | undefined, samples: boolean, ctx?: JobContext): StoredPath {
   if (!sweep) throw new JobFailure('no-path', 'compute a path first: tables are written from the computed path');
   if (sweep.key !== key) throw new JobFailure('path-unknown', 'the computed path belongs to an earlier state of the pattern; compute it again');
   if (!samples) {

@@ -1,6 +1,7 @@
 // The worker's jobs by name: what electron/solver-worker.ts serves.
 import { createJobState, exportJob, generateJob, loadJob, setPatternJob, shapeJob, solveJob, writeProjectJob, type JobState } from './jobs';
 import { branchesJob, sweepJob } from './path-jobs';
+import { toleranceJob } from './tolerance-job';
 import type { Job, JobContext } from './worker-protocol';
 
 export function createJobs(state: JobState = createJobState()): Record<string, Job> {
@@ -18,5 +19,6 @@ export function createJobs(state: JobState = createJobState()): Record<string, J
     export: withState(exportJob),
     branches: withState(branchesJob),
     sweep: withState(sweepJob),
+    tolerance: withState(toleranceJob),
   };
 }

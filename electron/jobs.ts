@@ -44,7 +44,7 @@ import {
 } from './contract';
 import { JobFailure } from './worker-protocol';
 import { fileText, isBytes } from './text-bytes';
-import { ExportSweepSchema, exportPath } from './export-path';
+import { ExportSweepSchema, storedPathFor } from './export-path';
 import { checkAngleTableSize, checkScheduleSize } from './work-limits';
 import { LruMap } from './lru';
 import { runSteps, type SweepResult } from '../solver/paths/sweep';
@@ -306,7 +306,7 @@ export function exportJob(state: JobState, payload: unknown, ctx?: JobContext): 
       return { data: JSON.stringify(shapeToJSON(pattern, foldedShape(pattern, angles(), base)), null, 1) + '\n', extension: 'json' };
     case 'angle-table':
     case 'schedule': {
-      const stored = exportPath(state, pattern, req.key, req.sweep, req.kind === 'angle-table', ctx);
+      const stored = storedPathFor(state, pattern, req.key, req.sweep, req.kind === 'angle-table', ctx);
       const file = req.file ?? { name: 'pattern.hingeplan.json' };
       const header = (command: string) => appTableHeader(pattern, req.project, file, req.version ?? 'unknown', command);
       const table = req.kind === 'angle-table' ? writeAngleTable(pattern, stored, req.options, file.name, header) : writeSchedule(pattern, stored, req.options, file.name, header, ctx);

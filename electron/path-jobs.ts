@@ -179,6 +179,8 @@ export function sweepJob(state: JobState, payload: unknown, ctx: JobContext): Pa
   if ('messages' in computed) return { pathId, driveCrease: -1, driveLabel: o.drive, samples: [], events: [], messages: computed.messages, complete: false };
   const result = computed.raw as SweepResult;
   const { request, held } = computed;
+  // kept here for the analyses that follow the path on screen (tolerance); exports solve it again in their lane
+  if (result.status !== 'failed' && result.samples.length) state.paths.set(pathId, { key, driveCrease: result.drive, raw: result, request });
   const startKind = request.startAnglesDeg ? 'state' : held.some((h) => h.value !== 0) ? 'solution' : 'flat';
   // a path from a given state is named by the flat ray it runs along, when it passes through flat
   let named: { name: string; matchesAssignment: boolean } | undefined;

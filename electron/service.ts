@@ -428,6 +428,15 @@ export function createService(deps: ServiceDeps) {
       }) as Promise<ResponseOf<'sweep'>>;
     },
 
+    async tolerance({ requestId, key, options }) {
+      return asRequest(requestId, { status: 'cancelled' as const }, async (r) => {
+        // the sweep's request too: a worker that lost the path (restarted, evicted) solves it again
+        const sweep = sweeps.get(options.pathId);
+        const payload = { key, options, ...(sweep ? { sweep: { pathId: options.pathId, ...sweep } } : {}) };
+        return jobAnswer(await job(r, 'long', 'tolerance', payload, { supersedeKey: 'tolerance', onProgress: progressTo(requestId) }));
+      }) as Promise<ResponseOf<'tolerance'>>;
+    },
+
     async shape({ key, anglesDeg, basePanel, requestId }) {
       return asRequest(requestId, { status: 'cancelled' as const }, async (r) => jobAnswer(await job(r, 'interactive', 'shape', { key, anglesDeg, basePanel }, { supersedeKey: 'shape' }))) as Promise<ResponseOf<'shape'>>;
     },

@@ -195,6 +195,7 @@ export function App({ controller }: { controller: Controller }) {
                   hoverCrease={state.hoverCrease}
                   violatingPanels={violations.panels}
                   violatingCreases={violations.creases}
+                  marks={state.pathTab === 'tolerance' ? state.tolerance.result?.worstVertices : undefined}
                   onHover={(i) => dispatch({ type: 'hover-crease', index: i })}
                   onSelect={(i) => dispatch({ type: 'select-crease', index: i })}
                 />
@@ -232,6 +233,13 @@ export function App({ controller }: { controller: Controller }) {
               problem={pathProblem}
               onForm={(patch) => dispatch({ type: 'path-form', patch })}
               onTab={(tab) => dispatch({ type: 'path-tab', tab })}
+              tolerance={{
+                pattern,
+                tolerance: state.tolerance,
+                onRun: (r) => void controller.runTolerance(r),
+                onCancel: () => void controller.cancelTolerance(),
+                onChoose: (creases) => dispatch({ type: 'tolerance-choose', creases }),
+              }}
               onCompute={() => {
                 const n = controller.pathNumbers();
                 setPathProblem(typeof n === 'string' ? n : null);

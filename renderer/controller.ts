@@ -3,7 +3,7 @@
 // Views call these methods; results come back as actions on the store.
 
 import type { HingeplanApi } from './api';
-import type { BranchDto, PathEventDto, DriveSpec, ExportKind, ExportOptionsDto, GeneratorSpec, MenuCommand, OpenResult, ProjectDto, SweepOptionsDto } from '../electron/contract';
+import type { BranchDto, PathEventDto, DriveSpec, ExportKind, ExportOptionsDto, GeneratorSpec, MenuCommand, OpenResult, ProjectDto, SweepOptionsDto, ToleranceOptionsDto } from '../electron/contract';
 import { currentProject, isDirty, type AppState, type PathOrigin } from './state/app';
 import { flippedRange, type PathFixId } from './state/path-words';
 import type { Store } from './state/store';
@@ -60,6 +60,7 @@ export class Controller {
     this.unsubscribe.push(
       this.api.onProgress((e) => {
         this.store.dispatch({ type: 'path-progress', requestId: e.requestId, done: e.done, total: e.total });
+        this.store.dispatch({ type: 'tolerance-progress', requestId: e.requestId, done: e.done, total: e.total });
       }),
     );
     this.unsubscribe.push(this.api.onMenuCommand((e) => void this.command(e.command, e.path)));
@@ -509,6 +510,35 @@ export class Controller {
     if (!id || this.state.path.status !== 'running') return;
     await this.api.cancelJob({ requestId: id });
     this.store.dispatch({ type: 'path-stopped', requestId: id, status: 'cancelled' });
+  }
+
+  // ---------- tolerance ----------
+
+  /** Follow random manufactured sheets along the path on screen in the solver worker (hingeplan tolerance). */
+  async runTolerance(options: ToleranceOptionsDto): Promise<void> {
+    const project = currentProject(this.state);
+    if (!project) return;
+    const requestId = newId('tolerance');
+    this.store.dispatch({ type: 'tolerance-started', requestId, request: options });
+    const key = await this.ensurePattern(project);
+    if (!key) {
+      this.store.dispatch({ type: 'tolerance-stopped', requestId, status: 'error', error: 'the pattern could not be given to the solver' });
+      return;
+    }
+    const r = await this.api.tolerance({ requestId, key, options });
+    if (!r.ok) {
+      this.store.dispatch({ type: 'tolerance-stopped', requestId, status: 'error', error: r.error.message });
+      return;
+    }
+    if (r.value.status === 'done') this.store.dispatch({ type: 'tolerance-finished', requestId, result: r.value.value });
+    else this.store.dispatch({ type: 'tolerance-stopped', requestId, status: 'cancelled' });
+  }
+
+  async cancelTolerance(): Promise<void> {
+    const id = this.state.tolerance.requestId;
+    if (!id || this.state.tolerance.status !== 'running') return;
+    await this.api.cancelJob({ requestId: id });
+    this.store.dispatch({ type: 'tolerance-stopped', requestId: id, status: 'cancelled' });
   }
 
   async loadBranches(): Promise<void> {

@@ -31,6 +31,12 @@ export const PALETTE = {
   boundary: '#3b3934',
   /** a crease held flat (dotted) */
   heldFlat: '#8c877c',
+  /**
+   * the tolerance analysis's misfit: its curve and the rings at the vertices that carry it. A vivid violet,
+   * the colour farthest from the scale and the other roles under every common deficiency that is not near
+   * black (tests/renderer/palette.test.ts)
+   */
+  misfit: '#a048f8',
 } as const;
 
 export type PaletteRole = keyof typeof PALETTE;

@@ -33,3 +33,11 @@ export { gridSweep, gridSteps, type GridOptions, type GridResult, type GridNode 
 export { angleTable, scheduleTable, followTable, gridTable, type TableHeader, type TableFormat } from './outputs/table';
 export { planPropagation, propagate, degree4States } from './paths/propagate';
 export { sha256 } from './outputs/sha256';
+export {
+  toleranceSteps, nominalSteps, toleranceResult, checkToleranceOptions, checkToleranceSize,
+  type ToleranceOptions, type ToleranceResult, type ToleranceStatus,
+} from './outputs/tolerance/run';
+export { SheetSolver, type SheetResult, type ToleranceSetup } from './outputs/tolerance/sheet';
+export { sheetPerturbation, type PerturbationModel, type ToleranceSpec } from './outputs/tolerance/perturbation';
+export { linearSteps, type LinearEstimate } from './outputs/tolerance/linear';
+export { toleranceTable, worstVertices } from './outputs/tolerance/table';

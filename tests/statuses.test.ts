@@ -112,3 +112,27 @@ describe('a continuum is one family, not its members', () => {
     expect(r.families[0].representative.maxResidual).toBeLessThanOrEqual(1e-10);
   });
 });
+
+describe('the sparse null space (used above the dense size) agrees with the dense one', () => {
+  it('at a state of the two-motor rig family: the same one-dimensional null space as pivoted QR', async () => {
+    const { loadPatternText } = await import('../solver/formats/project');
+    const { ClosureProblem } = await import('../solver/closure/newton');
+    const { analyzeState } = await import('../solver/closure/analysis');
+    const { familyDirections } = await import('../solver/search/classify');
+    const { readFileSync } = await import('node:fs');
+    const loaded = loadPatternText(readFileSync('samples/two-motor-rig.hingeplan.json', 'utf8'), 'two-motor-rig.hingeplan.json');
+    const p = loaded.pattern!;
+    const drive = { crease: p.labelIndex.get('c0')!, value: 40 * D };
+    const state = solveDrives(p, [drive]).families[0].representative.angles;
+    const problem = new ClosureProblem(p, (c) => c === drive.crease);
+    const free = Array.from(problem.unknownCreases);
+    problem.evaluate(state);
+    const dense = familyDirections(problem, free, analyzeState(problem, free), state);
+    const sparse = familyDirections(problem, free, undefined, state);
+    expect(dense).toHaveLength(1);
+    expect(sparse).toHaveLength(1);
+    let dot = 0;
+    for (const [c, v] of dense[0]) dot += v * (sparse[0].get(c) ?? 0);
+    expect(Math.abs(Math.abs(dot) - 1)).toBeLessThan(1e-9);
+  });
+});

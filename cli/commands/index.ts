@@ -10,9 +10,10 @@ import { gridCommand } from './grid';
 import { followCommand } from './follow';
 import { tableCommand } from './table';
 import { scheduleCommand } from './schedule';
+import { toleranceCommand } from './tolerance';
 
 /** Every subcommand, in the order `hingeplan --help` lists them. */
 export const commands: Command[] = [
   check, solve, shape, newCommand, convert,
-  branchesCommand, sweepCommand, gridCommand, followCommand, tableCommand, scheduleCommand,
+  branchesCommand, sweepCommand, gridCommand, followCommand, tableCommand, scheduleCommand, toleranceCommand,
 ];

@@ -13,6 +13,7 @@ import type {
 } from '../../electron/contract';
 import type { z } from 'zod';
 import { commit, redo, seal, startHistory, undo, type History } from './history';
+import { initialTolerance, toleranceReducer, type ToleranceAction, type ToleranceState } from './tolerance';
 
 export type DocumentFormat = z.output<typeof DocumentFormatSchema>;
 
@@ -90,7 +91,7 @@ export interface PathForm {
 }
 
 /** Tabs of the path area; other panels (drive torque, tolerance) add theirs here. */
-export type PathTab = 'charts' | 'events' | 'branches';
+export type PathTab = 'charts' | 'events' | 'branches' | 'tolerance';
 
 export interface BranchState {
   status: JobStatus;
@@ -136,6 +137,8 @@ export interface AppState {
   dialog: DialogName;
   /** a message about the last edit that was refused (bad label, limits in the wrong order, ...) */
   editError: string | null;
+  /** the tolerance analysis of the manufactured sheet (renderer/state/tolerance.ts) */
+  tolerance: ToleranceState;
 }
 
 export const initialPathForm: PathForm = { drive: '', from: '0', to: '180', step: '1', start: 'solution', rangeTouched: false };
@@ -163,6 +166,7 @@ export const initialState: AppState = {
   notices: [],
   dialog: null,
   editError: null,
+  tolerance: initialTolerance,
 };
 
 export type Action =
@@ -197,7 +201,8 @@ export type Action =
   | { type: 'fit-view' }
   | { type: 'notice'; kind: Notice['kind']; title: string; messages: MessageDto[] }
   | { type: 'dismiss-notice'; id: number }
-  | { type: 'dialog'; dialog: DialogName };
+  | { type: 'dialog'; dialog: DialogName }
+  | ToleranceAction;
 
 let noticeCounter = 0;
 
@@ -365,5 +370,11 @@ export function reducer(state: AppState, action: Action): AppState {
       return { ...state, notices: state.notices.filter((n) => n.id !== action.id) };
     case 'dialog':
       return { ...state, dialog: action.dialog };
+    case 'tolerance-started':
+    case 'tolerance-progress':
+    case 'tolerance-finished':
+    case 'tolerance-stopped':
+    case 'tolerance-choose':
+      return { ...state, tolerance: toleranceReducer(state.tolerance, action) };
   }
 }

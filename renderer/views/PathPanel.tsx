@@ -9,6 +9,7 @@ import type { BranchDto, BranchesResultDto, PathEventDto, PathResultDto, Project
 import type { PathForm, PathState, BranchState, PathTab } from '../state/app';
 import { originWords, type PathFixId, type PathOutcome } from '../state/path-words';
 import { PathCharts, EVENT_LOOK } from './PathCharts';
+import { ToleranceBody, type ToleranceBodyProps } from './ToleranceBody';
 
 export interface PathPanelProps {
   project: ProjectDto;
@@ -24,6 +25,8 @@ export interface PathPanelProps {
   problem: string | null;
   onForm(patch: Partial<PathForm>): void;
   onTab(tab: PathTab): void;
+  /** the tolerance tab's state and actions (renderer/views/ToleranceBody.tsx) */
+  tolerance?: Omit<ToleranceBodyProps, 'project' | 'path' | 'pathRunning' | 'selectedCrease' | 'size'>;
   onCompute(): void;
   onCancel(): void;
   onFix(id: PathFixId): void;
@@ -168,13 +171,16 @@ export function PathPanel(props: PathPanelProps) {
     { id: 'charts', title: 'Angles and rates' },
     { id: 'events', title: `Events${result ? ` (${result.events.length})` : ''}` },
     { id: 'branches', title: 'Branches at flat' },
+    ...(props.tolerance ? [{ id: 'tolerance' as const, title: `Tolerance${props.tolerance.tolerance.status === 'running' ? ' …' : ''}` }] : []),
   ];
   const startValue = form.start === 'solution' ? 'solution' : `flat:${form.branchId ?? ''}`;
   // the room left for the two charts: captions, the scrub row and the axes' labels come off the top
   const chartRoom = Math.max(160, size.height - 18 * 2 - 30);
   const heights = { angle: Math.round(chartRoom * 0.54), rate: chartRoom - Math.round(chartRoom * 0.54) };
   let body: ReactNode;
-  if (tab === 'events') body = result ? <EventList result={result} onFollowRay={props.onFollowRay} /> : <p className="hint">Compute a path to see its events.</p>;
+  if (tab === 'tolerance' && props.tolerance) {
+    body = <ToleranceBody {...props.tolerance} project={project} path={result} pathRunning={running} selectedCrease={props.selectedCrease} size={size} />;
+  } else if (tab === 'events') body = result ? <EventList result={result} onFollowRay={props.onFollowRay} /> : <p className="hint">Compute a path to see its events.</p>;
   else if (tab === 'branches') {
     body =
       branches.status === 'done' && branches.result ? (

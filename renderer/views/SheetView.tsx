@@ -21,6 +21,8 @@ export interface SheetViewProps {
   violatingPanels: Set<number>;
   /** creases past a hinge stop, haloed in the past-limit colour */
   violatingCreases?: Set<number>;
+  /** vertices to ring (the tolerance analysis's worst vertices), the ring growing with the share */
+  marks?: { vertex: number; share: number }[];
   onHover(index: number | null): void;
   onSelect(index: number | null): void;
 }
@@ -105,6 +107,24 @@ const Panels = memo(function Panels({ pattern, basePanel }: { pattern: Pattern; 
     </>
   );
 });
+
+/** Rings at the vertices that carry most of the misfit: radius from 1 % to 3 % of the sheet with the share. */
+function MisfitMarks({ pattern, marks, size }: { pattern: Pattern; marks: { vertex: number; share: number }[]; size: number }) {
+  const top = Math.max(...marks.map((m) => m.share), 1e-300);
+  return (
+    <g data-testid="misfit-marks">
+      {marks.map((m) => {
+        const [x, y] = pattern.vertices[m.vertex] ?? [0, 0];
+        const r = size * (0.01 + 0.02 * Math.sqrt(m.share / top));
+        return (
+          <circle key={m.vertex} cx={x} cy={y} r={r} fill={PALETTE.misfit} fillOpacity={0.12} stroke={PALETTE.misfit} strokeWidth={2} vectorEffect="non-scaling-stroke" data-testid="misfit-mark" data-vertex={m.vertex}>
+            <title>{`vertex ${m.vertex}: ${(100 * m.share).toFixed(1)} % of the misfit`}</title>
+          </circle>
+        );
+      })}
+    </g>
+  );
+}
 
 /** Hatch patterns of the base panel and of panels past a hinge stop, in screen pixels (scale: sheet units per pixel). */
 export function HatchDefs({ id, scale = 1 }: { id: string; scale?: number }) {
@@ -311,6 +331,7 @@ export function SheetView(props: SheetViewProps) {
               fill="none"
             />
           ))}
+          {props.marks && props.marks.length > 0 && <MisfitMarks pattern={pattern} marks={props.marks} size={Math.max(w, h)} />}
         </g>
       </svg>
       {drives.length > 0 && (

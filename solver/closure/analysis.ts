@@ -9,6 +9,13 @@ import { applyQt, nullBasisFromQR, pivotedQR, singularValueBounds, solveR11 } fr
 export const DENSE_LIMIT = 700;
 /** Singular values at or below this (the Jacobian's columns are unit folded directions) count as zero. */
 export const RANK_TOLERANCE = 1e-8;
+/**
+ * A pivot of the normal matrix JᵀJ below this fraction of its diagonal counts as zero. Forming JᵀJ squares the
+ * singular values and leaves rounding of ~1e-16·|J|² in every pivot, so the square of RANK_TOLERANCE would sit
+ * at the rounding floor and miss rank drops; 1e-12 (σ ≈ 1e-6 of the column scale) is above it, and such a state
+ * is near-singular anyway (see NEAR_SINGULAR_CONDITION).
+ */
+export const NORMAL_PIVOT_TOLERANCE = 1e-12;
 /** Condition numbers above this get a near-singular warning. */
 export const NEAR_SINGULAR_CONDITION = 1e6;
 
@@ -145,7 +152,7 @@ function sparseAnalysis(problem: ClosureProblem, columns: ArrayLike<number>, dri
   };
   assemble();
   // σ² tolerance relative to the normal matrix; zero pivots mark dependent columns
-  env.factor(RANK_TOLERANCE * RANK_TOLERANCE);
+  env.factor(NORMAL_PIVOT_TOLERANCE);
   const zero = env.zeroPivots.map((k) => env.perm[k]);
   const rank = nc - zero.length;
   // λ_max by power iteration on JᵀJ; λ_min by inverse iteration with the factor (held columns excluded)
@@ -232,7 +239,7 @@ export function estimateCondition(problem: ClosureProblem): { condition: number;
     if (it > 2 && Math.abs(l - lmax) <= 1e-4 * l) { lmax = l; break; }
     lmax = l;
   }
-  env.factor(RANK_TOLERANCE * RANK_TOLERANCE);
+  env.factor(NORMAL_PIVOT_TOLERANCE);
   if (env.zeroPivots.length) return { condition: Infinity, sigmaMin: 0, sigmaMax: Math.sqrt(lmax) };
   const u = new Float64Array(n).map((_, i) => 1 - ((i * 104729) % 17) / 17);
   const z = new Float64Array(n);

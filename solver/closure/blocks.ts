@@ -3,7 +3,7 @@
 // never disagree.
 
 import type { Pattern } from '../types';
-import { inverseLeftJacobian, mat3, rotationVector, vec3 } from '../math/rotation';
+import { axisAngleRotation, inverseLeftJacobian, mat3, multiplyMat3, rotationVector, setIdentity, vec3 } from '../math/rotation';
 
 export interface ClosureSystem {
   readonly blockCount: number;
@@ -17,6 +17,11 @@ export interface ClosureSystem {
   /** pattern vertex of each block */
   readonly blockVertex: Int32Array;
   readonly slotCount: number;
+  /**
+   * Angular defect of each block (2π − Σ sectors, radians), when a vertex is not developable: panels cut
+   * apart whose corners no longer add up to 360°. Absent for a flat sheet (every defect 0).
+   */
+  readonly blockDefect?: Float64Array;
 }
 
 export function buildClosureSystem(pattern: Pattern): ClosureSystem {
@@ -92,6 +97,17 @@ export function evaluateBlock(
       P[row + 2] = a0 * r02 + a1 * r12 + a2 * r22;
     }
   }
+  const defect = sys.blockDefect ? sys.blockDefect[b] : 0;
+  if (defect !== 0) {
+    // walking round a vertex with defect d comes back to the first panel turned by d about the normal:
+    // closure is P = Rz(d), so the residual is log(P·Rz(−d)); a constant right factor leaves ∂r/∂ρ as it is
+    const cd = Math.cos(defect), sd = Math.sin(defect);
+    for (let row = 0; row < 9; row += 3) {
+      const a0 = P[row], a1 = P[row + 1];
+      P[row] = a0 * cd - a1 * sd;
+      P[row + 1] = a0 * sd + a1 * cd;
+    }
+  }
   const phi = s.phi;
   rotationVector(phi, P);
   residual[3 * b] = phi[0];
@@ -132,4 +148,64 @@ export function blockResiduals(sys: ClosureSystem, angles: Float64Array): number
   const out: number[] = [];
   for (let b = 0; b < sys.blockCount; b++) out.push(Math.hypot(r[3 * b], r[3 * b + 1], r[3 * b + 2]));
   return out;
+}
+
+/**
+ * How block b's residual moves with the flat geometry (a manufactured sheet is not the drawn one): ∂r/∂θ_k for
+ * every slot's flat direction angle θ_k into dTheta[3·k..3·k+2] (k over all slots, only block b's are written),
+ * and ∂r/∂d for the block's defect into dDefect[0..2]. Turning crease k's axis in the sheet's plane gives the
+ * left-trivialized derivative A_k·ẑ − A_k·R_k·ẑ (A_k the rotations met before crease k): the difference of the
+ * folded normals of the two panels at the crease; the defect's factor Rz(−d) gives −P·ẑ. Both pass through
+ * J_l⁻¹(r) like ∂r/∂ρ.
+ */
+export function blockGeometryJacobian(
+  sys: ClosureSystem,
+  b: number,
+  angles: Float64Array,
+  dTheta: Float64Array,
+  dDefect: Float64Array,
+  s: ClosureScratch,
+): void {
+  const { prefix, step, next, phi, jinv } = s;
+  setIdentity(prefix);
+  const start = sys.blockStart[b];
+  const end = sys.blockStart[b + 1];
+  for (let k = start; k < end; k++) {
+    const zx = prefix[2], zy = prefix[5], zz = prefix[8];
+    axisAngleRotation(step, sys.slotUx[k], sys.slotUy[k], 0, angles[sys.slotCrease[k]]);
+    multiplyMat3(next, prefix, step);
+    prefix.set(next);
+    dTheta[3 * k] = zx - prefix[2];
+    dTheta[3 * k + 1] = zy - prefix[5];
+    dTheta[3 * k + 2] = zz - prefix[8];
+  }
+  dDefect[0] = -prefix[2];
+  dDefect[1] = -prefix[5];
+  dDefect[2] = -prefix[8];
+  const defect = sys.blockDefect ? sys.blockDefect[b] : 0;
+  if (defect !== 0) {
+    axisAngleRotation(step, 0, 0, 1, -defect);
+    multiplyMat3(next, prefix, step);
+    prefix.set(next);
+  }
+  rotationVector(phi, prefix);
+  inverseLeftJacobian(jinv, phi);
+  const apply = (out: Float64Array, o: number) => {
+    const x = out[o], y = out[o + 1], z = out[o + 2];
+    out[o] = jinv[0] * x + jinv[1] * y + jinv[2] * z;
+    out[o + 1] = jinv[3] * x + jinv[4] * y + jinv[5] * z;
+    out[o + 2] = jinv[6] * x + jinv[7] * y + jinv[8] * z;
+  };
+  for (let k = start; k < end; k++) apply(dTheta, 3 * k);
+  apply(dDefect, 0);
+}
+
+/** The same system with its own slot directions and defects (a perturbed sheet); topology arrays are shared. */
+export function geometryCopy(sys: ClosureSystem): ClosureSystem & { slotUx: Float64Array; slotUy: Float64Array; blockDefect: Float64Array } {
+  return {
+    ...sys,
+    slotUx: Float64Array.from(sys.slotUx),
+    slotUy: Float64Array.from(sys.slotUy),
+    blockDefect: sys.blockDefect ? Float64Array.from(sys.blockDefect) : new Float64Array(sys.blockCount),
+  };
 }

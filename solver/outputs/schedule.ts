@@ -242,17 +242,7 @@ export function* scheduleSteps(pattern: Pattern, opts: ScheduleOptions, hooks: S
   const rows: ScheduleRow[] = states.map((st) => {
     const s = byValue.get(st.position);
     if (!s) return { t: st.t, drive: st.position, driveVelocity: st.velocity, driveAcceleration: st.acceleration, overRate: [], overAcceleration: [], unreachable: endText };
-    const velocities = new Float64Array(n);
-    const accelerations = new Float64Array(n);
-    const overRate: number[] = [], overAcceleration: number[] = [];
-    for (let c = 0; c < n; c++) {
-      velocities[c] = s.rates[c] * st.velocity;
-      accelerations[c] = s.rates[c] * st.acceleration + (s.curvature?.[c] ?? 0) * st.velocity * st.velocity;
-      const lim = limitOf(c);
-      if (lim.maxRate !== undefined && Math.abs(velocities[c]) > lim.maxRate) overRate.push(c);
-      if (lim.maxAcceleration !== undefined && Math.abs(accelerations[c]) > lim.maxAcceleration) overAcceleration.push(c);
-    }
-    return { t: st.t, drive: st.position, driveVelocity: st.velocity, driveAcceleration: st.acceleration, angles: s.angles, velocities, accelerations, maxResidual: s.maxResidual, overRate, overAcceleration };
+    return { t: st.t, drive: st.position, driveVelocity: st.velocity, driveAcceleration: st.acceleration, angles: s.angles, maxResidual: s.maxResidual, ...hingeMotion(s, st, n, limitOf) };
   });
   const checks = yield* peaksBetweenRows(pattern, opts, profile, rows, limitOf, hooks);
   const hinges = summarize(pattern, rows, checks);
@@ -286,6 +276,23 @@ export function* scheduleSteps(pattern: Pattern, opts: ScheduleOptions, hooks: S
     sweep: path,
     status: path.status === 'stopped' ? 'stopped' : path.status === 'failed' ? 'failed' : unreachable ? 'partial' : 'complete',
   };
+}
+
+/**
+ * Every hinge's velocity ρ̇ = r·θ̇ and acceleration ρ̈ = r·θ̈ + r′·θ̇² at a solved sample and a profile state
+ * (r the rate, r′ the curvature), and the hinges over their limits.
+ */
+function hingeMotion(s: SweepSample, st: ProfileState, n: number, limitOf: (c: number) => HingeLimits) {
+  const velocities = new Float64Array(n), accelerations = new Float64Array(n);
+  const overRate: number[] = [], overAcceleration: number[] = [];
+  for (let c = 0; c < n; c++) {
+    velocities[c] = s.rates[c] * st.velocity;
+    accelerations[c] = s.rates[c] * st.acceleration + (s.curvature?.[c] ?? 0) * st.velocity * st.velocity;
+    const lim = limitOf(c);
+    if (lim.maxRate !== undefined && Math.abs(velocities[c]) > lim.maxRate) overRate.push(c);
+    if (lim.maxAcceleration !== undefined && Math.abs(accelerations[c]) > lim.maxAcceleration) overAcceleration.push(c);
+  }
+  return { velocities, accelerations, overRate, overAcceleration };
 }
 
 function summarize(pattern: Pattern, rows: ScheduleRow[], checks: ProfileCheck[]): HingeSummary[] {
@@ -344,17 +351,7 @@ function* peaksBetweenRows(
     }, { shouldStop: hooks.shouldStop });
     const s = res.samples[0];
     if (!s) return undefined;
-    const n = pattern.creases.length;
-    const velocities = new Float64Array(n), accelerations = new Float64Array(n);
-    const overRate: number[] = [], overAcceleration: number[] = [];
-    for (let c = 0; c < n; c++) {
-      velocities[c] = s.rates[c] * st.velocity;
-      accelerations[c] = s.rates[c] * st.acceleration + (s.curvature?.[c] ?? 0) * st.velocity * st.velocity;
-      const lim = limitOf(c);
-      if (lim.maxRate !== undefined && Math.abs(velocities[c]) > lim.maxRate) overRate.push(c);
-      if (lim.maxAcceleration !== undefined && Math.abs(accelerations[c]) > lim.maxAcceleration) overAcceleration.push(c);
-    }
-    return { t, drive: st.position, reason: 'peak', velocities, accelerations, maxResidual: s.maxResidual, overRate, overAcceleration };
+    return { t, drive: st.position, reason: 'peak', maxResidual: s.maxResidual, ...hingeMotion(s, st, pattern.creases.length, limitOf) };
   };
   // 1. both sides of every phase boundary of the profile
   const eps = 1e-9 * T;

@@ -55,7 +55,7 @@ export function num(x: number | undefined): string {
   return String(r === 0 ? 0 : r);
 }
 
-function jsonNum(x: number | undefined): number | null {
+export function jsonNum(x: number | undefined): number | null {
   if (x === undefined || !Number.isFinite(x)) return null;
   const r = +x.toPrecision(15);
   return r === 0 ? 0 : r;
@@ -76,7 +76,7 @@ function listed(pattern: Pattern, opts: { creases?: number[] }): number[] {
 }
 
 /** The header's first lines: what the table is and which file it comes from. */
-function sourceMeta(format: string, header: TableHeader) {
+export function sourceMeta(format: string, header: TableHeader) {
   return { format, version: TABLE_VERSION, pattern: header.patternName, file: header.file, fileSha256: header.fileSha256 };
 }
 
@@ -86,7 +86,7 @@ function accuracyMeta(largest: number) {
 }
 
 /** The header's last lines: program, date, the command that reproduces every number, and the cautions. */
-function provenanceMeta(header: TableHeader) {
+export function provenanceMeta(header: TableHeader) {
   return { program: `hingeplan ${header.version}`, date: header.date, command: header.command, cautions: CAUTIONS };
 }
 
@@ -95,7 +95,7 @@ function byLabel(pattern: Pattern, cols: number[], values: ArrayLike<number>, f:
   return Object.fromEntries(cols.map((c) => [pattern.creases[c].label, f(values[c])]));
 }
 
-function metadataLines(meta: Record<string, string | number | boolean | null>): string {
+export function metadataLines(meta: Record<string, string | number | boolean | null>): string {
   // one "# key: value" line each; values never carry line breaks
   return Object.entries(meta).map(([k, v]) => `# ${k}: ${String(v ?? '').replace(/[\r\n]+/g, ' ')}`).join('\n') + '\n';
 }
@@ -109,7 +109,7 @@ function eventsJson(pattern: Pattern, events: SweepEvent[]) {
   }));
 }
 
-function holdsText(pattern: Pattern, holds: { crease: number; value: number }[]): string {
+export function holdsText(pattern: Pattern, holds: { crease: number; value: number }[]): string {
   return holds.map((h) => `${pattern.creases[h.crease].label}=${num(h.value * DEG)}`).join(' ') || 'none';
 }
 

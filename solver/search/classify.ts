@@ -3,7 +3,7 @@
 
 import type { Drive, Family, Pattern, Solution } from '../types';
 import { ClosureProblem } from '../closure/newton';
-import { analyzeState, estimateCondition, RANK_TOLERANCE, type LocalAnalysis } from '../closure/analysis';
+import { analyzeState, estimateCondition, NORMAL_PIVOT_TOLERANCE, type LocalAnalysis } from '../closure/analysis';
 import { flatCone } from '../paths/cone';
 import { wrapAngle } from '../math/rotation';
 import { orderedRates } from './ordered-rates';
@@ -202,7 +202,7 @@ function sparseNullVectors(problem: ClosureProblem, angles: Float64Array): Float
   problem.evaluate(angles);
   const env = problem.normalMatrix();
   problem.assembleNormal(env, new Float64Array(n), 0);
-  env.factor(RANK_TOLERANCE * RANK_TOLERANCE);
+  env.factor(NORMAL_PIVOT_TOLERANCE);
   const zero = env.zeroPivots.map((k) => env.perm[k]);
   const { blockStart, slotCrease, blockCount } = problem.sys;
   const J = problem.jacobian;

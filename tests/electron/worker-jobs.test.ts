@@ -204,6 +204,26 @@ describe('every job can be cancelled by its request id', () => {
     expect(waited).toBeLessThan(3500);
   });
 
+  it('follows the path on screen in a tolerance run even after the long lane lost it (the worker was replaced)', async () => {
+    const pathId = await couponPath('path-tolerance');
+    // a stopped job that does not poll (a full 40 × 40 solve, seconds long) has its worker replaced: the
+    // paths that worker kept are gone
+    const restarts: string[] = [];
+    expect(await call('pattern:set', { key: 'big-long', source: big.source })).toMatchObject({ ok: true });
+    // the long lane builds the pattern first (a quick job on it), so the solve itself is what runs when cancelled
+    expect(await solver.run('long', 'shape', { key: 'big-long', anglesDeg: big.source.edges.map(() => 0) })).toMatchObject({ status: 'done' });
+    const solving = solver.run('long', 'solve', { key: 'big-long', drives: [{ crease: big.drives[0].crease, angleDeg: 30 }] }, { requestId: 'long-solve' });
+    const lane = solver.lanes.long as unknown as { options: { onRestart?: (r: string) => void } };
+    lane.options.onRestart = (why) => restarts.push(why);
+    await new Promise((r) => setTimeout(r, 300));
+    solver.cancel('long-solve');
+    expect(await solving).toEqual({ status: 'cancelled' });
+    for (let i = 0; i < 200 && !restarts.length; i++) await new Promise((r) => setTimeout(r, 20));
+    expect(restarts).toEqual(['a stopped job did not return in time']);
+    const r = await call('tolerance', { requestId: 'tol-after', key: 'coupon', options: { pathId, everyDeg: 30, positionTol: 0.05, samples: 8, seed: 3 } });
+    expect(r).toMatchObject({ ok: true, value: { status: 'done', value: { driveLabel: 'c0', samples: 8 } } });
+  });
+
   it('writes a table into its file in pieces as they come; a full disk stops the job and keeps the old file', async () => {
     const pathId = await couponPath('path-pieces');
     const dir = path.join(tmp, 'pieces');

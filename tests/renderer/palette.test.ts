@@ -60,9 +60,9 @@ describe('the fold-angle scale', () => {
 });
 
 describe('the roles beside the scale', () => {
-  const roles = { pastLimit: PALETTE.pastLimit, base: PALETTE.base, drive: PALETTE.drive } as const;
+  const roles = { pastLimit: PALETTE.pastLimit, base: PALETTE.base, drive: PALETTE.drive, misfit: PALETTE.misfit } as const;
 
-  it('past a limit, base panel and drive differ from each other under every vision', () => {
+  it('past a limit, base panel, drive and misfit differ from each other under every vision', () => {
     const names = Object.keys(roles) as (keyof typeof roles)[];
     for (let i = 0; i < names.length; i++)
       for (let j = i + 1; j < names.length; j++)
@@ -82,7 +82,7 @@ describe('the roles beside the scale', () => {
 
   it('are the same colours the style sheet uses', () => {
     const css = readFileSync(path.resolve(__dirname, '../../renderer/styles.css'), 'utf8');
-    const vars: Record<string, string> = { mountain: '--mountain', valley: '--valley', flat: '--flat', pastLimit: '--past-limit', base: '--base', drive: '--drive' };
+    const vars: Record<string, string> = { mountain: '--mountain', valley: '--valley', flat: '--flat', pastLimit: '--past-limit', base: '--base', drive: '--drive', misfit: '--misfit' };
     for (const [role, name] of Object.entries(vars)) {
       const m = css.match(new RegExp(`${name}:\\s*(#[0-9a-fA-F]{6})`));
       expect(m?.[1]?.toLowerCase(), name).toBe(formatHex(PALETTE[role as keyof typeof PALETTE]));
