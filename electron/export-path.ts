@@ -15,12 +15,16 @@ export type ExportSweep = z.output<typeof ExportSweepSchema>;
 
 /**
  * The stored path of a sweep request for a table. A schedule solves its own rows and needs only the
- * request (`samples: false`); an angle table needs the samples, computed here when this worker lacks them.
+ * request as solved (`samples: false`); an angle table needs the samples, computed here when this worker
+ * lacks them.
  */
 export function storedPathFor(state: JobState, pattern: Pattern, key: string, sweep: ExportSweep | undefined, samples: boolean, ctx?: JobContext): StoredPath {
   if (!sweep) throw new JobFailure('no-path', 'compute a path first: tables are written from the computed path');
   if (sweep.key !== key) throw new JobFailure('path-unknown', 'the computed path belongs to an earlier state of the pattern; compute it again');
-  if (!samples) {
+  // a start on a branch through flat is solved as that branch from flat, and the request changes with it
+  // (the table's command names the branch): only solving the path tells, so such a request is solved here
+  const rewritten = !!(sweep.options.startAnglesDeg && sweep.options.viaFlatBranch);
+  if (!samples && !rewritten) {
     const drive = resolveOrFail(pattern, [{ crease: sweep.options.drive, angleDeg: sweep.options.fromDeg }]);
     if (drive.failed) throw new JobFailure('bad-drive', drive.messages.map((m) => m.text).join(' '));
     return { key, driveCrease: drive.drives[0].crease, raw: undefined, request: sweep.options };
