@@ -14,7 +14,14 @@ export function anglesByLabel(pattern: Pattern, angles: Float64Array): Record<st
   return out;
 }
 
-export function solutionJson(pattern: Pattern, s: Solution, index: number) {
+/** What a command checked on each solution: contacts (panel pairs) and the drives' holding torque (N·m). */
+export interface SolutionChecks {
+  contacts?: [number, number][];
+  stackedPanels?: [number, number][];
+  torque?: Map<number, number>;
+}
+
+export function solutionJson(pattern: Pattern, s: Solution, index: number, checks?: SolutionChecks) {
   // per free crease (movable, not a drive): its rate against each drive, degrees per degree
   const sensitivity: Record<string, Record<string, number>> = {};
   for (const c of pattern.creases) {
@@ -35,6 +42,9 @@ export function solutionJson(pattern: Pattern, s: Solution, index: number) {
     ...(s.stacked?.length ? { stacked: s.stacked.map((c) => pattern.creases[c].label) } : {}),
     sensitivity,
     vertexResiduals: Object.fromEntries(pattern.interiorVertices.map((iv, i) => [String(iv.vertex), s.vertexResiduals[i]])),
+    ...(checks?.contacts ? { contacts: checks.contacts } : {}),
+    ...(checks?.stackedPanels?.length ? { stackedPanels: checks.stackedPanels } : {}),
+    ...(checks?.torque ? { torque: Object.fromEntries([...checks.torque].map(([c, v]) => [pattern.creases[c].label, v])) } : {}),
   };
 }
 
@@ -42,14 +52,15 @@ export function messageJson(m: Message) {
   return { severity: m.severity, code: m.code, text: m.text, ...(m.where ? { where: m.where } : {}) };
 }
 
-export function reportJson(pattern: Pattern, drives: Drive[], report: SolveReport) {
+export function reportJson(pattern: Pattern, drives: Drive[], report: SolveReport, checks?: { contact: { checked: boolean; clearance: number }; solutions: SolutionChecks[]; torque: boolean }) {
   const labels = (cs: number[] | undefined) => cs?.map((c) => pattern.creases[c].label);
   return {
     status: report.status,
     dof: report.dof,
     patternDof: finite(report.patternDof),
     drives: Object.fromEntries(drives.map((d) => [pattern.creases[d.crease].label, d.value * DEG])),
-    solutions: report.solutions.map((s, i) => solutionJson(pattern, s, i + 1)),
+    solutions: report.solutions.map((s, i) => solutionJson(pattern, s, i + 1, checks?.solutions[i])),
+    ...(checks ? { contact: checks.contact, ...(checks.torque ? { torqueUnits: 'N·m' } : {}) } : {}),
     families: report.families.map((f) => ({
       dof: f.dof,
       representative: solutionJson(pattern, f.representative, 0).angles,

@@ -50,6 +50,15 @@ export type PatternSourceDto = z.output<typeof PatternSourceSchema>;
 export const DriveSpecSchema = z.object({ crease: z.string().min(1).max(10_000), angleDeg: finite });
 export type DriveSpec = z.output<typeof DriveSpecSchema>;
 
+/** Loads for the drive torque (SI units; springs by crease label, rest angle in degrees). */
+export const LoadsSchema = z.object({
+  arealDensity: finite.min(0).optional(),
+  gravity: z.tuple([finite, finite, finite]).optional(),
+  panelMasses: z.array(z.object({ panel: z.number().int().min(0), mass: finite.min(0) })).max(250_000).optional(),
+  springs: z.array(z.object({ crease: z.string().min(1).max(200), stiffness: finite.min(0), rest: finite.min(-180).max(180).optional() })).max(250_000).optional(),
+});
+export type LoadsDto = z.output<typeof LoadsSchema>;
+
 export const ProjectSchema = z.object({
   source: PatternSourceSchema,
   drives: z.array(DriveSpecSchema).max(10_000),
@@ -57,6 +66,8 @@ export const ProjectSchema = z.object({
   notes: z.string().max(1_000_000).optional(),
   /** a folded state to start from, radians per crease (from a FOLD file's fold angles) */
   foldAngles: z.array(finite).optional(),
+  /** loads for the static drive torque */
+  loads: LoadsSchema.optional(),
   /** what a FOLD file carried that the project does not use, kept to be written back */
   fold: z.object({ extra: z.record(z.string(), z.unknown()), z: finite.optional() }).optional(),
 });
@@ -250,7 +261,7 @@ export type BranchDto = z.output<typeof BranchSchema>;
 export const BranchesResultSchema = z.object({ branches: z.array(BranchSchema), messages: z.array(MessageSchema) });
 export type BranchesResultDto = z.output<typeof BranchesResultSchema>;
 
-export const PathEventTypeSchema = z.enum(['turning-point', 'branch-point', 'hinge-limit', 'folded-flat', 'corrector-failed']);
+export const PathEventTypeSchema = z.enum(['turning-point', 'branch-point', 'hinge-limit', 'folded-flat', 'corrector-failed', 'contact']);
 
 export const PathSampleSchema = z.object({
   driveDeg: finite,
@@ -260,6 +271,12 @@ export const PathSampleSchema = z.object({
   rates: z.array(maybeInfinite),
   condition: maybeInfinite,
   nearSingular: z.boolean(),
+  /** at or past the first contact of two panels */
+  contact: z.boolean().optional(),
+  /** pairs of panels (indices) in contact at this sample */
+  contacts: z.array(z.tuple([z.number().int(), z.number().int()])).optional(),
+  /** static holding torque per drive: [crease index, N·m] */
+  torque: z.array(z.tuple([z.number().int(), finite])).optional(),
 });
 export type PathSampleDto = z.output<typeof PathSampleSchema>;
 
@@ -271,6 +288,10 @@ export const PathEventSchema = z.object({
   /** at a branch point: the rays leaving it, and the state there (degrees per crease) */
   branches: z.array(BranchSchema).optional(),
   anglesDeg: z.array(finite).optional(),
+  /** contact: the two panels, a point of the contact (base panel's frame) and their distance there */
+  panels: z.tuple([z.number().int(), z.number().int()]).optional(),
+  point: z.tuple([finite, finite, finite]).optional(),
+  distance: finite.optional(),
 });
 export type PathEventDto = z.output<typeof PathEventSchema>;
 
@@ -289,6 +310,10 @@ export const PathResultSchema = z.object({
   messages: z.array(MessageSchema),
   /** the sweep stopped early (cancelled or failed); samples hold what was computed */
   complete: z.boolean(),
+  /** what the path checked for contact */
+  contact: z.object({ checked: z.boolean(), clearance: finite.min(0) }).optional(),
+  /** per drive: [crease index, peak torque N·m, drive value there in degrees] */
+  peakTorque: z.array(z.tuple([z.number().int(), finite, finite])).optional(),
   /** complete; partial: ended early (an event says why); stopped: cancelled; failed: no start (a message says why) */
   status: z.enum(['complete', 'partial', 'stopped', 'failed']).optional(),
 });
@@ -333,6 +358,12 @@ export const SweepOptionsSchema = z.object({
   branchId: z.string().max(200).optional(),
   /** start from this state (the current solution) instead of the flat sheet */
   startAnglesDeg: z.array(finite).optional(),
+  /** check panel contact at every sample (default on), closer than `clearance` (file units) counting */
+  contact: z.boolean().default(true),
+  clearance: finite.min(0).max(1e9).default(0),
+  /** the document's units and loads, for the drive torque (no loads: no torque) */
+  units: z.string().max(50).optional(),
+  loads: LoadsSchema.optional(),
   /**
    * the start state is a solution of the drives: when nothing else is held at a non-zero value and the
    * state lies on a branch through the flat sheet, follow that branch from flat (the same path, solved

@@ -53,6 +53,8 @@ import { scheduleSteps, type HingeLimits, type ScheduleOptions } from '../solver
 import { appTableHeader, scheduleCommand, tableCommand } from './table-header';
 import type { SweepOptionsSchema } from './contract';
 import type { JobContext } from './worker-protocol';
+import { finishChecks } from '../solver/outputs/path-physics';
+import { pathChecks } from './path-checks';
 import { z } from 'zod';
 
 const DEG = 180 / Math.PI;
@@ -309,7 +311,7 @@ export function exportJob(state: JobState, payload: unknown, ctx?: JobContext): 
       const stored = storedPathFor(state, pattern, req.key, req.sweep, req.kind === 'angle-table', ctx);
       const file = req.file ?? { name: 'pattern.hingeplan.json' };
       const header = (command: string) => appTableHeader(pattern, req.project, file, req.version ?? 'unknown', command);
-      const table = req.kind === 'angle-table' ? writeAngleTable(pattern, stored, req.options, file.name, header) : writeSchedule(pattern, stored, req.options, file.name, header, ctx);
+      const table = req.kind === 'angle-table' ? writeAngleTable(pattern, stored, req.options, file.name, header, req.project) : writeSchedule(pattern, stored, req.options, file.name, header, req.project, ctx);
       return deliver(table.data, table.extension, req.stream, ctx);
     }
   }
@@ -334,7 +336,7 @@ function heldDrives(pattern: Pattern, path: StoredPath): Drive[] {
   return r.drives;
 }
 
-function writeAngleTable(pattern: Pattern, path: StoredPath, options: Options, fileName: string, header: (command: string) => TableHeader): ExportData {
+function writeAngleTable(pattern: Pattern, path: StoredPath, options: Options, fileName: string, header: (command: string) => TableHeader, project: ProjectDto): ExportData {
   const creases = chosenCreases(pattern, options.creases);
   const columns = creases?.length ?? pattern.creases.filter((c) => c.assignment !== 'B').length;
   checkAngleTableSize((path.raw as SweepResult).samples.length, columns, options.rates);
@@ -342,6 +344,7 @@ function writeAngleTable(pattern: Pattern, path: StoredPath, options: Options, f
     format: options.format,
     rates: options.rates,
     ...(creases ? { creases } : {}),
+    ...(project.units ? { units: project.units } : {}),
   });
   return { data: text, extension: options.format };
 }
@@ -364,7 +367,7 @@ function hingeLimitsByCrease(pattern: Pattern, options: Options, global: HingeLi
  * The schedule over the path's drive range, solved anew at its time rows (the profile's drive values, as
  * `hingeplan schedule` does), never picked or interpolated from the path's samples.
  */
-function writeSchedule(pattern: Pattern, path: StoredPath, options: Options, fileName: string, header: (command: string) => TableHeader, ctx?: JobContext): ExportData {
+function writeSchedule(pattern: Pattern, path: StoredPath, options: Options, fileName: string, header: (command: string) => TableHeader, project: ProjectDto, ctx?: JobContext): ExportData {
   const sweep = path.request;
   const limits: HingeLimits = {
     ...(options.maxRateDegPerS !== undefined ? { maxRate: options.maxRateDegPerS * RAD } : {}),
@@ -390,11 +393,23 @@ function writeSchedule(pattern: Pattern, path: StoredPath, options: Options, fil
     limits,
     hingeLimits: hingeLimitsByCrease(pattern, options, limits),
   };
-  const result = runSteps(scheduleSteps(pattern, scheduleOptions, { onProgress: (done, total) => ctx?.progress(done, total, 'schedule'), shouldStop: () => ctx?.shouldStop() ?? false }));
+  // the document's units and loads, as the command in the header reads them from the file
+  const { checks } = pathChecks(pattern, { ...sweep, units: project.units, loads: project.loads }, path.driveCrease, holds);
+  const result = runSteps(scheduleSteps(pattern, scheduleOptions, {
+    onProgress: (done, total) => ctx?.progress(done, total, 'schedule'),
+    shouldStop: () => ctx?.shouldStop() ?? false,
+    ...(checks ? {
+      onSample: (s) => {
+        const c = checks.observe({ drive: s.drive, angles: s.angles, rates: s.rates });
+        s.checks = { contact: c.contact, contacts: c.contacts, ...(c.torque ? { torque: c.torque } : {}) };
+      },
+    } : {}),
+  }));
+  if (checks && result.sweep) finishChecks(result.sweep, checks);
   if (result.status === 'failed' && !result.rows.length) {
     throw new JobFailure(result.messages[0]?.code ?? 'schedule-failed', result.messages.map((m) => m.text).join(' ') || 'the schedule could not be solved');
   }
-  const text = scheduleTable(pattern, result, header(scheduleCommand(pattern, fileName, sweep, options)), path.driveCrease, holds, options.format);
+  const text = scheduleTable(pattern, result, header(scheduleCommand(pattern, fileName, sweep, options)), path.driveCrease, holds, options.format, undefined, project.units);
   return { data: text, extension: options.format };
 }
 

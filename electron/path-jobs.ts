@@ -4,12 +4,14 @@
 
 import { z } from 'zod';
 import type { Drive, Pattern } from '../solver/types';
-import { sweep, type SweepEvent, type SweepOptions, type SweepResult } from '../solver/paths/sweep';
+import { sweep, type SweepEvent, type SweepOptions, type SweepResult, type SweepSample } from '../solver/paths/sweep';
 import { flatBranches, type Branch, type BranchAnalysis } from '../solver/paths/branches';
 import { DriveSpecSchema, SweepOptionsSchema, finiteOrNull, type BranchDto, type BranchesResultDto, type PathResultDto } from './contract';
 import { JobFailure, type JobContext } from './worker-protocol';
 import { patternFor, resolveOrFail, type JobState, type StoredPath } from './jobs';
 import { checkPathSize } from './work-limits';
+import { finishChecks } from '../solver/outputs/path-physics';
+import { pathChecks } from './path-checks';
 import { matchesAssignment } from '../solver/search/solve';
 
 const DEG = 180 / Math.PI;
@@ -39,6 +41,14 @@ export function branchesJob(state: JobState, payload: unknown): BranchesResultDt
   return branchesDto(flatBranches(pattern, { drive: first?.crease, held: rest.map((d) => d.crease) }));
 }
 
+/** The sweep hook that runs a path's checks on every sample. */
+function checksHook(checks: NonNullable<ReturnType<typeof pathChecks>['checks']>) {
+  return (s: SweepSample) => {
+    const c = checks.observe({ drive: s.drive, angles: s.angles, rates: s.rates });
+    s.checks = { contact: c.contact, contacts: c.contacts, ...(c.torque ? { torque: c.torque } : {}) };
+  };
+}
+
 function eventDto(e: SweepEvent) {
   return {
     type: e.type,
@@ -46,6 +56,8 @@ function eventDto(e: SweepEvent) {
     text: e.text,
     ...(e.crease !== undefined ? { crease: e.crease } : {}),
     ...(e.branches?.length ? { branches: e.branches.map(branchDto), anglesDeg: Array.from(e.angles, (a) => a * DEG) } : {}),
+    ...(e.panels ? { panels: e.panels, point: e.point!, distance: e.distance! } : {}),
+    ...(e.type === 'contact' ? { anglesDeg: Array.from(e.angles, (a) => a * DEG) } : {}),
   };
 }
 
@@ -64,10 +76,15 @@ export function pathDto(pattern: Pattern, pathId: string, result: SweepResult, n
       rates: Array.from(s.rates, finiteOrNull),
       condition: finiteOrNull(s.condition),
       nearSingular: s.nearSingular,
+      ...(s.checks?.contact ? { contact: true } : {}),
+      ...(s.checks?.contacts.length ? { contacts: s.checks.contacts } : {}),
+      ...(s.checks?.torque ? { torque: [...s.checks.torque] } : {}),
     })),
     events: result.events.map(eventDto),
     messages: result.messages.map((m) => ({ severity: m.severity, code: m.code, text: m.text, ...(m.where ? { where: m.where } : {}) })),
     complete: result.status === 'complete',
+    ...(result.checks ? { contact: result.checks.contact } : {}),
+    ...(result.checks?.peakTorque ? { peakTorque: [...result.checks.peakTorque].map(([c, p]) => [c, p.value, p.at * DEG] as [number, number, number]) } : {}),
     status: result.status,
   };
 }
@@ -213,6 +230,14 @@ export function computePath(pattern: Pattern, key: string, o: z.output<typeof Sw
     ...(samples ? { samples: samples.map((d) => d * RAD) } : { step: o.stepDeg * RAD }),
     holds: held.drives,
   };
+  // every sweep run here gets checks of its own (contact, and torque with the document's loads)
+  const run = (opts: SweepOptions): SweepResult => {
+    const { checks, messages } = pathChecks(pattern, o, base.drive, held.drives);
+    const r = sweep(pattern, opts, checks ? { ...hooks, onSample: checksHook(checks) } : hooks);
+    if (checks) finishChecks(r, checks);
+    r.messages.push(...messages);
+    return r;
+  };
   let request = o;
   let result: SweepResult | undefined;
   if (o.startAnglesDeg && o.viaFlatBranch && held.drives.every((h) => h.value === 0)) {
@@ -223,7 +248,7 @@ export function computePath(pattern: Pattern, key: string, o: z.output<typeof Sw
     if (side !== 0 && o.fromDeg * side >= 0 && o.toDeg * side >= 0) {
       const b = branchOfState(pattern, d, start, new Set(held.drives.map((h) => h.crease)));
       if (b || matchesAssignment(pattern, start)) {
-        const flat = sweep(pattern, { ...base, ...(b ? { branch: b.id } : {}) }, hooks);
+        const flat = run({ ...base, ...(b ? { branch: b.id } : {}) });
         // a path stopped by the person stays stopped; one that misses the solution is not the solution's path
         if (flat.status === 'stopped' || passesThrough(flat, start)) {
           result = flat;
@@ -237,6 +262,6 @@ export function computePath(pattern: Pattern, key: string, o: z.output<typeof Sw
     ...(request.branchId !== undefined && /^\d+$/.test(request.branchId) ? { branch: Number(request.branchId) } : {}),
     ...(request.startAnglesDeg ? { start: Float64Array.from(request.startAnglesDeg, (a) => a * RAD) } : {}),
   };
-  result ??= sweep(pattern, options, hooks);
+  result ??= run(options);
   return { key, driveCrease: result.drive, raw: result, request, held: held.drives };
 }

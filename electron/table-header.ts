@@ -69,10 +69,17 @@ export function tableCommand(pattern: Pattern, fileName: string, sweep: Sweep, o
     ...holdWords(sweep.held),
     ...branchWords(sweep),
     ...(sweep.startAnglesDeg ? ['--start', '/dev/stdin'] : []),
+    ...contactWords(sweep),
     '--format', options.format,
     ...(options.rates ? ['--rates'] : []),
   ].map(shellWord).join(' ');
   return sweep.startAnglesDeg ? `printf '%s\\n' ${shellWord(startJson(pattern, sweep.startAnglesDeg))} | ${words}` : words;
+}
+
+/** The path's contact check as options (the loads come from the file's own "loads"). */
+function contactWords(sweep: Sweep): string[] {
+  if (sweep.contact === false) return ['--contact', 'off'];
+  return sweep.clearance ? ['--clearance', String(sweep.clearance)] : [];
 }
 
 /**
@@ -97,6 +104,7 @@ export function scheduleCommand(pattern: Pattern, fileName: string, sweep: Sweep
     ...limitWords,
     ...holdWords(sweep.held),
     ...branchWords(sweep),
+    ...contactWords(sweep),
     ...(sweep.startAnglesDeg ? ['--start', '/dev/stdin'] : []),
     '--format', options.format,
   ].map(shellWord).join(' ');

@@ -8,7 +8,7 @@ import type { Controller } from './controller';
 import { useStore } from './state/store';
 import { canRedo, canUndo } from './state/history';
 import { isDirty } from './state/app';
-import { hingeRows, hingeTableCsv, shownState } from './state/display';
+import { contactPanels, hingeRows, hingeTableCsv, shownState } from './state/display';
 import { pathOutcome } from './state/path-words';
 import { renameCrease, setBasePanel, setCreaseLimit, setPanelName, removeDrive, creaseIndexByLabel, limitDeg, panelName } from './state/document';
 import { derivePattern, limitViolations, shapeFor } from './geometry';
@@ -53,6 +53,7 @@ export function App({ controller }: { controller: Controller }) {
     [project, pattern, shown.anglesDeg],
   );
   const rows = useMemo(() => (project ? hingeRows(project, shown) : []), [project, shown]);
+  const touching = useMemo(() => contactPanels(shown, pattern), [shown, pattern]);
   // the gap check walks the whole shape: not while scrubbing, where every sample is a solved state anyway
   const mismatch = useMemo(
     () => (pattern && project && shown.source !== 'path' ? shapeFor(pattern, shown.anglesDeg, project.source.basePanel).maxMismatch : undefined),
@@ -194,6 +195,7 @@ export function App({ controller }: { controller: Controller }) {
                   selectedCrease={selected}
                   hoverCrease={state.hoverCrease}
                   violatingPanels={violations.panels}
+                  contactPanels={touching}
                   violatingCreases={violations.creases}
                   marks={state.pathTab === 'tolerance' ? state.tolerance.result?.worstVertices : undefined}
                   onHover={(i) => dispatch({ type: 'hover-crease', index: i })}
@@ -209,6 +211,7 @@ export function App({ controller }: { controller: Controller }) {
                   caption={`Folded: ${shown.caption}`}
                   selectedCrease={selected}
                   violatingPanels={violations.panels}
+                  contactPanels={touching}
                   ghost={state.view.ghost}
                   labels={state.view.labels}
                   fitRequest={state.view.fitRequest}

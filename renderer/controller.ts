@@ -450,6 +450,12 @@ export class Controller {
       branchId = request.branchId ?? (start === 'flat' ? s.pathForm.branchId : undefined);
       origin = { kind: 'flat', ...(branchId ? { branchId } : {}) };
     }
+    const form = this.state.pathForm;
+    const clearance = Number(form.clearance.trim().replace(',', '.'));
+    if (form.contact && !(Number.isFinite(clearance) && clearance >= 0)) {
+      this.store.dispatch({ type: 'notice', kind: 'warning', title: 'The path was not computed', messages: [{ severity: 'warning', code: 'bad-clearance', text: `The clearance must be a length of 0 or more${project.units ? ` (${project.units})` : ''}.` }] });
+      return;
+    }
     const requestId = newId('sweep');
     this.store.dispatch({ type: 'path-started', requestId, drive, branchId, origin, asked: { drive, fromDeg, toDeg, stepDeg } });
     const key = await this.ensurePattern(project);
@@ -467,6 +473,10 @@ export class Controller {
       ...(startAnglesDeg ? { startAnglesDeg } : {}),
       // a solution's path runs along its branch from flat when it lies on one (exact, and `--branch` repeats it)
       ...(startAnglesDeg && origin.kind !== 'ray' ? { viaFlatBranch: true } : {}),
+      contact: form.contact,
+      clearance: form.contact ? clearance : 0,
+      ...(project.units ? { units: project.units } : {}),
+      ...(project.loads ? { loads: project.loads } : {}),
     };
     const r = await this.api.sweep({ requestId, key, options });
     if (!r.ok) {

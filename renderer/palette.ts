@@ -31,6 +31,8 @@ export const PALETTE = {
   boundary: '#3b3934',
   /** a crease held flat (dotted) */
   heldFlat: '#8c877c',
+  /** panels in contact with another (passing through it, or closer than the clearance): sheet and 3D */
+  contact: '#d4007f',
   /**
    * the tolerance analysis's misfit: its curve and the rings at the vertices that carry it. A vivid violet,
    * the colour farthest from the scale and the other roles under every common deficiency that is not near

@@ -40,7 +40,9 @@ function sunshadePanel(): Project {
     'alpha = 70 degrees. Labels: s{i}_{j} straight segment from vertex (i, j) to (i+1, j); z{i}_{j} zigzag segment from (i, j) to (i, j+1). ' +
     'One degree of freedom once folded: one zigzag drive (z6_4, valley, 60 degrees) fixes it; at the flat state itself the sheet can also leave ' +
     'along single straight crease lines, so the solver may list several solutions: pick the one that matches the assignment. ' +
+    'Loads for the holding torque: 1 mm aluminium sheet, 2.7 kg/m2, under standard gravity with the base panel flat. ' +
     CAUTIONS;
+  p.loads = { arealDensity: 2.7 };
   return p;
 }
 

@@ -33,6 +33,12 @@ export { gridSweep, gridSteps, type GridOptions, type GridResult, type GridNode 
 export { angleTable, scheduleTable, followTable, gridTable, type TableHeader, type TableFormat } from './outputs/table';
 export { planPropagation, propagate, degree4States } from './paths/propagate';
 export { sha256 } from './outputs/sha256';
+export { planShape, placePanels, placementMismatch, type ShapePlan } from './outputs/placement';
+export { ContactChecker, checkContacts, contactPairs, STACK_ANGLE, type ContactOptions, type ContactReport, type PanelContact } from './outputs/contact';
+export { StatesBetween, refineFirstContact, contactText, CONTACT_REFINEMENT, type PathState, type FirstContact } from './outputs/contact-path';
+export { LoadModel, metresPerUnit, ratesFromSensitivity, resolveLoads, STANDARD_GRAVITY, type LoadSpec, type Spring, type LoadOverrides } from './outputs/torque';
+export { PathChecks, finishChecks, checkFollowedRows, type PathChecksOptions, type StateChecks, type ChecksSummary, type ContactEvent } from './outputs/path-physics';
+export { readLoads, type FileLoads } from './formats/loads';
 export {
   toleranceSteps, nominalSteps, toleranceResult, checkToleranceOptions, checkToleranceSize,
   type ToleranceOptions, type ToleranceResult, type ToleranceStatus,

@@ -11,6 +11,9 @@ import { printMessages, type Loaded } from '../load';
 import type { Io } from '../io';
 import { VERSION } from '../version';
 import { EXIT } from '../exit-codes';
+import { LoadModel, resolveLoads, type LoadOverrides, type Spring } from '../../solver/outputs/torque';
+import { PathChecks } from '../../solver/outputs/path-physics';
+import type { SweepSample } from '../../solver/paths/sweep';
 
 const RAD = Math.PI / 180;
 
@@ -236,4 +239,97 @@ export function joinNegativeNumbers(argv: string[], options: OptionSpec): string
     } else out.push(a);
   }
   return out;
+}
+
+// ---------------------------------------------------------------------------------------------------------
+// contact and torque along a path
+
+export const checksOptions: OptionSpec = {
+  contact: { type: 'string' },
+  clearance: { type: 'string' },
+  'stop-at': { type: 'string' },
+  'areal-density': { type: 'string' },
+  gravity: { type: 'string' },
+  spring: { type: 'string', multiple: true },
+};
+
+export const CHECKS_HELP = `  --contact on|off       check every pair of panels for contact at every state (default on); the first
+                         contact is refined to 0.01° and reported as an event, states past it are flagged.
+  --clearance <length>   report panels closer than this (file units; default 0: only panels passing
+                         through each other); with panel thickness t, give t.
+  --stop-at contact      end the path at the first contact (exit status 3).
+  --areal-density <kg/m²>  panel mass per area, for the static holding torque of every drive.
+  --gravity gx,gy,gz     m/s² in the base panel's frame (default 0,0,-9.80665: the base panel flat, top up).
+  --spring <crease>=<N·m/rad>[:<rest deg>]  a torsion spring on a hinge (rest angle default 0); repeat.
+                         Loads in the file ("loads") apply too; these options replace them. Torque needs
+                         the file's units to be mm, cm, m or in.`;
+
+/** --spring c=k[:rest] as a spring (rest in radians). */
+function springOption(pattern: Pattern, text: string): Spring {
+  const m = /^([^=]+)=([^:]+)(?::(.+))?$/.exec(text.trim());
+  if (!m) throw new UsageError(`--spring must be <crease>=<N·m/rad>[:<rest deg>], got "${text}"`);
+  const c = findCrease(pattern, m[1].trim());
+  if (c === undefined) throw new UsageError(`--spring: there is no crease "${m[1]}"`);
+  const k = Number(m[2]);
+  if (!Number.isFinite(k) || k < 0 || m[2].trim() === '') throw new UsageError(`--spring ${m[1]}: the stiffness must be a number ≥ 0 in N·m/rad, got "${m[2]}"`);
+  const rest = m[3] === undefined ? 0 : Number(m[3]);
+  if (!Number.isFinite(rest) || Math.abs(rest) > 180 || m[3]?.trim() === '') throw new UsageError(`--spring ${m[1]}: the rest angle must be degrees in −180 … 180, got "${m[3]}"`);
+  return { crease: c, stiffness: k, rest: rest * RAD };
+}
+
+/** The loads of the file and the options, as a load model (undefined: no torque asked for; null: refused, printed). */
+export function loadsOption(io: Io, loaded: Loaded, values: Record<string, unknown>, path: string): LoadModel | undefined | null {
+  const { pattern } = loaded;
+  const over: LoadOverrides = {};
+  if (values['areal-density'] !== undefined) {
+    const v = numberOption(values['areal-density'] as string, 'areal-density');
+    if (v < 0) throw new UsageError(`--areal-density must be ≥ 0 (kg/m²), got ${v}`);
+    over.arealDensity = v;
+  }
+  if (values.gravity !== undefined) {
+    const parts = String(values.gravity).split(',').map((x) => Number(x.trim()));
+    if (parts.length !== 3 || !parts.every(Number.isFinite)) throw new UsageError(`--gravity must be three numbers gx,gy,gz in m/s², got "${String(values.gravity)}"`);
+    over.gravity = [parts[0], parts[1], parts[2]];
+  }
+  const springs = ((values.spring as string[] | undefined) ?? []).map((s) => springOption(pattern, s));
+  if (springs.length) over.springs = springs;
+  const r = resolveLoads(pattern, loaded.project.loads, over);
+  if (r.messages.length) { printMessages(io, r.messages, `${path}: `); return null; }
+  if (!r.asked) return undefined;
+  const m = LoadModel.create(pattern, r.spec, loaded.project.units);
+  if (!m.model) { printMessages(io, m.messages, `${path}: `); return null; }
+  return m.model;
+}
+
+/** Contact and torque checks for a path from the options (null: refused, printed). */
+export function checksOption(io: Io, loaded: Loaded, values: Record<string, unknown>, path: string, drive: number, holds: Drive[], refine = true): PathChecks | null {
+  const contact = (values.contact as string | undefined) ?? 'on';
+  if (contact !== 'on' && contact !== 'off') throw new UsageError(`--contact must be on or off, got "${contact}"`);
+  const stop = values['stop-at'] as string | undefined;
+  if (stop !== undefined && stop !== 'contact') throw new UsageError(`--stop-at takes "contact", got "${stop}"`);
+  if (stop && contact === 'off') throw new UsageError('--stop-at contact needs the contact check (--contact on)');
+  let clearance = 0;
+  if (values.clearance !== undefined) {
+    clearance = numberOption(values.clearance as string, 'clearance');
+    if (clearance < 0) throw new UsageError(`--clearance must be a length ≥ 0 in the file's units, got ${clearance}`);
+    if (contact === 'off') throw new UsageError('--clearance needs the contact check (--contact on)');
+  }
+  const loads = loadsOption(io, loaded, values, path);
+  if (loads === null) return null;
+  return new PathChecks(loaded.pattern, drive, holds, {
+    contact: contact === 'off' ? false : { clearance },
+    stopAtContact: stop === 'contact',
+    ...(loads ? { loads } : {}),
+    ...(loaded.project.units ? { units: loaded.project.units } : {}),
+    refine,
+  });
+}
+
+/** The sweep hook that runs the checks on every sample. */
+export function checksHook(checks: PathChecks): (s: SweepSample) => 'stop' | void {
+  return (s) => {
+    const r = checks.observe({ drive: s.drive, angles: s.angles, rates: s.rates });
+    s.checks = { contact: r.contact, contacts: r.contacts, ...(r.torque ? { torque: r.torque } : {}) };
+    return r.stop ? 'stop' : undefined;
+  };
 }

@@ -8,7 +8,9 @@ import { scheduleTable } from '../../solver/outputs/table';
 import { findCrease } from '../../solver/model/pattern';
 import {
   creaseOption, EXIT_INTERRUPTED, holdsOption, intOrUndefined, printSolverMessages, runResponsive, startOption, tableHeader, writeOutput, joinNegativeNumbers,
+  checksOption, checksOptions, checksHook, CHECKS_HELP,
 } from './path-common';
+import { finishChecks } from '../../solver/outputs/path-physics';
 
 const RAD = Math.PI / 180;
 
@@ -33,6 +35,8 @@ export const scheduleCommand: Command = {
                           [--jerk-time <s>] [--dt <s> | --rows <n>] [--max-rate <deg/s>] [--max-accel <deg/s²>]
                           [--limit <crease>=<deg/s>[:<deg/s²>] …] [--hold <crease>=<deg> …]
                           [--branch <id> | --solution <k> | --start <file>] [--format csv|json] [--out <file>]
+                          [--contact on|off] [--clearance <length>] [--stop-at contact]
+                          [--areal-density <kg/m²>] [--gravity gx,gy,gz] [--spring <crease>=<N·m/rad>[:<rest>] …]
 
 Moves the drive from --from to --to in --time seconds with the chosen profile, and solves every hinge at each
 time row exactly on the path (as \`hingeplan sweep\`). Hinge velocity = rate × drive velocity; hinge
@@ -52,6 +56,9 @@ Profiles (symmetric start and stop; Δ = |to − from|, T = --time):
   --max-rate, --max-accel   limits for every hinge (deg/s, deg/s²).
   --limit <crease>=<rate>[:<accel>]   a limit for one hinge (overrides the global ones); repeat.
   --hold, --branch, --solution, --start, --progress, --out   as for \`hingeplan sweep\`.
+${CHECKS_HELP}
+                         A contact column (1 at and past the first contact) and, with loads, a torque column
+                         per drive ("torque:<crease>", N·m) follow the flags; the header gives the peaks.
   --format csv|json      csv (default): metadata header ("# key: value", as \`hingeplan table\`, plus the
                          profile), then columns t, drive, drive_velocity, drive_acceleration, every hinge angle,
                          velocity:<crease> …, acceleration:<crease> …, max_residual, flags ("rate:<crease>",
@@ -66,6 +73,7 @@ over a limit; 2 invalid input; 130 stopped by Ctrl-C (the rows computed are writ
       dt: { type: 'string' }, rows: { type: 'string' }, 'max-rate': { type: 'string' }, 'max-accel': { type: 'string' },
       limit: { type: 'string', multiple: true }, hold: { type: 'string', multiple: true }, branch: { type: 'string' },
       solution: { type: 'string' }, start: { type: 'string' }, format: { type: 'string' }, out: { type: 'string' }, progress: { type: 'boolean' },
+      ...checksOptions,
     };
     const { values, positionals } = parseCommandArgs(joinNegativeNumbers(argv, spec), spec);
     const format = (values.format as string | undefined) ?? 'csv';
@@ -118,13 +126,20 @@ over a limit; 2 invalid input; 130 stopped by Ctrl-C (the rows computed are writ
       limits: global,
       hingeLimits: new Map([...hingeLimits].map(([c, l]) => [c, { ...global, ...l }])),
     };
-    const { result, interrupted } = await runResponsive(io, 'schedule', (hooks) => scheduleSteps(pattern, options, hooks), !!values.progress);
+    const checks = checksOption(io, loaded, values, file!, drive, holds);
+    if (!checks) return EXIT.usage;
+    const { result, interrupted } = await runResponsive(io, 'schedule', (hooks) => scheduleSteps(pattern, options, { ...hooks, onSample: checksHook(checks) }), !!values.progress);
+    if (result.sweep) {
+      finishChecks(result.sweep, checks);
+      const e = result.sweep.checks?.event;
+      if (e && values['stop-at'] === 'contact') for (const r of result.rows) if (r.unreachable) r.unreachable = `past the first contact (--stop-at contact): ${e.text}`;
+    }
     if (result.status === 'failed' && !result.rows.length) {
       for (const m of result.messages) io.stderr(`${file}: ${m.severity}[${m.code}]: ${m.text}\n`);
       return result.messages.some((m) => m.code === 'bad-profile' || m.code === 'bad-step' || m.code === 'too-many-rows') ? EXIT.usage : EXIT.noSolution;
     }
     printSolverMessages(io, result.messages, 'schedule');
-    const text = scheduleTable(pattern, result, tableHeader(loaded, file!, 'schedule', argv), drive, holds, format);
+    const text = scheduleTable(pattern, result, tableHeader(loaded, file!, 'schedule', argv), drive, holds, format, undefined, loaded.project.units);
     if (!writeOutput(io, 'schedule', text, values.out as string | undefined)) return EXIT.usage;
     if (interrupted || result.status === 'stopped') { io.stderr('hingeplan schedule: stopped by Ctrl-C; the rows computed so far are written, the rest are flagged.\n'); return EXIT_INTERRUPTED; }
     if (result.rows.some((r) => r.unreachable) || result.status === 'failed') return EXIT.noSolution;

@@ -1,5 +1,5 @@
 import type { Command } from '../command';
-import { intOption, parseCommandArgs, UsageError } from '../args';
+import { intOption, numberOption, parseCommandArgs, UsageError } from '../args';
 import { drivesFor, loadFile } from '../load';
 import { exitForStatus, EXIT } from '../exit-codes';
 import { reportJson } from '../report-json';
@@ -7,12 +7,18 @@ import { deg, textTable } from '../table-text';
 import { solveDrives } from '../../solver/search/solve';
 import { groupSolutions } from '../../solver/search/summary';
 import { CAUTIONS } from '../../solver/formats/cautions';
+import { ContactChecker } from '../../solver/outputs/contact';
+import { ratesFromSensitivity } from '../../solver/outputs/torque';
+import { checksOptions, loadsOption } from './path-common';
+import type { SolutionChecks } from '../report-json';
 import type { Pattern, SolveReport } from '../../solver/types';
 
 export const solve: Command = {
   name: 'solve',
   summary: 'find every fold angle from the drives: all solutions, status, sensitivities',
   help: `Usage: hingeplan solve <file> [--set <crease>=<deg> …] [--solutions matching|all|<n>] [--max-states <n>] [--json]
+                       [--contact on|off] [--clearance <length>]
+                       [--areal-density <kg/m²>] [--gravity gx,gy,gz] [--spring <crease>=<N·m/rad>[:<rest>] …]
 
 Finds the closed states for the given drives (degrees, valley positive), says what kind of specification it
 was, and gives each solution's residual, local DOF, condition number and the sensitivity of every free crease
@@ -29,9 +35,16 @@ degree-4 vertices) are enumerated exhaustively in closed form; others are search
   --max-states <n>       stop the search after n closed states (default 64); a stopped search says so
   --json                 JSON on stdout: {status, dof, patternDof, drives, search: {complete, method, found,
                          limit?, note}, solutions: [{index, angles, maxResidual, matchesAssignment, localDof,
-                         condition, signs, stacked?, sensitivity, vertexResiduals}], omitted?: {count, groups},
+                         condition, signs, stacked?, sensitivity, vertexResiduals, contacts, stackedPanels?,
+                         torque?}], contact: {checked, clearance}, torqueUnits?, omitted?: {count, groups},
                          families: [{dof, representative, directions, matchesAssignment}], compromise?,
                          suggestedDrives?, conflictingDrives?, reachableRange?, excluded?, messages}
+  --contact on|off       check every printed solution's panels for contact (default on): "contacts": [[p, q], …]
+                         lists the pairs of panels (indices) that pass through each other or come closer than
+                         --clearance <length> (file units, default 0); panels stacked flat on each other
+                         without a clearance are listed apart as "stackedPanels".
+  --areal-density, --gravity, --spring   loads (as for \`hingeplan sweep\`, or the file's "loads"): each
+                         printed solution gives the static holding torque of every drive, "torque": {"<drive>": N·m}.
 Exit status: 0 solved / several solutions / overspecified but consistent / dependent drives;
 2 invalid input or usage; 3 inconsistent or unreachable; 4 underspecified or not isolated.`,
   run(argv, io) {
@@ -40,32 +53,49 @@ Exit status: 0 solved / several solutions / overspecified but consistent / depen
       solutions: { type: 'string' },
       'max-states': { type: 'string' },
       json: { type: 'boolean' },
+      contact: checksOptions.contact, clearance: checksOptions.clearance,
+      'areal-density': checksOptions['areal-density'], gravity: checksOptions.gravity, spring: checksOptions.spring,
     });
     const which = (values.solutions as string | undefined) ?? (values.json ? 'all' : 'matching');
     if (!/^(matching|all|[1-9]\d*)$/.test(which)) throw new UsageError(`--solutions must be matching, all or a whole number ≥ 1, got "${which}"`);
     const cap = intOption(values['max-states'] as string | undefined, 'max-states', 64);
     if (cap < 1 || cap > 1_000_000) throw new UsageError('--max-states must be between 1 and 1000000');
+    const contactOn = ((values.contact as string | undefined) ?? 'on');
+    if (contactOn !== 'on' && contactOn !== 'off') throw new UsageError(`--contact must be on or off, got "${contactOn}"`);
+    const clearance = values.clearance === undefined ? 0 : numberOption(values.clearance as string, 'clearance');
+    if (clearance < 0) throw new UsageError(`--clearance must be a length ≥ 0 in the file's units, got ${clearance}`);
     const path = positionals[0];
     const loaded = loadFile(io, path, 'solve');
     if (!loaded) return EXIT.usage;
     const drives = drivesFor(io, loaded, values.set as string[] | undefined, path!);
     if (!drives) return EXIT.usage;
     const { pattern } = loaded;
+    const loads = loadsOption(io, loaded, values, path!);
+    if (loads === null) return EXIT.usage;
     // sensitivities and condition numbers are worked out for the solutions printed in full
     const detail = which === 'all' ? Infinity : which === 'matching' ? 'matching' : Number(which);
     const report = solveDrives(pattern, drives, { cap, detail, conditions: detail });
     const shown = shownSolutions(report, which);
     const omitted = report.solutions.map((_, i) => i).filter((i) => i >= shown.length);
     const groups = omitted.length ? groupSolutions(pattern, report.solutions, 0, omitted) : [];
+    // contact and torque of the solutions printed in full
+    const checker = contactOn === 'on' ? new ContactChecker(pattern, { clearance }) : undefined;
+    const checks: SolutionChecks[] = report.solutions.slice(0, shown.length).map((s) => {
+      const r = checker?.checkAngles(s.angles);
+      return {
+        ...(r ? { contacts: r.contacts.map((c) => c.panels), stackedPanels: r.stacked } : {}),
+        ...(loads && s.sensitivity.size ? { torque: new Map(drives.map((d) => [d.crease, loads.torque(s.angles, ratesFromSensitivity(pattern, s.sensitivity, d.crease))])) } : {}),
+      };
+    });
     if (values.json) {
-      const json = reportJson(pattern, drives, { ...report, solutions: report.solutions.slice(0, shown.length) });
+      const json = reportJson(pattern, drives, { ...report, solutions: report.solutions.slice(0, shown.length) }, { contact: { checked: !!checker, clearance }, solutions: checks, torque: !!loads });
       const out = omitted.length
         ? { ...json, omitted: { count: omitted.length, groups: groups.map((g) => ({ count: g.count, solutions: g.solutions, text: g.text })) } }
         : json;
       io.stdout(JSON.stringify(out, null, 2) + '\n');
       return exitForStatus(report.status);
     }
-    io.stdout(textReport(pattern, drives.map((d) => d.crease), report, shown.length, groups) + '\n');
+    io.stdout(textReport(pattern, drives.map((d) => d.crease), report, shown.length, groups, checks) + '\n');
     return exitForStatus(report.status);
   },
 };
@@ -81,7 +111,7 @@ function shownSolutions(report: SolveReport, which: string): number[] {
   return all.slice(0, Number(which));
 }
 
-function textReport(pattern: Pattern, driveCreases: number[], report: SolveReport, shownCount: number, groups: ReturnType<typeof groupSolutions>): string {
+function textReport(pattern: Pattern, driveCreases: number[], report: SolveReport, shownCount: number, groups: ReturnType<typeof groupSolutions>, checks: SolutionChecks[] = []): string {
   const out: string[] = [];
   out.push(`${pattern.name}: ${report.status}  (DOF left ${report.dof}, pattern DOF ${report.patternDof})`);
   for (const m of report.messages) out.push(`  ${m.severity}: ${m.text}`);
@@ -109,6 +139,10 @@ function textReport(pattern: Pattern, driveCreases: number[], report: SolveRepor
           .map((c) => [c.label, ...driveCreases.map((d) => (first.sensitivity.get(d)?.[c.index] ?? 0).toFixed(6))])));
     }
   }
+  checks.forEach((c, i) => {
+    if (c.contacts?.length) out.push(`Solution #${i + 1}: panels in contact: ${c.contacts.slice(0, 10).map((p) => p.join('–')).join(', ')}${c.contacts.length > 10 ? ` and ${c.contacts.length - 10} more` : ''}`);
+    if (c.torque) out.push(`Solution #${i + 1}: holding torque ${[...c.torque].map(([d, t]) => `${pattern.creases[d].label} ${+t.toPrecision(6)} N·m`).join(', ')}`);
+  });
   const rest = report.solutions.length - shownCount;
   if (rest > 0) {
     out.push(`${rest} more solution(s), not printed (--solutions all prints them); compared with #1 they:`);

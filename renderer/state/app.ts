@@ -88,10 +88,13 @@ export interface PathForm {
   branchId?: string;
   /** the range was typed by hand: a change of drive no longer resets it */
   rangeTouched: boolean;
+  /** check panel contact at every sample, closer than the clearance (sheet units, as typed) counting */
+  contact: boolean;
+  clearance: string;
 }
 
 /** Tabs of the path area; other panels (drive torque, tolerance) add theirs here. */
-export type PathTab = 'charts' | 'events' | 'branches' | 'tolerance';
+export type PathTab = 'charts' | 'events' | 'branches' | 'tolerance' | 'torque';
 
 export interface BranchState {
   status: JobStatus;
@@ -141,7 +144,7 @@ export interface AppState {
   tolerance: ToleranceState;
 }
 
-export const initialPathForm: PathForm = { drive: '', from: '0', to: '180', step: '1', start: 'solution', rangeTouched: false };
+export const initialPathForm: PathForm = { drive: '', from: '0', to: '180', step: '1', start: 'solution', rangeTouched: false, contact: true, clearance: '0' };
 
 /** The form a document starts with: its first drive, 0° to ±180° on the side the drive folds to now. */
 export function pathFormFor(project: ProjectDto, drive?: string): PathForm {

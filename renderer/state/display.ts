@@ -1,6 +1,8 @@
 // What the views show, computed from the state as plain functions: the status in words, the state on
 // screen (a solution or a path sample), the hinge table rows and its CSV, the tint scale, chart curves.
 
+import { ContactChecker } from '../../solver/outputs/contact';
+import type { Pattern } from '../../solver/types';
 import type { PathResultDto, ProjectDto, SolutionDto, SolveResultDto } from '../../electron/contract';
 import { CAUTIONS } from '../../solver/formats/cautions';
 import { angleColor } from '../palette';
@@ -118,6 +120,8 @@ export interface ShownState {
   source: 'solution' | 'family' | 'last-valid' | 'excluded' | 'compromise' | 'path' | 'flat';
   caption: string;
   solution?: SolutionDto;
+  /** pairs of panels in contact in this state, when it was checked */
+  contacts?: [number, number][];
 }
 
 export function shownState(state: AppState, creaseCount: number): ShownState {
@@ -125,7 +129,7 @@ export function shownState(state: AppState, creaseCount: number): ShownState {
   const path = state.path.result;
   if (state.scrubIndex !== null && path && path.samples[state.scrubIndex]) {
     const s = path.samples[state.scrubIndex];
-    return { anglesDeg: s.anglesDeg, rates: s.rates, rateDrive: path.driveLabel, source: 'path', caption: `path sample ${state.scrubIndex + 1} of ${path.samples.length}, ${path.driveLabel} = ${s.driveDeg.toFixed(2)}°` };
+    return { anglesDeg: s.anglesDeg, rates: s.rates, rateDrive: path.driveLabel, source: 'path', caption: `path sample ${state.scrubIndex + 1} of ${path.samples.length}, ${path.driveLabel} = ${s.driveDeg.toFixed(2)}°${s.contact ? ' (past the first contact)' : ''}`, contacts: s.contacts ?? [] };
   }
   const fits = (s: SolutionDto | undefined) => !!s && s.anglesDeg.length === creaseCount;
   const result = state.solve.result;
@@ -335,4 +339,21 @@ export function sampleNearest(path: PathResultDto, driveDeg: number): number {
 export function formatAngle(deg: number, digits = 2): string {
   const v = Math.abs(deg) < 0.5 * 10 ** -digits ? 0 : deg;
   return `${v.toFixed(digits)}°`;
+}
+
+/** Every panel that is in contact with another in the shown state: a path sample's from the path, else checked here. */
+export function contactPanels(shown: ShownState, pattern: Pattern | undefined): Set<number> {
+  const out = new Set<number>();
+  let pairs = shown.contacts;
+  if (!pairs && pattern && shown.source === 'solution') pairs = solutionContacts(pattern, shown.anglesDeg);
+  for (const [p, q] of pairs ?? []) { out.add(p); out.add(q); }
+  return out;
+}
+
+// one checker per pattern: its triangulation and pair relations are built once, each state then costs a few ms
+const checkers = new WeakMap<Pattern, ContactChecker>();
+function solutionContacts(pattern: Pattern, anglesDeg: readonly number[]): [number, number][] {
+  let c = checkers.get(pattern);
+  if (!c) { c = new ContactChecker(pattern); checkers.set(pattern, c); }
+  return c.checkAngles(Float64Array.from(anglesDeg, (a) => (a * Math.PI) / 180)).contacts.map((x) => x.panels);
 }

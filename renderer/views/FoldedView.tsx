@@ -16,6 +16,8 @@ export interface FoldedViewProps {
   caption: string;
   selectedCrease: number | null;
   violatingPanels: Set<number>;
+  /** panels in contact with another in the shown state */
+  contactPanels?: Set<number>;
   ghost: boolean;
   labels: boolean;
   fitRequest: number;
@@ -84,10 +86,11 @@ export function FoldedView(props: FoldedViewProps) {
       selected: selectedCrease,
       drives: pattern.creases.filter((c) => driveLabels.has(c.label)).map((c) => c.index),
       violatingPanels,
+      ...(props.contactPanels ? { contactPanels: props.contactPanels } : {}),
       basePanel,
       labelText: (c) => `${creaseLabel(project, c)} ${formatAngle(anglesDeg[c] ?? 0, 1)}`,
     });
-  }, [ghost, labels, selectedCrease, violatingPanels, basePanel, project, pattern, anglesDeg]);
+  }, [ghost, labels, selectedCrease, violatingPanels, props.contactPanels, basePanel, project, pattern, anglesDeg]);
 
   useEffect(() => {
     if (fitRequest > 0) sceneRef.current?.fit();
@@ -111,6 +114,10 @@ export function FoldedView(props: FoldedViewProps) {
         <span className="key-item">
           <span className="key-swatch key-violating" />
           <span className={violatingPanels.size ? 'key-used' : ''} data-testid="key-past-limit">past a hinge stop{violatingPanels.size ? ` (${violatingPanels.size} panels)` : ''}</span>
+        </span>
+        <span className="key-item">
+          <span className="key-swatch key-contact" />
+          <span className={props.contactPanels?.size ? 'key-used' : ''}>in contact{props.contactPanels?.size ? <span data-testid="contact-count"> ({props.contactPanels.size} panels)</span> : null}</span>
         </span>
         <span className="key-item">
           <span className="key-swatch key-under" /> underside

@@ -19,6 +19,7 @@ const EVENT_LOOK: Record<PathEventDto['type'], { mark: string; word: string; col
   'hinge-limit': { mark: '■', word: 'hinge limit', color: PALETTE.pastLimit },
   'folded-flat': { mark: '●', word: 'folded flat', color: '#4a473f' },
   'corrector-failed': { mark: '✕', word: 'path lost', color: PALETTE.pastLimit },
+  contact: { mark: '✱', word: 'contact', color: PALETTE.contact },
 };
 
 export { EVENT_LOOK };

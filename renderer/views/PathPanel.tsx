@@ -9,6 +9,8 @@ import type { BranchDto, BranchesResultDto, PathEventDto, PathResultDto, Project
 import type { PathForm, PathState, BranchState, PathTab } from '../state/app';
 import { originWords, type PathFixId, type PathOutcome } from '../state/path-words';
 import { PathCharts, EVENT_LOOK } from './PathCharts';
+import { ContactControls, ContactNote } from './ContactControls';
+import { TorqueChart } from './TorqueChart';
 import { ToleranceBody, type ToleranceBodyProps } from './ToleranceBody';
 
 export interface PathPanelProps {
@@ -171,6 +173,7 @@ export function PathPanel(props: PathPanelProps) {
     { id: 'charts', title: 'Angles and rates' },
     { id: 'events', title: `Events${result ? ` (${result.events.length})` : ''}` },
     { id: 'branches', title: 'Branches at flat' },
+    { id: 'torque', title: 'Drive torque' },
     ...(props.tolerance ? [{ id: 'tolerance' as const, title: `Tolerance${props.tolerance.tolerance.status === 'running' ? ' …' : ''}` }] : []),
   ];
   const startValue = form.start === 'solution' ? 'solution' : `flat:${form.branchId ?? ''}`;
@@ -178,7 +181,13 @@ export function PathPanel(props: PathPanelProps) {
   const chartRoom = Math.max(160, size.height - 18 * 2 - 30);
   const heights = { angle: Math.round(chartRoom * 0.54), rate: chartRoom - Math.round(chartRoom * 0.54) };
   let body: ReactNode;
-  if (tab === 'tolerance' && props.tolerance) {
+  if (tab === 'torque') {
+    body = result && result.samples.some((x) => x.torque?.length) ? (
+      <TorqueChart path={result} labels={project.source.labels.map((l, i) => l ?? String(i))} width={size.width} current={current} />
+    ) : (
+      <p className="hint">The static holding torque of every drive appears here when the document has loads (an areal density, panel masses or springs in its “loads”) and a path is computed.</p>
+    );
+  } else if (tab === 'tolerance' && props.tolerance) {
     body = <ToleranceBody {...props.tolerance} project={project} path={result} pathRunning={running} selectedCrease={props.selectedCrease} size={size} />;
   } else if (tab === 'events') body = result ? <EventList result={result} onFollowRay={props.onFollowRay} /> : <p className="hint">Compute a path to see its events.</p>;
   else if (tab === 'branches') {
@@ -280,6 +289,7 @@ export function PathPanel(props: PathPanelProps) {
             ))}
           </select>
         </label>
+        <ContactControls checked={form.contact} clearance={form.clearance} units={project.units} onChecked={(v) => props.onForm({ contact: v })} onClearance={(v) => props.onForm({ clearance: v })} />
         {running ? (
           <button onClick={props.onCancel} data-testid="cancel-path" className="danger">
             Cancel
@@ -301,6 +311,7 @@ export function PathPanel(props: PathPanelProps) {
         {!running && path.status === 'error' && <span className="path-note bad">The path failed: {path.error}</span>}
         {props.problem && <span className="message message-error">{props.problem}</span>}
         {result && result.samples.length > 0 && path.status !== 'error' && <Summary result={result} origin={originWords(path.origin, result)} />}
+        {result && !running && <ContactNote result={result} />}
         {branchPoints > 0 && tab === 'charts' && (
           <button className="link-button" onClick={() => props.onTab('events')}>
             ◆ leave a branch point…

@@ -19,6 +19,8 @@ export interface SheetViewProps {
   selectedCrease: number | null;
   hoverCrease: number | null;
   violatingPanels: Set<number>;
+  /** panels in contact with another in the shown state */
+  contactPanels?: Set<number>;
   /** creases past a hinge stop, haloed in the past-limit colour */
   violatingCreases?: Set<number>;
   /** vertices to ring (the tolerance analysis's worst vertices), the ring growing with the share */
@@ -229,6 +231,7 @@ export function SheetView(props: SheetViewProps) {
     return pattern.creases.filter((c) => labels.has(c.label)).map((c) => c.index);
   }, [pattern, project.drives]);
   const violating = useMemo(() => panelPath(pattern, violatingPanels), [pattern, violatingPanels]);
+  const touching = useMemo(() => panelPath(pattern, props.contactPanels ?? []), [pattern, props.contactPanels]);
   const basePanel = project.source.basePanel ?? pattern.basePanel;
 
   const toSheet = useCallback((clientX: number, clientY: number): [number, number] | null => {
@@ -310,6 +313,7 @@ export function SheetView(props: SheetViewProps) {
         <g ref={groupRef} className="sheet-flip" transform="scale(1 -1)">
           <Panels pattern={pattern} basePanel={basePanel} />
           {violating && <path d={violating} className="sheet-violating" fill="url(#sheet-past)" data-testid="past-limit-panels" />}
+          {touching && <path d={touching} className="sheet-contact" data-testid="sheet-contact" />}
           {drives.map((i) => (
             <path key={`drive-${i}`} d={segment(pattern, i)} className="sheet-drive-halo" vectorEffect="non-scaling-stroke" />
           ))}

@@ -16,6 +16,8 @@ export interface SceneOptions {
   selected: number | null;
   drives: number[];
   violatingPanels: Set<number>;
+  /** panels in contact with another (drawn in the contact colour) */
+  contactPanels?: Set<number>;
   basePanel: number;
   labelText: (crease: number) => string;
 }
@@ -28,6 +30,7 @@ const COLORS = {
   mountain: new THREE.Color(PALETTE.mountain),
   unassigned: new THREE.Color(PALETTE.flat),
   boundary: new THREE.Color(PALETTE.boundary),
+  contact: new THREE.Color(PALETTE.contact),
   selected: new THREE.Color('#111111'),
   drive: new THREE.Color(PALETTE.drive),
 };
@@ -233,7 +236,7 @@ export class FoldedScene {
       const arr = colors.array as Float32Array;
       let o = 0;
       for (const t of this.triangles) {
-        const col = options.violatingPanels.has(t.panel) ? COLORS.violating : t.panel === options.basePanel ? COLORS.base : COLORS.top;
+        const col = options.contactPanels?.has(t.panel) ? COLORS.contact : options.violatingPanels.has(t.panel) ? COLORS.violating : t.panel === options.basePanel ? COLORS.base : COLORS.top;
         for (let k = 0; k < t.corners.length; k++) {
           col.toArray(arr, o);
           o += 3;

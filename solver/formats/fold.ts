@@ -11,11 +11,13 @@
 //   hingeplan:faces_name    per panel in the same order, string or null: panel names
 //   hingeplan:units         free-text units when frame_unit cannot say them
 //   hingeplan:cautions      the cautions line, written with solved fold angles (ignored on reading)
+//   hingeplan:loads         {arealDensity, gravity, panelMasses, springs}: loads for the drive torque (SI)
 import type { Assignment, HingeLimit, Message, PatternSource } from '../types';
 import type { DriveSpec } from '../model/drives';
 import type { Project } from './project';
 import { readJsonText } from './limits';
 import { CAUTIONS } from './cautions';
+import { loadsValue, readLoads, type FileLoads } from './loads';
 
 export const FOLD_SPEC = 1.1;
 export const FOLD_CREATOR = 'Hingeplan';
@@ -42,6 +44,7 @@ const CONSUMED = new Set([
   `${NS}faces_name`,
   `${NS}units`,
   `${NS}cautions`,
+  `${NS}loads`,
 ]);
 
 const DEG = 180 / Math.PI;
@@ -273,6 +276,13 @@ export function parseFoldValue(value: unknown, fileName?: string): { project?: P
     else warn('bad-base-panel', `${NS}basePanel is not a panel index; the default base panel is used.`, `${NS}basePanel`);
   }
 
+  let loads: FileLoads | undefined;
+  if (obj[`${NS}loads`] !== undefined) {
+    const r = readLoads(obj[`${NS}loads`], `${NS}loads`);
+    messages.push(...r.messages);
+    loads = r.loads;
+  }
+
   if (messages.some((m) => m.severity === 'error')) return { messages };
 
   const extra: Record<string, unknown> = {};
@@ -291,6 +301,7 @@ export function parseFoldValue(value: unknown, fileName?: string): { project?: P
   if (units !== undefined) project.units = units;
   if (notes !== undefined) project.notes = notes;
   if (foldAngles) project.foldAngles = foldAngles;
+  if (loads) project.loads = loads;
   return { project, messages };
 }
 
@@ -343,6 +354,7 @@ export function writeFold(project: Project, opts: FoldWriteOptions = {}): string
   if (src.basePanel !== undefined) entries.push([`${NS}basePanel`, j(src.basePanel)]);
   if (src.panelNames?.some((n) => n)) entries.push([`${NS}faces_name`, j(Array.from(src.panelNames, (n) => n || null))]);
   if (project.units !== undefined && !unitIsFold) entries.push([`${NS}units`, j(project.units)]);
+  if (project.loads !== undefined) entries.push([`${NS}loads`, j(loadsValue(project.loads))]);
   const written = new Set(entries.map(([k]) => k));
   for (const [k, v] of Object.entries(extra)) {
     if (!written.has(k) && v !== undefined) entries.push([k, j(v)]);

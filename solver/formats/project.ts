@@ -11,6 +11,7 @@ import { buildPattern } from '../model/pattern';
 import { resolveDrives, type DriveSpec } from '../model/drives';
 import { MAX_CREASES, MAX_TEXT_BYTES, MAX_VERTICES, readJsonText } from './limits';
 import { parseFoldValue } from './fold';
+import { loadsValue, readLoads, type FileLoads } from './loads';
 import { drawingToProject, type DrawingOptions } from './drawing';
 import { parseDxf } from './dxf';
 import { parseSvg } from './svg';
@@ -30,6 +31,8 @@ export interface Project {
   notes?: string;
   /** a folded state to start from: one fold angle per crease, radians, valley positive; not drives */
   foldAngles?: number[];
+  /** loads for the static drive torque (SI; springs by crease label, rest angles in degrees) */
+  loads?: FileLoads;
   /** what a FOLD file carried that the project does not use, so it can be written back */
   fold?: {
     /** top-level keys this program does not read, untouched, in file order */
@@ -225,6 +228,11 @@ export function parseProjectValue(value: unknown): ParseResult {
   const project: Project = { source, drives };
   if (typeof obj.units === 'string') project.units = obj.units;
   if (typeof obj.notes === 'string') project.notes = obj.notes;
+  if (obj.loads !== undefined) {
+    const r = readLoads(obj.loads, 'loads');
+    if (!r.loads) return { messages: r.messages };
+    project.loads = r.loads;
+  }
   if (obj.foldAngles !== undefined) {
     const fa = obj.foldAngles as number[];
     if (fa.length !== creases.length) {
@@ -280,6 +288,7 @@ export function writeProject(project: Project): string {
   if (named.length) entries.push(['panelNames', j(Object.fromEntries(named))]);
   if (project.drives.length > 0) entries.push(['drives', arrayLines(project.drives.map((d) => ({ crease: d.crease, angle: d.angleDeg })))]);
   if (project.foldAngles !== undefined) entries.push(['foldAngles', j(project.foldAngles.map(toDegrees))]);
+  if (project.loads !== undefined) entries.push(['loads', j(loadsValue(project.loads))]);
   return '{\n' + entries.map(([k, v]) => `  ${j(k)}: ${v}`).join(',\n') + '\n}\n';
 }
 

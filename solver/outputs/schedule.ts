@@ -5,6 +5,7 @@
 // supplies (time and drive angles per row), with a clear flag on rows that have no consistent state.
 
 import type { Drive, Message, Pattern } from '../types';
+import type { ChecksSummary, StateChecks } from './path-physics';
 import { runSteps, sweepSteps, type SweepEvent, type SweepHooks, type SweepOptions, type SweepResult, type SweepSample } from '../paths/sweep';
 import { solveDrives } from '../search/solve';
 import { ClosureProblem, RESIDUAL_TOLERANCE } from '../closure/newton';
@@ -148,6 +149,8 @@ export interface ScheduleRow {
   overAcceleration: number[];
   /** why the row has no state */
   unreachable?: string;
+  /** contact and torque at the row's state, when the path checks them */
+  checks?: StateChecks;
 }
 
 export interface HingeSummary {
@@ -242,7 +245,7 @@ export function* scheduleSteps(pattern: Pattern, opts: ScheduleOptions, hooks: S
   const rows: ScheduleRow[] = states.map((st) => {
     const s = byValue.get(st.position);
     if (!s) return { t: st.t, drive: st.position, driveVelocity: st.velocity, driveAcceleration: st.acceleration, overRate: [], overAcceleration: [], unreachable: endText };
-    return { t: st.t, drive: st.position, driveVelocity: st.velocity, driveAcceleration: st.acceleration, angles: s.angles, maxResidual: s.maxResidual, ...hingeMotion(s, st, n, limitOf) };
+    return { t: st.t, drive: st.position, driveVelocity: st.velocity, driveAcceleration: st.acceleration, angles: s.angles, maxResidual: s.maxResidual, ...hingeMotion(s, st, n, limitOf), ...(s.checks ? { checks: s.checks } : {}) };
   });
   const checks = yield* peaksBetweenRows(pattern, opts, profile, rows, limitOf, hooks);
   const hinges = summarize(pattern, rows, checks);
@@ -505,6 +508,8 @@ export interface FollowRow {
   maxResidual?: number;
   /** why the row has no consistent state */
   unreachable?: string;
+  /** contact and torque at the row's state, when checked */
+  checks?: StateChecks;
 }
 
 export interface FollowResult {
@@ -515,6 +520,8 @@ export interface FollowResult {
   events: SweepEvent[];
   messages: Message[];
   status: 'complete' | 'partial' | 'stopped' | 'failed';
+  /** what the checks found over the rows (contact, peak torque), when checked */
+  checks?: ChecksSummary;
 }
 
 /**

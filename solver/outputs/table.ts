@@ -10,6 +10,7 @@ import type { FollowResult } from './schedule';
 import type { GridResult } from './grid';
 import { CAUTIONS } from '../formats/cautions';
 import { RESIDUAL_TOLERANCE } from '../closure/newton';
+import type { ChecksSummary, StateChecks } from './path-physics';
 
 const DEG = 180 / Math.PI;
 
@@ -38,6 +39,8 @@ export type TableFormat = 'csv' | 'json';
 
 export interface AngleTableOptions {
   format: TableFormat;
+  /** the file's length unit, for the clearance in the header */
+  units?: string;
   /** add a rate column per crease (degrees per degree of drive) */
   rates?: boolean;
   /** creases to list: every crease that is not a boundary edge (default) */
@@ -104,9 +107,60 @@ function eventsJson(pattern: Pattern, events: SweepEvent[]) {
   return events.map((e) => ({
     type: e.type,
     drive: deg(e.drive),
+    ...(e.panels ? { panels: e.panels, point: e.point!.map((x) => jsonNum(x)), distance: jsonNum(e.distance) } : {}),
     text: e.text,
     ...(e.crease !== undefined ? { crease: pattern.creases[e.crease].label } : {}),
   }));
+}
+
+/** Header lines for what the path checked: contact (and its clearance) and the torque's units and peaks. */
+function checksMeta(pattern: Pattern, checks: ChecksSummary | undefined, units: string | undefined): Record<string, string> {
+  if (!checks) return {};
+  const u = units ? ` ${units}` : '';
+  const out: Record<string, string> = {
+    contact: checks.contact.checked
+      ? `checked at every row, clearance ${num(checks.contact.clearance)}${u}${checks.event ? `; first contact at ${num(checks.event.drive * DEG)} deg, panels ${checks.event.panels.join(' and ')}` : '; none'}`
+      : 'not checked',
+  };
+  if (checks.peakTorque) {
+    out.torque = 'N·m static holding torque per drive (virtual work; positive: the actuator pushes towards valley); static only: no dynamics, friction or hinge play';
+    out.peakTorque = [...checks.peakTorque].map(([c, p]) => `${pattern.creases[c].label} ${num(p.value)} N·m at ${num(p.at * DEG)} deg`).join('; ') || 'none';
+  }
+  return out;
+}
+
+function checksJson(pattern: Pattern, checks: ChecksSummary | undefined) {
+  if (!checks) return {};
+  return {
+    contact: { checked: checks.contact.checked, clearance: checks.contact.clearance },
+    ...(checks.peakTorque
+      ? { torqueUnits: 'N·m', peakTorque: Object.fromEntries([...checks.peakTorque].map(([c, p]) => [pattern.creases[c].label, { torque: jsonNum(p.value), drive: deg(p.at) }])) }
+      : {}),
+  };
+}
+
+/** The drives a torque column is written for, in order (the path's drive first). */
+function torqueDrives(checks: ChecksSummary | undefined): number[] {
+  return checks?.peakTorque ? [...checks.peakTorque.keys()] : [];
+}
+
+function stateJson(pattern: Pattern, c: StateChecks | undefined) {
+  if (!c) return {};
+  return {
+    ...(c.contact ? { contact: true } : {}),
+    ...(c.contacts.length ? { contacts: c.contacts } : {}),
+    ...(c.torque ? { torque: Object.fromEntries([...c.torque].map(([k, v]) => [pattern.creases[k].label, jsonNum(v)])) } : {}),
+  };
+}
+
+function stateCells(c: StateChecks | undefined, checks: ChecksSummary | undefined, drives: number[]): string[] {
+  if (!checks) return [];
+  return [...(checks.contact.checked ? [c ? (c.contact ? '1' : '0') : ''] : []), ...drives.map((d) => num(c?.torque?.get(d)))];
+}
+
+function stateHead(pattern: Pattern, checks: ChecksSummary | undefined, drives: number[]): string[] {
+  if (!checks) return [];
+  return [...(checks.contact.checked ? ['contact'] : []), ...drives.map((d) => `torque:${pattern.creases[d].label}`)];
 }
 
 export function holdsText(pattern: Pattern, holds: { crease: number; value: number }[]): string {
@@ -140,11 +194,14 @@ export function angleTable(
     status: result.status,
     samples: `${result.samples.length} of ${result.requested}`,
     method: result.method,
+    ...checksMeta(pattern, result.checks, opts.units),
     ...provenanceMeta(header),
   };
+  const tq = torqueDrives(result.checks);
   if (opts.format === 'json') {
     return JSON.stringify({
       ...meta,
+      ...checksJson(pattern, result.checks),
       largestResidual: jsonNum(largest),
       columns: cols.map(label),
       samples: result.samples.map((s) => ({
@@ -154,15 +211,16 @@ export function angleTable(
         maxResidual: s.maxResidual,
         condition: jsonNum(s.condition),
         nearSingular: s.nearSingular,
+        ...stateJson(pattern, s.checks),
       })),
       events: eventsJson(pattern, result.events),
       messages: result.messages.map((m) => ({ severity: m.severity, code: m.code, text: m.text })),
     }, null, 2) + '\n';
   }
-  const head = ['drive', ...cols.map(label), ...(opts.rates ? cols.map((c) => `rate:${label(c)}`) : []), 'max_residual', 'condition', 'near_singular'];
+  const head = ['drive', ...cols.map(label), ...(opts.rates ? cols.map((c) => `rate:${label(c)}`) : []), 'max_residual', 'condition', 'near_singular', ...stateHead(pattern, result.checks, tq)];
   const lines = [metadataLines(meta) + head.map(csvCell).join(',')];
   for (const s of result.samples) {
-    lines.push([num(s.drive * DEG), ...cols.map((c) => num(s.angles[c] * DEG)), ...(opts.rates ? cols.map((c) => num(s.rates[c])) : []), num(s.maxResidual), num(s.condition), s.nearSingular ? '1' : '0'].join(','));
+    lines.push([num(s.drive * DEG), ...cols.map((c) => num(s.angles[c] * DEG)), ...(opts.rates ? cols.map((c) => num(s.rates[c])) : []), num(s.maxResidual), num(s.condition), s.nearSingular ? '1' : '0', ...stateCells(s.checks, result.checks, tq)].join(','));
   }
   for (const e of result.events) lines.push(`# event: ${e.type} at ${num(e.drive * DEG)} deg: ${e.text.replace(/[\r\n]+/g, ' ')}`);
   return lines.join('\n') + '\n';
@@ -177,11 +235,14 @@ export function scheduleTable(
   holds: { crease: number; value: number }[],
   format: TableFormat,
   creases?: number[],
+  units?: string,
 ): string {
   const cols = listed(pattern, { creases });
   const label = (c: number) => pattern.creases[c].label;
   const largest = result.rows.reduce((m, r) => Math.max(m, r.maxResidual ?? 0), 0);
   const prof = result.profile;
+  const checks = result.sweep?.checks;
+  const tq = torqueDrives(checks);
   const meta = {
     ...sourceMeta(SCHEDULE_FORMAT, header),
     branch: branchMeta(result.sweep?.branch),
@@ -192,6 +253,7 @@ export function scheduleTable(
     ...accuracyMeta(largest),
     status: result.status,
     unreachableRows: result.rows.filter((r) => r.unreachable).length,
+    ...checksMeta(pattern, checks, units),
     ...provenanceMeta(header),
   };
   const flags = (r: ScheduleResult['rows'][number]) =>
@@ -199,6 +261,7 @@ export function scheduleTable(
   if (format === 'json') {
     return JSON.stringify({
       ...meta,
+      ...checksJson(pattern, checks),
       largestResidual: jsonNum(largest),
       columns: cols.map(label),
       rows: result.rows.map((r) => ({
@@ -216,6 +279,7 @@ export function scheduleTable(
           : { unreachable: r.unreachable }),
         overRate: r.overRate.map(label),
         overAcceleration: r.overAcceleration.map(label),
+        ...stateJson(pattern, r.checks),
       })),
       hinges: result.hinges.filter((h) => cols.includes(h.crease)).map((h) => ({
         crease: label(h.crease),
@@ -231,7 +295,7 @@ export function scheduleTable(
       messages: result.messages.map((m) => ({ severity: m.severity, code: m.code, text: m.text })),
     }, null, 2) + '\n';
   }
-  const head = ['t', 'drive', 'drive_velocity', 'drive_acceleration', ...cols.map(label), ...cols.map((c) => `velocity:${label(c)}`), ...cols.map((c) => `acceleration:${label(c)}`), 'max_residual', 'flags'];
+  const head = ['t', 'drive', 'drive_velocity', 'drive_acceleration', ...cols.map(label), ...cols.map((c) => `velocity:${label(c)}`), ...cols.map((c) => `acceleration:${label(c)}`), 'max_residual', 'flags', ...stateHead(pattern, checks, tq)];
   const lines = [metadataLines(meta) + head.map(csvCell).join(',')];
   for (const r of result.rows) {
     const a = r.angles, v = r.velocities, ac = r.accelerations;
@@ -240,7 +304,7 @@ export function scheduleTable(
       ...cols.map((c) => (a ? num(a[c] * DEG) : '')),
       ...cols.map((c) => (v ? num(v[c] * DEG) : '')),
       ...cols.map((c) => (ac ? num(ac[c] * DEG) : '')),
-      num(r.maxResidual), csvCell(flags(r)),
+      num(r.maxResidual), csvCell(flags(r)), ...stateCells(r.checks, checks, tq),
     ].join(','));
   }
   for (const h of result.hinges) {
@@ -248,6 +312,7 @@ export function scheduleTable(
     lines.push(`# over limit: ${label(h.crease)}: peak velocity ${num(h.peakRate * DEG)} deg/s at t = ${num(h.peakRateAt)} s (${h.rowsOverRate} rows over), peak acceleration ${num(h.peakAcceleration * DEG)} deg/s^2 at t = ${num(h.peakAccelerationAt)} s (${h.rowsOverAcceleration} rows over)${h.overBetweenRows ? '; over between rows too' : ''}`);
   }
   for (const r of result.rows) if (r.unreachable) lines.push(`# unreachable at t = ${num(r.t)} s: ${r.unreachable.replace(/[\r\n]+/g, ' ')}`);
+  for (const e of result.events) if (e.type === 'contact') lines.push(`# event: ${e.type} at ${num(e.drive * DEG)} deg: ${e.text.replace(/[\r\n]+/g, ' ')}`);
   return lines.join('\n') + '\n';
 }
 
@@ -258,9 +323,11 @@ export function followTable(
   header: TableHeader,
   holds: { crease: number; value: number }[],
   format: TableFormat,
-  opts: { rates?: boolean; creases?: number[] } = {},
+  opts: { rates?: boolean; creases?: number[]; units?: string } = {},
 ): string {
   const cols = listed(pattern, opts);
+  const checks = result.checks;
+  const tq = torqueDrives(checks);
   const label = (c: number) => pattern.creases[c].label;
   const largest = result.rows.reduce((m, r) => Math.max(m, r.maxResidual ?? 0), 0);
   const meta = {
@@ -272,11 +339,13 @@ export function followTable(
     ...accuracyMeta(largest),
     status: result.status,
     unreachableRows: result.rows.filter((r) => r.unreachable).length,
+    ...checksMeta(pattern, checks, opts.units),
     ...provenanceMeta(header),
   };
   if (format === 'json') {
     return JSON.stringify({
       ...meta,
+      ...checksJson(pattern, checks),
       largestResidual: jsonNum(largest),
       columns: cols.map(label),
       rows: result.rows.map((r) => ({
@@ -285,12 +354,13 @@ export function followTable(
         drives: Object.fromEntries([...r.values].map(([c, v]) => [label(c), deg(v)])),
         ...(r.angles ? { angles: byLabel(pattern, cols, r.angles!, deg), maxResidual: r.maxResidual } : { unreachable: r.unreachable }),
         ...(r.rates ? { rates: byLabel(pattern, cols, r.rates!) } : {}),
+        ...stateJson(pattern, r.checks),
       })),
       events: eventsJson(pattern, result.events),
       messages: result.messages.map((m) => ({ severity: m.severity, code: m.code, text: m.text })),
     }, null, 2) + '\n';
   }
-  const head = ['time', ...cols.map(label), ...(opts.rates ? cols.map((c) => `rate:${label(c)}`) : []), 'max_residual', 'flag'];
+  const head = ['time', ...cols.map(label), ...(opts.rates ? cols.map((c) => `rate:${label(c)}`) : []), 'max_residual', 'flag', ...stateHead(pattern, checks, tq)];
   const lines = [metadataLines(meta) + head.map(csvCell).join(',')];
   for (const r of result.rows) {
     lines.push([
@@ -299,8 +369,10 @@ export function followTable(
       ...(opts.rates ? cols.map((c) => (r.rates ? num(r.rates[c]) : '')) : []),
       num(r.maxResidual),
       csvCell(r.unreachable ? `unreachable: ${r.unreachable}` : ''),
+      ...stateCells(r.checks, checks, tq),
     ].join(','));
   }
+  for (const e of result.events) if (e.type === 'contact') lines.push(`# event: ${e.type} at ${num(e.drive * DEG)} deg: ${e.text.replace(/[\r\n]+/g, ' ')}`);
   return lines.join('\n') + '\n';
 }
 

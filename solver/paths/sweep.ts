@@ -20,6 +20,7 @@ import { ConditionTracker, NormalSystem, dot } from './linear';
 import { branchesAt, flatBranches, tangentMatchesAssignment, type Branch } from './branches';
 import { matchesAssignment, solveDrives } from '../search/solve';
 import { wrapAngle } from '../math/rotation';
+import type { ChecksSummary, StateChecks } from '../outputs/path-physics';
 
 const DEG = 180 / Math.PI;
 /** A sample is kept when its largest vertex residual is at most this (radians); RESIDUAL_TOLERANCE is 1e-10. */
@@ -85,9 +86,11 @@ export interface SweepSample {
   /** 2-norm condition number of the free creases' Jacobian; NaN when not evaluated at this sample */
   condition: number;
   nearSingular: boolean;
+  /** what a caller's onSample hook found here (contact, torque), when it checks */
+  checks?: StateChecks;
 }
 
-export type SweepEventType = 'turning-point' | 'branch-point' | 'hinge-limit' | 'folded-flat' | 'corrector-failed';
+export type SweepEventType = 'turning-point' | 'branch-point' | 'hinge-limit' | 'folded-flat' | 'corrector-failed' | 'contact';
 
 export interface SweepEvent {
   type: SweepEventType;
@@ -99,6 +102,10 @@ export interface SweepEvent {
   angles: Float64Array;
   /** rays leaving a branch point */
   branches?: Branch[];
+  /** contact: the two panels, a point of the contact and their distance there (file units) */
+  panels?: [number, number];
+  point?: [number, number, number];
+  distance?: number;
 }
 
 export type SweepStatus = 'complete' | 'partial' | 'stopped' | 'failed';
@@ -115,11 +122,15 @@ export interface SweepResult {
   branch?: { id?: number; name: string; matchesAssignment: boolean; text: string };
   conditionEvery: number;
   stats: { steps: number; factorizations: number; propagations: number };
+  /** what the caller's per-sample checks found over the path (contact, peak torque), when it checks */
+  checks?: ChecksSummary;
 }
 
 export interface SweepHooks {
   onProgress?(done: number, total: number): void;
   shouldStop?(): boolean;
+  /** called with every sample as it is recorded; 'stop' ends the path there (status partial) */
+  onSample?(sample: SweepSample): 'stop' | void;
 }
 
 /**
@@ -155,7 +166,7 @@ export function sweep(pattern: Pattern, options: SweepOptions, hooks: SweepHooks
  * is asked before every step and stops the sweep with what it has.
  */
 export function* sweepSteps(pattern: Pattern, options: SweepOptions, hooks: SweepHooks = {}): Generator<void, SweepResult> {
-  const run = createSweep(pattern, options);
+  const run = createSweep(pattern, options, hooks);
   while (!run.finished) {
     if (hooks.shouldStop?.()) { run.stop(); break; }
     run.advance();
@@ -173,8 +184,8 @@ export function runSteps<T>(steps: Generator<void, T>): T {
   }
 }
 
-export function createSweep(pattern: Pattern, options: SweepOptions): SweepRun {
-  return new SweepRun(pattern, options);
+export function createSweep(pattern: Pattern, options: SweepOptions, hooks: SweepHooks = {}): SweepRun {
+  return new SweepRun(pattern, options, hooks);
 }
 
 interface Point {
@@ -227,7 +238,7 @@ export class SweepRun {
   private sigmaHistory: { s: number; sigma: number }[] = [];
   private readonly rowsTmp: Float64Array;
 
-  constructor(readonly pattern: Pattern, readonly options: SweepOptions) {
+  constructor(readonly pattern: Pattern, readonly options: SweepOptions, private readonly hooks: SweepHooks = {}) {
     const o = options;
     this.holdSet = new Set((o.holds ?? []).map((h) => h.crease));
     this.sys = buildClosureSystem(pattern);
@@ -683,6 +694,11 @@ export class SweepRun {
 
   private pushSample(s: SweepSample): void {
     this.samples.push(s);
+    if (this.hooks.onSample?.(s) === 'stop' && !this.finished) {
+      // the caller's check ends the path here (its own event says why)
+      if (this.status === 'complete') this.status = 'partial';
+      this.finished = true;
+    }
   }
 
   private end(type: SweepEventType, drive: number, text: string, angles: Float64Array, extra: Partial<SweepEvent> = {}): void {

@@ -5,8 +5,9 @@ import { Harness } from './harness';
 import { e2eTests as appTests } from './app.e2e';
 import { workflowTests } from './workflow.e2e';
 import { toleranceTests } from './tolerance.e2e';
+import { contactTests } from './contact.e2e';
 
-const e2eTests = [...appTests, ...workflowTests, ...toleranceTests];
+const e2eTests = [...appTests, ...workflowTests, ...toleranceTests, ...contactTests];
 
 const words = process.argv.slice(2).map((w) => w.toLowerCase());
 const chosen = e2eTests.filter((t) => !words.length || words.some((w) => t.name.toLowerCase().includes(w)));

@@ -153,7 +153,7 @@ describe('the path in words', () => {
     const s = withPath(failed, { kind: 'flat' });
     render(
       <PathPanel
-        project={project} path={s.path} branches={{ status: 'idle' }} form={{ drive: 'c0', from: '0', to: '180', step: '1', start: 'flat', rangeTouched: false }} tab="charts"
+        project={project} path={s.path} branches={{ status: 'idle' }} form={{ drive: 'c0', from: '0', to: '180', step: '1', start: 'flat', rangeTouched: false, contact: true, clearance: '0' }} tab="charts"
         outcome={pathOutcome(s)} scrubIndex={null} selectedCrease={null} solutionOnScreen="#2" problem={null}
         onForm={() => {}} onTab={() => {}} onCompute={() => {}} onCancel={() => {}} onFix={onFix} onScrub={() => {}} onLoadBranches={() => {}} onPickBranch={() => {}} onFollowRay={() => {}}
       />,
