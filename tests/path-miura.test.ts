@@ -130,3 +130,24 @@ describe('where the condition number is evaluated (as the README and --help say)
     expect(r.messages.some((m) => m.code === 'condition-last-only')).toBe(true);
   });
 });
+
+describe('the drive folded flat at 180° (the last sample of a full path)', () => {
+  it('is the exact folded-flat state, and its rates are the limit of the published relation (1/cos α for the straight creases)', () => {
+    const alpha = 70 * D;
+    const { pattern, drive, sign } = sheet(3, 3, 40, 30, 70);
+    for (const method of ['propagate', 'continue'] as const) {
+      const r = sweep(pattern, { drive, from: 0, to: sign * Math.PI, step: D, method });
+      expect(r.status).toBe('complete');
+      const last = r.samples[r.samples.length - 1];
+      expect(last.drive).toBe(sign * Math.PI);
+      expect(last.maxResidual).toBeLessThanOrEqual(1e-10);
+      for (const c of pattern.creases) {
+        if (c.assignment === 'B') continue;
+        expect(Math.abs(last.angles[c.index])).toBe(Math.PI);
+        // Schenk & Guest 2013: tan(ρs/2) = cos α tan(ρz/2), so dρs/dρz → 1/cos α as ρz → 180°; zigzag rates → 1
+        const want = c.label.startsWith('s') ? 1 / Math.cos(alpha) : 1;
+        expect(Math.abs(Math.abs(last.rates[c.index]) - want), c.label).toBeLessThan(2e-3);
+      }
+    }
+  });
+});

@@ -74,6 +74,8 @@ export interface BranchOptions {
   verify?: boolean;
   /** most curves (besides straight lines) the vertex-by-vertex analysis lists (default 64) */
   maxCurves?: number;
+  /** vertex by vertex: stop at the first curve for which this holds (either sense); the ids of what was found do not change */
+  until?: (tangent: Float64Array) => boolean;
 }
 
 const SIGN_EPS = 1e-9;
@@ -107,7 +109,7 @@ export function flatBranches(pattern: Pattern, opts: BranchOptions = {}): Branch
   if (pattern.interiorVertices.length === 0) {
     messages.push({ severity: 'info', code: 'no-interior-vertex', text: 'The pattern has no interior vertex: every free crease folds on its own.' });
   }
-  const structural = flatModesByVertex(pattern, held, { cap: opts.maxCurves, prefer: assignment });
+  const structural = flatModesByVertex(pattern, held, { cap: opts.maxCurves, prefer: assignment, until: opts.until });
   if (!('reason' in structural)) {
     const raw: RawRay[] = [];
     for (const c of structural.curves) raw.push({ tangent: c.tangent, line: c.line }, { tangent: c.tangent.map((x) => -x), line: c.line });
@@ -117,7 +119,9 @@ export function flatBranches(pattern: Pattern, opts: BranchOptions = {}): Branch
     const check = (t: Float64Array) => rayClosesByVertex(pattern, sys, t, held) ?? verifyRay(problem, base, t);
     const result = organize(pattern, raw, held, opts, 'flat', NaN, messages, problem, base, { structural: true, check });
     result.partial = !structural.complete;
-    if (!structural.complete) {
+    if (structural.stopped) {
+      messages.push({ severity: 'info', code: 'branches-stopped', text: 'The vertex-by-vertex search stopped at the first curve asked for; `hingeplan branches` lists them all (with the same ids).' });
+    } else if (!structural.complete) {
       messages.push({
         severity: 'info',
         code: 'branches-partial',
@@ -364,8 +368,10 @@ interface OrganizeOptions {
  * Group rays into curves (a ray and its opposite) and straight lines, drop rays that only mix lines (dense
  * analysis), check each ray a small step along it, order, name and number them. Ids and names depend on the
  * pattern and the held creases only: a curve's "+" sense is the one in which its lowest-numbered moving crease
- * folds valley-wards; curves that follow the assignment come first, then by their sign patterns; lines after,
- * by their lowest crease. The drive only chooses what the ratios are relative to.
+ * folds valley-wards. Vertex by vertex, straight lines come first (by their lowest crease), then the curves in
+ * the order the search finds them (the one the assignment asks for first), so a search stopped early gives the
+ * same ids to what it found; the dense analysis orders curves that follow the assignment first, then by their
+ * sign patterns, lines after. The drive only chooses what the ratios are relative to.
  */
 function organize(
   pattern: Pattern,
@@ -412,28 +418,39 @@ function organize(
   const prob = problem ?? new ClosureProblem(pattern, (c) => held.has(c));
   const checked = (t: Float64Array): boolean => (!verify ? true : how.check ? how.check(t) : verifyRay(prob, base, t));
   // pair ±: each entry is one curve (or line) with the ray of each sense found
-  interface Pending { rays: Float64Array[]; line?: number[]; kind: BranchKind }
+  interface Pending { rays: Float64Array[]; line?: number[]; kind: BranchKind; verified: boolean }
   const pending: Pending[] = [];
   const same = (a: Float64Array, b: Float64Array) => { for (let i = 0; i < a.length; i++) if (Math.abs(a[i] - b[i]) > 1e-6) return false; return true; };
   const opposite = (a: Float64Array, b: Float64Array) => { for (let i = 0; i < a.length; i++) if (Math.abs(a[i] + b[i]) > 1e-6) return false; return true; };
-  let dropped = 0;
+  let dropped = 0, unconfirmed = 0;
+  const addLines = () => {
+    for (const r of lines) {
+      const key = [...r.line!].sort((a, b) => a - b).join(',');
+      const p = pending.find((q) => q.line && [...q.line].sort((a, b) => a - b).join(',') === key);
+      if (p) { if (!p.rays.some((q) => same(q, r.tangent))) p.rays.push(r.tangent); continue; }
+      pending.push({ rays: [r.tangent], line: r.line, kind: 'line', verified: true });
+    }
+  };
+  // vertex by vertex the order is the search's own (lines, then curves as found), so ids do not depend on how
+  // many curves were looked for or on a check: a curve that does not close stays in the list, marked
+  if (how.structural) addLines();
   for (const r of curves) {
     if (pending.some((p) => p.rays.some((q) => same(q, r.tangent)))) continue;
     const twin = pending.find((p) => !p.line && p.rays.length === 1 && opposite(p.rays[0], r.tangent));
     // at flat the mirror image (z → −z turns every angle around) of a closed state closes: one check per curve
     if (twin && state === 'flat') { twin.rays.push(r.tangent); continue; }
-    if (!checked(r.tangent)) { dropped++; continue; }
+    const ok = checked(r.tangent);
+    if (!ok && !how.structural) { dropped++; continue; }
+    if (!ok) unconfirmed++;
     if (twin) twin.rays.push(r.tangent);
-    else pending.push({ rays: [r.tangent], kind: state === 'regular' ? 'direction' : 'curve' });
+    else pending.push({ rays: [r.tangent], kind: state === 'regular' ? 'direction' : 'curve', verified: ok && verify });
   }
-  for (const r of lines) {
-    const key = [...r.line!].sort((a, b) => a - b).join(',');
-    const p = pending.find((q) => q.line && [...q.line].sort((a, b) => a - b).join(',') === key);
-    if (p) { if (!p.rays.some((q) => same(q, r.tangent))) p.rays.push(r.tangent); continue; }
-    pending.push({ rays: [r.tangent], line: r.line, kind: 'line' });
-  }
+  if (!how.structural) addLines();
   if (dropped) {
     messages.push({ severity: 'info', code: 'ray-not-confirmed', text: `${dropped} direction(s) satisfy the first two orders but no state a small step along them closes; they are left out.` });
+  }
+  if (unconfirmed) {
+    messages.push({ severity: 'warning', code: 'ray-not-confirmed', text: `${unconfirmed} curve(s) satisfy the first two orders at every vertex but no state a small step along them closes; they are listed, marked not verified, and cannot be followed.` });
   }
   // the canonical crease of a curve: its lowest-numbered moving crease (independent of the drive)
   const canonical = (t: Float64Array): number => {
@@ -443,7 +460,7 @@ function organize(
   const plusOf = (p: Pending) => { const ref = canonical(p.rays[0]); return p.rays.find((t) => ref < 0 || t[ref] > 0) ?? p.rays[0]; };
   const key = (t: Float64Array) => Array.from(t, (x) => (x > SIGN_EPS ? '+' : x < -SIGN_EPS ? '-' : '0')).join('');
   const matches = (p: Pending) => p.rays.some((t) => tangentMatchesAssignment(pattern, t) || tangentMatchesAssignment(pattern, t.map((x) => -x)));
-  pending.sort((a, b) => {
+  if (!how.structural) pending.sort((a, b) => {
     if ((a.kind === 'line') !== (b.kind === 'line')) return a.kind === 'line' ? 1 : -1;
     if (a.kind === 'line') return Math.min(...a.line!) - Math.min(...b.line!);
     if (matches(a) !== matches(b)) return matches(a) ? -1 : 1;
@@ -476,7 +493,7 @@ function organize(
         reference: ref,
         ratios,
         ...(p.line ? { line: p.line } : {}),
-        verified: p.kind === 'line' || verify,
+        verified: p.kind === 'line' || p.verified,
       });
     }
     const canonLabel = canon >= 0 ? pattern.creases[canon].label : '?';

@@ -34,6 +34,8 @@ export interface FlatModes {
   complete: boolean;
   /** the cap on curves other than straight lines, when it stopped the enumeration */
   limit?: number;
+  /** the search stopped at the first curve the caller was looking for */
+  stopped?: boolean;
   /** some curves share no vertex, so they also fold together in any proportion */
   combinations: boolean;
 }
@@ -121,10 +123,11 @@ interface Frame {
 export function flatModesByVertex(
   pattern: Pattern,
   held: Set<number>,
-  options: { cap?: number; prefer?: Float64Array } = {},
+  options: { cap?: number; prefer?: Float64Array; until?: (tangent: Float64Array) => boolean } = {},
 ): FlatModes | { reason: string } {
   const cap = options.cap ?? DEFAULT_CURVE_CAP;
   const prefer = options.prefer;
+  let stopped = false;
   const sys = buildClosureSystem(pattern);
   const nc = pattern.creases.length;
   const isFree = (c: number) => pattern.creases[c].assignment !== 'B' && pattern.creases[c].assignment !== 'F' && !held.has(c);
@@ -160,7 +163,7 @@ export function flatModesByVertex(
   const trail: number[] = [];
   const queue: number[] = [];
 
-  for (let r = 0; r < nc && !capped; r++) {
+  for (let r = 0; r < nc && !capped && !stopped; r++) {
     if (!isFree(r)) continue;
     if (blocksOf[r].length === 0) {
       // a crease at no interior vertex folds alone
@@ -170,7 +173,8 @@ export function flatModesByVertex(
       continue;
     }
     t.fill(0); set.fill(0); done.fill(0); trail.length = 0; queue.length = 0;
-    t[r] = 1; set[r] = 1;
+    // the sense the assignment asks of the reference crease, so the preferred modes are the matching ones
+    t[r] = prefer && prefer[r] < 0 ? -1 : 1; set[r] = 1;
     queue.push(...blocksOf[r]);
     const frames: Frame[] = [];
     let head = 0;
@@ -249,12 +253,14 @@ export function flatModesByVertex(
       const li = lineOf.get(support.join(','));
       if (li !== undefined && support.every((c) => Math.abs(Math.abs(tangent[c]) - Math.abs(tangent[support[0]])) < 1e-9)) continue;
       curves.push({ tangent, blocks });
+      if (options.until?.(tangent) || options.until?.(tangent.map((x) => -x))) { stopped = true; break; }
       if (++others >= cap) { capped = true; break; }
     }
+    if (stopped) break;
   }
   // curves that share no moving vertex fold together too
   const combinations = disjointPair(curves);
-  return { curves, complete: !capped, ...(capped ? { limit: cap } : {}), combinations };
+  return { curves, complete: !capped && !stopped, ...(capped ? { limit: cap } : {}), ...(stopped ? { stopped: true } : {}), combinations };
 }
 
 /** Whether two curves move no vertex in common. */

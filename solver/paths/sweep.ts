@@ -32,6 +32,8 @@ const PROPAGATION_STEP = 2 / DEG;
 /** Continuation step limits: arclength over the unknowns (radians), and the largest change of one angle per step. */
 const H_MIN = 1e-9;
 const MAX_ANGLE_STEP = 0.15;
+/** At a drive of ±180°, a crease this close (radians) to ±180° or 0 on the path is taken to be exactly there. */
+const FLAT_END_SNAP = 0.05;
 /** A crease this close to ±180° is folded flat. */
 const FLAT_FOLDED = 1e-7;
 /** Samples this close to flat (radians) on a branch from flat come from the branch's series; see seriesSamples. */
@@ -408,8 +410,11 @@ export class SweepRun {
 
   private pickFlatRay(): Float64Array | null {
     const o = this.options;
-    const analysis = flatBranches(this.pattern, { held: this.holdSet, drive: o.drive });
     const sense = this.travel;
+    // without a branch or a direction to follow, the search vertex by vertex stops at the first curve that
+    // moves the drive this way with the assignment's signs (the ids of what it found are those of the full list)
+    const wanted = (t: Float64Array) => Math.abs(t[o.drive]) > 1e-9 && tangentMatchesAssignment(this.pattern, Math.sign(t[o.drive]) === sense ? t : t.map((x) => -x));
+    const analysis = flatBranches(this.pattern, { held: this.holdSet, drive: o.drive, ...(o.branch === undefined && !o.prefer ? { until: wanted } : {}) });
     const moving = analysis.branches.filter((b) => Math.abs(b.tangent[o.drive]) > 1e-9 && Math.sign(b.tangent[o.drive]) === sense);
     const list = (bs: Branch[]) => bs.map((b) => `${b.id} (${b.name}${b.matchesAssignment ? ', matches' : ''})`).join(', ');
     if (o.branch !== undefined) {
@@ -432,7 +437,8 @@ export class SweepRun {
       this.branchInfo = { id: b.id, name: b.name, matchesAssignment: b.matchesAssignment, text: analysis.groups.find((g) => g.name === b.group)?.text ?? '' };
       return b.tangent;
     }
-    const matching = moving.filter((b) => b.matchesAssignment);
+    // curves before straight lines folding alone, then by id
+    const matching = moving.filter((b) => b.matchesAssignment && b.verified).sort((p, q) => Number(p.kind === 'line') - Number(q.kind === 'line') || p.id - q.id);
     if (matching.length === 0) {
       if (analysis.partial && this.pattern.creases.some((c) => c.assignment === 'M' || c.assignment === 'V')) {
         // a sheet too large for the full flat analysis: start by the assignment's signs (vertex by vertex
@@ -447,6 +453,8 @@ export class SweepRun {
     }
     if (matching.length > 1) {
       this.messages.push({ severity: 'warning', code: 'branch-not-unique', text: `${matching.length} branches from flat match the assignment: ${list(matching)}; following ${matching[0].id}. Choose another with the branch option.` });
+    } else if (analysis.messages.some((m) => m.code === 'branches-stopped')) {
+      this.messages.push({ severity: 'info', code: 'branch-first-matching', text: `Following the first branch found vertex by vertex that moves ${this.label} ${sense > 0 ? 'up' : 'down'} with the assignment's signs (${matching[0].id}, ${matching[0].name}); \`hingeplan branches\` lists every branch, and another is chosen with the branch option.` });
     }
     const b = matching[0];
     this.branchInfo = { id: b.id, name: b.name, matchesAssignment: true, text: analysis.groups.find((g) => g.name === b.group)?.text ?? '' };
@@ -716,6 +724,17 @@ export class SweepRun {
     const dist = target - last.s;
     const s = Math.abs(dist) > PROPAGATION_STEP * (1 + 1e-6) ? last.s + Math.sign(dist) * PROPAGATION_STEP : target;
     const solved = this.propagateAt(s, last, this.before);
+    if (!solved && s === target && Math.abs(s) >= Math.PI - 1e-15 && this.samples.length >= 2) {
+      // the drive folded flat: the closed form's roots merge there; the sheet's folded-flat state is exact
+      const a = this.samples[this.samples.length - 2], b = this.samples[this.samples.length - 1];
+      const end = this.foldedFlatEnd(s, { y: a.angles, drive: a.drive }, { y: b.angles, drive: b.drive }, [a.rates, b.rates]);
+      if (end) {
+        this.pushSample({ drive: s, angles: end.y, maxResidual: end.maxResidual, rates: end.rates, ...(end.curvature ? { curvature: end.curvature } : {}), condition: Infinity, nearSingular: true });
+        this.nextTarget++;
+        this.checkFoldedFlatAtSample(s, end.y);
+        return;
+      }
+    }
     if (!solved) {
       // out of reach of some vertex (a turning point of the drive, or a state the mesh cannot take):
       // continuation from the last good state finds out which
@@ -1023,6 +1042,10 @@ export class SweepRun {
    * curvature (J_free r̈ = −Q(ṙ), Q the second order of the closure).
    */
   private solveFixed(s: number, p: Point, q: Point): { y: Float64Array; maxResidual: number; rates: Float64Array; curvature?: Float64Array } | undefined {
+    if (Math.abs(s) >= Math.PI - 1e-15) {
+      const end = this.foldedFlatEnd(s, p, q);
+      if (end) return end;
+    }
     const ns = this.fixedSystem();
     const uc = this.problem.unknownCreases;
     const f = q.drive === p.drive ? 0 : (s - p.drive) / (q.drive - p.drive);
@@ -1063,6 +1086,40 @@ export class SweepRun {
       if (cvec) for (let i = 0; i < this.n; i++) if (i !== this.d) curvature[uc[i]] = cvec[i];
     }
     return { y: z, maxResidual: worst, rates, curvature };
+  }
+
+  /**
+   * The drive at exactly ±180° with every crease going to ±180° or 0 with it (a sheet folding flat): that
+   * state is exact, and a solve there converges only linearly (the closure is singular). Each crease is taken
+   * to the value it goes to, and the state kept when it closes; the rates are the limit of the path's
+   * (extrapolated from p and q to the end in the square of the distance), since at the end itself they are not
+   * defined by the closure.
+   */
+  private foldedFlatEnd(s: number, p: Point, q: Point, known?: [Float64Array, Float64Array]): { y: Float64Array; maxResidual: number; rates: Float64Array; curvature?: Float64Array } | undefined {
+    const uc = this.problem.unknownCreases;
+    const f = q.drive === p.drive ? 0 : (s - p.drive) / (q.drive - p.drive);
+    const z = new Float64Array(p.y.length);
+    for (let c = 0; c < z.length; c++) z[c] = p.y[c] + f * (q.y[c] - p.y[c]);
+    for (const c of uc) {
+      const a = wrapAngle(z[c]);
+      if (Math.abs(a) >= Math.PI - FLAT_END_SNAP) z[c] = Math.sign(a) * Math.PI;
+      else if (Math.abs(a) <= FLAT_END_SNAP) z[c] = 0;
+      else return undefined;
+    }
+    z[this.options.drive] = s;
+    const worst = this.problem.evaluate(z, false);
+    if (!(worst <= SAMPLE_TOLERANCE)) return undefined;
+    const d = this.d;
+    const ratesOf = (pt: Point) => { const r = new Float64Array(z.length); if (pt.t) for (let i = 0; i < this.n; i++) r[uc[i]] = pt.t[i] / pt.t[d]; r[this.options.drive] = 1; return r; };
+    const [rp, rq] = known ?? [ratesOf(p), ratesOf(q)];
+    // a curve through the folded-flat state is its own mirror image about it (z → −z, θ → −θ is the same
+    // rotation at ±180°), so the rates are even in u = s − θ: r(u) = r(0) + c·u² + O(u⁴), extrapolated in u²
+    const up = (s - p.drive) ** 2, uq = (s - q.drive) ** 2;
+    const rates = up === uq ? Float64Array.from(rq) : rp.map((v, c) => (v * uq - rq[c] * up) / (uq - up));
+    if (!this.messages.some((m) => m.code === 'folded-flat-end')) {
+      this.messages.push({ severity: 'info', code: 'folded-flat-end', text: `At ${this.label} = ${(s * DEG).toFixed(4)}° the sheet is folded flat (every crease at ±180° or 0): that sample is exact, and its rates are the limit of the path's rates, extrapolated to the end.` });
+    }
+    return { y: z, maxResidual: worst, rates, ...(this.options.curvature ? { curvature: new Float64Array(z.length) } : {}) };
   }
 
   /** Bisection on the arclength from p for the point where the drive's tangent component vanishes. */
@@ -1109,6 +1166,16 @@ export class SweepRun {
     };
     const hit = cross(x1);
     if (!hit) return false;
+    // the drive reaching ±180° with the sheet folding flat with it (the last sample) is not an early end: one
+    // solve just before the end tells it from a crease folding flat earlier (then the bisection below locates it)
+    const endsAtFlat = Math.abs(this.targets[this.targets.length - 1]) >= Math.PI - 1e-12;
+    if (hit.type === 'folded-flat' && this.targets.slice(this.nextTarget).every((t) => Math.abs(t) >= Math.PI - 1e-12)) {
+      const end = Math.sign(s1 || s0) * Math.PI;
+      const probe = end - Math.sign(end) * 5e-4;
+      if ((s0 - probe) * Math.sign(end) >= 0) return false;
+      const before = (s1 - probe) * Math.sign(end) >= 0 ? solveAt(probe) : undefined;
+      if (before && !cross(before)) return false;
+    }
     // bisection on the drive for the first crossing
     let lo = s0, hi = s1;
     let loX = x0;
@@ -1120,8 +1187,11 @@ export class SweepRun {
     }
     const c = this.pattern.creases[hit.crease];
     // creases that fold flat together with the drive itself (a sheet folding flat at drive ±180°, the last
-    // sample): not an early end; the last sample is solved at exactly ±180° and reports it
-    if (hit.type === 'folded-flat' && Math.PI - Math.abs(lo) < 1e-3 && this.targets.slice(this.nextTarget).every((t) => Math.abs(t) >= Math.PI - 1e-12)) return false;
+    // sample): not an early end; the samples before it are taken, and the last one at exactly ±180° reports it
+    if (hit.type === 'folded-flat' && Math.PI - Math.abs(lo) < 1e-3 && endsAtFlat) {
+      this.collectUpTo(lo, solveAt);
+      return this.finished;
+    }
     // samples up to the event are reachable: the caller has not collected them yet
     this.collectUpTo(lo, solveAt);
     if (this.finished) return true;
