@@ -343,6 +343,8 @@ function jobResult<T extends z.ZodType>(value: T) {
 }
 
 const requestId = z.string().regex(/^[A-Za-z0-9:_-]{1,80}$/);
+/** Requests that set the solver working may carry the page's id for them, to cancel them with job:cancel. */
+const optionalRequestId = { requestId: requestId.optional() };
 const patternKey = z.string().min(1).max(120);
 
 export const SweepOptionsSchema = z.object({
@@ -494,9 +496,9 @@ export type StartupInfo = z.output<typeof StartupSchema>;
 
 export const channels = {
   'app:startup': { request: empty, response: StartupSchema },
-  'doc:new': { request: GeneratorSpecSchema, response: OpenResultSchema },
-  'doc:open': { request: z.object({ format: z.enum(['any', 'fold', 'drawing']).default('any') }), response: OpenResultSchema },
-  'doc:open-recent': { request: z.object({ path: z.string().max(4096) }), response: OpenResultSchema },
+  'doc:new': { request: GeneratorSpecSchema.and(z.object(optionalRequestId)), response: OpenResultSchema },
+  'doc:open': { request: z.object({ format: z.enum(['any', 'fold', 'drawing']).default('any'), ...optionalRequestId }), response: OpenResultSchema },
+  'doc:open-recent': { request: z.object({ path: z.string().max(4096), ...optionalRequestId }), response: OpenResultSchema },
   'doc:save': {
     request: z.object({
       project: ProjectSchema,
@@ -504,6 +506,7 @@ export const channels = {
       filePath: z.string().max(4096).nullable(),
       saveAs: z.boolean(),
       suggestedName: z.string().max(200),
+      ...optionalRequestId,
     }),
     response: WriteResultSchema,
   },
@@ -517,6 +520,7 @@ export const channels = {
       suggestedName: z.string().max(200),
       /** the document's file (one this window opened or saved), whose text the table header names and hashes */
       filePath: z.string().max(4096).nullable().default(null),
+      ...optionalRequestId,
     }),
     response: WriteResultSchema,
   },
@@ -565,7 +569,7 @@ export const channels = {
     response: jobResult(ToleranceResultSchema),
   },
   'shape': {
-    request: z.object({ key: patternKey, anglesDeg: z.array(finite), basePanel: z.number().int().nonnegative().optional() }),
+    request: z.object({ key: patternKey, anglesDeg: z.array(finite), basePanel: z.number().int().nonnegative().optional(), ...optionalRequestId }),
     response: jobResult(ShapeSchema),
   },
   'job:cancel': { request: z.object({ requestId }), response: z.object({ cancelled: z.boolean() }) },

@@ -43,6 +43,9 @@ import {
   type SolveResultDto,
 } from './contract';
 import { JobFailure } from './worker-protocol';
+import { fileText, isBytes } from './text-bytes';
+import { ExportSweepSchema, storedPathFor } from './export-path';
+import { checkAngleTableSize, checkScheduleSize } from './work-limits';
 import { LruMap } from './lru';
 import { runSteps, sampleDegrees, type SweepResult } from '../solver/paths/sweep';
 import { angleTable, scheduleTable, type TableHeader } from '../solver/outputs/table';
@@ -73,7 +76,7 @@ export interface StoredPath {
 }
 
 export function createJobState(): JobState {
-  return { patterns: new LruMap(4), paths: new LruMap(6) };
+  return { patterns: new LruMap(4), paths: new LruMap(2) };
 }
 
 function parse<T extends z.ZodType>(schema: T, payload: unknown, what: string): z.output<T> {
@@ -99,11 +102,16 @@ function messages(list: { severity: string; code: string; text: string; where?: 
 
 // ---------- load and save ----------
 
-const LoadRequest = z.object({ text: z.string(), fileName: z.string().max(4096) });
+/** A file as main read it: its bytes (bounded by main before reading), decoded here as the readers take them. */
+const FileBytes = z.custom<Uint8Array>(isBytes, 'expected the bytes of a file');
+const LoadRequest = z.object({ bytes: FileBytes, fileName: z.string().max(4096) });
 
 export function loadJob(_state: JobState, payload: unknown) {
-  const { text, fileName } = parse(LoadRequest, payload, 'load');
-  const loaded = loadPatternText(text, fileName);
+  const { bytes, fileName } = parse(LoadRequest, payload, 'load');
+  const decoded = fileText(bytes, fileName);
+  const format = /\.fold$/i.test(fileName) ? ('fold' as const) : /\.svg$/i.test(fileName) ? ('svg' as const) : ('project' as const);
+  if (!decoded.ok) return { ok: false as const, format, messages: [{ severity: 'error' as const, code: decoded.code, text: decoded.message, where: { line: decoded.line } }] };
+  const loaded = loadPatternText(decoded.text, fileName);
   const msgs = messages(loaded.messages);
   // a file whose pattern does not build cannot be shown; its messages say why and where
   if (!loaded.project || !loaded.pattern) return { ok: false as const, format: loaded.format ?? 'project', messages: msgs };
@@ -250,16 +258,31 @@ const ExportRequest = z.object({
   kind: ExportKindSchema,
   project: ProjectSchema,
   key: z.string(),
-  pathId: z.string().optional(),
+  /** tables: the sweep whose path they are written from (see export-path.ts) */
+  sweep: ExportSweepSchema.optional(),
   options: ExportOptionsSchema,
-  /** tables: the document's file name and its text on disk (absent when never saved), and the program version */
-  file: z.object({ name: z.string().max(4096), text: z.string().optional() }).optional(),
+  /** tables: the document's file name and its bytes on disk (absent when never saved), and the program version */
+  file: z.object({ name: z.string().max(4096), bytes: FileBytes.optional() }).optional(),
   version: z.string().max(100).optional(),
+  /** tables: send the text to main in pieces as it is written (main writes the file as they come) */
+  stream: z.boolean().optional(),
 });
 
 export interface ExportData {
+  /** the file's text; empty when it went to main in pieces (`streamed`) */
   data: string;
   extension: string;
+  streamed?: boolean;
+}
+
+/** Pieces of about a megabyte: few messages, and main's memory holds a piece, not the table. */
+const PIECE = 1 << 20;
+
+/** A table goes to main in pieces when main writes it as it comes (the request asks, the context can), else whole. */
+function deliver(text: string, extension: string, stream: boolean | undefined, ctx?: JobContext): ExportData {
+  if (!stream || !ctx?.write) return { data: text, extension };
+  for (let i = 0; i < text.length; i += PIECE) ctx.write(text.slice(i, i + PIECE));
+  return { data: '', extension, streamed: true };
 }
 
 export function exportJob(state: JobState, payload: unknown, ctx?: JobContext): ExportData {
@@ -285,12 +308,11 @@ export function exportJob(state: JobState, payload: unknown, ctx?: JobContext): 
       return { data: JSON.stringify(shapeToJSON(pattern, foldedShape(pattern, angles(), base)), null, 1) + '\n', extension: 'json' };
     case 'angle-table':
     case 'schedule': {
-      if (!req.pathId) throw new JobFailure('no-path', 'compute a path first: tables are written from the computed path');
-      const stored = state.paths.get(req.pathId);
-      if (!stored || stored.key !== req.key) throw new JobFailure('path-unknown', 'the computed path is no longer available; compute it again');
+      const stored = storedPathFor(state, pattern, req.key, req.sweep, req.kind === 'angle-table', ctx);
       const file = req.file ?? { name: 'pattern.hingeplan.json' };
       const header = (command: string) => appTableHeader(pattern, req.project, file, req.version ?? 'unknown', command);
-      return req.kind === 'angle-table' ? writeAngleTable(pattern, stored, req.options, file.name, header, req.project) : writeSchedule(pattern, stored, req.options, file.name, header, req.project, ctx);
+      const table = req.kind === 'angle-table' ? writeAngleTable(pattern, stored, req.options, file.name, header, req.project) : writeSchedule(pattern, stored, req.options, file.name, header, req.project, ctx);
+      return deliver(table.data, table.extension, req.stream, ctx);
     }
   }
 }
@@ -316,6 +338,8 @@ function heldDrives(pattern: Pattern, path: StoredPath): Drive[] {
 
 function writeAngleTable(pattern: Pattern, path: StoredPath, options: Options, fileName: string, header: (command: string) => TableHeader, project: ProjectDto): ExportData {
   const creases = chosenCreases(pattern, options.creases);
+  const columns = creases?.length ?? pattern.creases.filter((c) => c.assignment !== 'B').length;
+  checkAngleTableSize((path.raw as SweepResult).samples.length, columns, options.rates);
   const text = angleTable(pattern, path.raw as SweepResult, header(tableCommand(pattern, fileName, path.request, options)), heldDrives(pattern, path), {
     format: options.format,
     rates: options.rates,
@@ -351,6 +375,7 @@ function writeSchedule(pattern: Pattern, path: StoredPath, options: Options, fil
     ...(options.maxRateDegPerS !== undefined ? { maxRate: options.maxRateDegPerS * RAD } : {}),
     ...(options.maxAccelDegPerS2 !== undefined ? { maxAcceleration: options.maxAccelDegPerS2 * RAD } : {}),
   };
+  checkScheduleSize(options.timeS, options.dtS, options.rows, pattern.creases.length);
   const timed = options.profile !== 'constant';
   const holds = heldDrives(pattern, path);
   const scheduleOptions: ScheduleOptions = {

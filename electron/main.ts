@@ -34,7 +34,10 @@ export function commandLineFile(argv: string[], packaged: boolean): string | und
 // Registered before `ready`: the renderer is served from hingeplan://app/, a secure standard origin.
 protocol.registerSchemesAsPrivileged([{ scheme: APP_SCHEME, privileges: { standard: true, secure: true, supportFetchAPI: true } }]);
 
-app.on('web-contents-created', (_event, contents) => hardenWebContents(contents));
+/** A packaged build has no developer tools: they would run any code in the page, bridge included. */
+const build = { packaged: app.isPackaged };
+
+app.on('web-contents-created', (_event, contents) => hardenWebContents(contents, build));
 
 async function serveAsset(rendererRoot: string, request: Request): Promise<Response> {
   const file = resolveAppAsset(rendererRoot, request.url);
@@ -52,7 +55,7 @@ export async function startApp(): Promise<BrowserWindow> {
   protocol.handle(APP_SCHEME, (request) => serveAsset(paths.rendererRoot, request));
   // no remote content: any request that is not for the app's own files is cancelled
   session.defaultSession.webRequest.onBeforeRequest((details, callback) => {
-    callback({ cancel: !isAppUrl(details.url) && !details.url.startsWith('devtools:') });
+    callback({ cancel: !isAppUrl(details.url) && !(!build.packaged && details.url.startsWith('devtools:')) });
   });
 
   const userData = app.getPath('userData');
@@ -60,7 +63,7 @@ export async function startApp(): Promise<BrowserWindow> {
   const recent = new RecentFiles(path.join(userData, 'recent-files.json'));
   const solver = new SolverClient({ spawn: nodeWorkerSpawner(paths.worker) });
 
-  const win = new BrowserWindow(mainWindowOptions(paths.preload));
+  const win = new BrowserWindow(mainWindowOptions(paths.preload, build));
   let dirty = false;
   let title = 'Hingeplan';
   let closeConfirmed = false;
@@ -72,7 +75,7 @@ export async function startApp(): Promise<BrowserWindow> {
   const sendCommand = (command: MenuCommand, filePath?: string) => send('menu:command', filePath ? { command, path: filePath } : { command });
 
   const rebuildMenu = async () => {
-    const template = menuTemplate({ send: sendCommand, recent: await recent.list(), platform: process.platform, quit: () => app.quit() });
+    const template = menuTemplate({ send: sendCommand, recent: await recent.list(), platform: process.platform, devTools: !build.packaged, quit: () => app.quit() });
     Menu.setApplicationMenu(Menu.buildFromTemplate(template));
   };
 

@@ -9,6 +9,8 @@ export interface MenuHooks {
   send(command: MenuCommand, path?: string): void;
   recent: { path: string; name: string }[];
   platform: NodeJS.Platform;
+  /** offer the developer tools (builds run from source only) */
+  devTools: boolean;
   /** opens the folder of recovery copies, help, ... handled by the main process itself */
   quit(): void;
 }
@@ -76,8 +78,7 @@ export function menuTemplate(hooks: MenuHooks): MenuItemConstructorOptions[] {
         { role: 'resetZoom' },
         { role: 'zoomIn' },
         { role: 'zoomOut' },
-        { type: 'separator' },
-        { role: 'toggleDevTools' },
+        ...(hooks.devTools ? [{ type: 'separator' } as const, { role: 'toggleDevTools' } as const] : []),
       ],
     },
   ];

@@ -3,12 +3,13 @@
 // table exports.
 
 import { z } from 'zod';
-import type { Pattern } from '../solver/types';
+import type { Drive, Pattern } from '../solver/types';
 import { sweep, type SweepEvent, type SweepOptions, type SweepResult, type SweepSample } from '../solver/paths/sweep';
 import { flatBranches, type Branch, type BranchAnalysis } from '../solver/paths/branches';
 import { DriveSpecSchema, SweepOptionsSchema, finiteOrNull, type BranchDto, type BranchesResultDto, type PathResultDto } from './contract';
 import { JobFailure, type JobContext } from './worker-protocol';
-import { patternFor, resolveOrFail, type JobState } from './jobs';
+import { patternFor, resolveOrFail, type JobState, type StoredPath } from './jobs';
+import { checkPathSize } from './work-limits';
 import { finishChecks } from '../solver/outputs/path-physics';
 import { pathChecks } from './path-checks';
 import { matchesAssignment } from '../solver/search/solve';
@@ -191,11 +192,32 @@ export function sweepJob(state: JobState, payload: unknown, ctx: JobContext): Pa
   if (!r.success) throw new JobFailure('bad-request', 'sweep: malformed request');
   const { key, pathId, options: o } = r.data;
   const pattern = patternFor(state, key);
+  const computed = computePath(pattern, key, o, ctx);
+  if ('messages' in computed) return { pathId, driveCrease: -1, driveLabel: o.drive, samples: [], events: [], messages: computed.messages, complete: false };
+  const result = computed.raw as SweepResult;
+  const { request, held } = computed;
+  // kept here for the analyses that follow the path on screen (tolerance); exports solve it again in their lane
+  if (result.status !== 'failed' && result.samples.length) state.paths.set(pathId, { key, driveCrease: result.drive, raw: result, request });
+  const startKind = request.startAnglesDeg ? 'state' : held.some((h) => h.value !== 0) ? 'solution' : 'flat';
+  // a path from a given state is named by the flat ray it runs along, when it passes through flat
+  let named: { name: string; matchesAssignment: boolean } | undefined;
+  if (startKind === 'state' && result.samples.length > 1 && !ctx.shouldStop()) {
+    const ray = flatRayOf(pattern, result, new Set(held.map((h) => h.crease)));
+    if (ray) named = { name: ray.name, matchesAssignment: ray.matchesAssignment };
+  }
+  return { ...pathDto(pattern, pathId, result, named), startKind };
+}
+
+/**
+ * The path of a sweep request, solved here: what the window is sent, and what a table export writes from
+ * (the export worker computes it again from the same request, to the same numbers). Its `request` is the
+ * one the path was solved for (a start on a branch through flat becomes that branch from flat).
+ */
+export function computePath(pattern: Pattern, key: string, o: z.output<typeof SweepOptionsSchema>, ctx: JobContext): (StoredPath & { held: Drive[] }) | { messages: BranchesResultDto['messages'] } {
   const drive = resolveOrFail(pattern, [{ crease: o.drive, angleDeg: o.fromDeg }]);
   const held = resolveOrFail(pattern, o.held);
-  if (drive.failed || held.failed) {
-    return { pathId, driveCrease: -1, driveLabel: o.drive, samples: [], events: [], messages: [...drive.messages, ...held.messages], complete: false };
-  }
+  if (drive.failed || held.failed) return { messages: [...drive.messages, ...held.messages] };
+  checkPathSize(o.fromDeg, o.toDeg, o.stepDeg, pattern.creases.length);
   const samples = degreeSamples(o.fromDeg, o.toDeg, o.stepDeg);
   // a solution on a branch through flat, with the range on its side of flat: follow that branch from flat
   // (found by the rays at flat on sheets small enough for the full analysis, else the branch that follows
@@ -241,13 +263,5 @@ export function sweepJob(state: JobState, payload: unknown, ctx: JobContext): Pa
     ...(request.startAnglesDeg ? { start: Float64Array.from(request.startAnglesDeg, (a) => a * RAD) } : {}),
   };
   result ??= run(options);
-  if (result.status !== 'failed' && result.samples.length) state.paths.set(pathId, { key, driveCrease: result.drive, raw: result, request });
-  const startKind = request.startAnglesDeg ? 'state' : held.drives.some((h) => h.value !== 0) ? 'solution' : 'flat';
-  // a path from a given state is named by the flat ray it runs along, when it passes through flat
-  let named: { name: string; matchesAssignment: boolean } | undefined;
-  if (startKind === 'state' && result.samples.length > 1 && !ctx.shouldStop()) {
-    const ray = flatRayOf(pattern, result, new Set(held.drives.map((h) => h.crease)));
-    if (ray) named = { name: ray.name, matchesAssignment: ray.matchesAssignment };
-  }
-  return { ...pathDto(pattern, pathId, result, named), startKind };
+  return { key, driveCrease: result.drive, raw: result, request, held: held.drives };
 }

@@ -19,9 +19,12 @@ import {
   type ResponseOf,
   type WriteResult,
 } from './contract';
-import { describeWriteError, readTextFile, writeFileAtomic, type RecentFiles, type RecoveryStore } from './files';
-import type { SolverClient } from './solver-client';
-import type { LaneOutcome } from './worker-client';
+import { createAtomicFile, describeWriteError, readFileBytes, removeStaleTemps, writeFileAtomic, type AtomicFile, type RecentFiles, type RecoveryStore } from './files';
+import type { LaneName, SolverClient } from './solver-client';
+import { RequestRegistry, type Request } from './requests';
+import { LruMap } from './lru';
+import { ApprovedFiles } from './approved-files';
+import type { LaneOutcome, RunOptions } from './worker-client';
 
 export interface FileFilter {
   name: string;
@@ -105,6 +108,16 @@ function jobAnswer<T>(outcome: LaneOutcome<T>): { status: 'done'; value: T } | {
   return outcome;
 }
 
+/** A request the page cancelled (or a newer one replaced) while main was working on it. */
+class Stopped extends Error {}
+
+/** The value of a job, or Stopped when it was cancelled or superseded; a failure is the caller's to show. */
+function valueOf<T>(outcome: LaneOutcome<T>): T {
+  if (outcome.status === 'done') return outcome.value;
+  if (outcome.status === 'failed') throw new ServiceError(outcome.error.code, outcome.error.message);
+  throw new Stopped();
+}
+
 interface LoadAnswer {
   ok: boolean;
   format: OpenedDocument['format'];
@@ -114,16 +127,41 @@ interface LoadAnswer {
 
 export function createService(deps: ServiceDeps) {
   const { solver, host, recovery, recent, startup } = deps;
-  /** Files this window may write without asking: ones the person opened or chose to save to. */
-  const approved = new Set<string>();
+  /** Files this window may write without asking: ones main itself got from a dialog, the command line or its recent list. */
+  const approved = new ApprovedFiles(recent);
+  const requests = new RequestRegistry();
+  /** The requests of the paths the page was sent, by path id: table exports solve them again in their own lane. */
+  const sweeps = new LruMap<string, { key: string; options: ParsedRequestOf<'sweep'>['options'] }>(8);
 
-  async function openFile(filePath: string, extra: { computePath?: boolean; asSample?: boolean } = {}): Promise<OpenResult> {
+  /** Run `fn` as one request under the page's id (or a new one); Stopped becomes the channel's "cancelled" answer. */
+  async function asRequest<T>(id: string | undefined, whenStopped: T, fn: (r: Request) => Promise<T>): Promise<T> {
+    const request = requests.begin(id);
+    if (!request) throw new ServiceError('bad-request', `the request id ${id} is already in use`);
+    try {
+      return await fn(request);
+    } catch (err) {
+      if (err instanceof Stopped) return whenStopped;
+      throw err;
+    } finally {
+      requests.end(request);
+    }
+  }
+
+  /** A worker job of a request; never started once the request is cancelled. */
+  function job<T>(request: Request, lane: LaneName, kind: string, payload: { key?: string } & Record<string, unknown>, options: Omit<RunOptions, 'requestId'> = {}): Promise<LaneOutcome<T>> {
+    if (request.cancelled) return Promise.resolve({ status: 'cancelled' });
+    return solver.run<T>(lane, kind, payload, { ...options, requestId: request.id });
+  }
+
+  async function openFile(request: Request, filePath: string, extra: { computePath?: boolean; asSample?: boolean } = {}): Promise<OpenResult> {
     const fileName = path.basename(filePath);
-    const read = await readTextFile(filePath);
+    const read = await readFileBytes(filePath);
     if (!read.ok) {
       return { status: 'failed', fileName, messages: [{ severity: 'error', code: read.code, text: read.message }] };
     }
-    const loaded = unwrap(await solver.run<LoadAnswer>('interactive', 'load', { text: read.text, fileName }));
+    // what an interrupted save of this file left beside it (the app's own temporary files only)
+    if (!extra.asSample) await removeStaleTemps(filePath);
+    const loaded = valueOf(await job<LoadAnswer>(request, 'interactive', 'load', { bytes: read.bytes, fileName }));
     if (!loaded.ok || !loaded.project) return { status: 'failed', fileName, messages: loaded.messages };
     if (!extra.asSample) {
       approved.add(filePath);
@@ -150,16 +188,56 @@ export function createService(deps: ServiceDeps) {
     } catch (err) {
       return { status: 'failed', message: describeWriteError(filePath, err) };
     }
-    approved.add(filePath);
     return { status: 'saved', filePath, fileName: path.basename(filePath) };
   }
+
+  /**
+   * A table written into its file while the worker computes it: pieces are appended to a temporary file in
+   * order, which replaces the target only when the job finished; a failure, a cancel or a full disk leave
+   * the target as it was (and a write error stops the job).
+   */
+  async function streamTo(request: Request, target: string, payload: Record<string, unknown>, onProgress?: (done: number, total: number, phase?: string) => void): Promise<WriteResult> {
+    let file: AtomicFile;
+    try {
+      file = await createAtomicFile(target);
+    } catch (err) {
+      return { status: 'failed', message: describeWriteError(target, err) };
+    }
+    let writing = Promise.resolve();
+    let writeError: unknown;
+    const onChunk = (data: string) => {
+      writing = writing.then(() => (writeError ? undefined : file.write(data))).catch((err: unknown) => {
+        writeError ??= err;
+        solver.cancel(request.id);
+      });
+    };
+    const outcome = await job<{ streamed?: boolean; data: string }>(request, 'export', 'export', payload, { onProgress, onChunk });
+    await writing;
+    if (outcome.status !== 'done' || request.cancelled || writeError) {
+      await file.abort();
+      if (writeError) return { status: 'failed', message: describeWriteError(target, writeError) };
+      if (outcome.status === 'failed') return { status: 'failed', message: outcome.error.message };
+      return { status: 'canceled' };
+    }
+    try {
+      if (!outcome.value.streamed) await file.write(outcome.value.data);
+      await file.commit();
+    } catch (err) {
+      await file.abort();
+      return { status: 'failed', message: describeWriteError(target, err) };
+    }
+    return { status: 'saved', filePath: target, fileName: path.basename(target) };
+  }
+
+  const progressTo = (requestId: string | undefined) =>
+    requestId ? (done: number, total: number, phase?: string) => host.emit('job:progress', { requestId, done, total, ...(phase ? { phase } : {}) }) : undefined;
 
   const handlers: Handlers = {
     async 'app:startup'() {
       const startupMessages: MessageDto[] = [];
       let document = null;
       const target = startup.openPath ?? startup.samplePath;
-      const opened = await openFile(target, { computePath: true, asSample: !startup.openPath });
+      const opened = await asRequest<OpenResult>(undefined, { status: 'canceled' }, (r) => openFile(r, target, { computePath: true, asSample: !startup.openPath }));
       if (opened.status === 'opened') document = opened.document;
       else if (opened.status === 'failed') {
         startupMessages.push({ severity: 'error', code: 'startup-open-failed', text: `${opened.fileName} could not be opened.` }, ...opened.messages);
@@ -174,77 +252,98 @@ export function createService(deps: ServiceDeps) {
       };
     },
 
-    async 'doc:new'(spec) {
-      const made = unwrap(await solver.run<LoadAnswer>('interactive', 'generate', spec as Record<string, unknown>));
-      const fileName = `${spec.name ?? spec.kind}.hingeplan.json`;
-      if (!made.ok || !made.project) return { status: 'failed', fileName, messages: made.messages };
-      return {
-        status: 'opened',
-        document: { project: made.project, filePath: null, fileName, format: 'project', messages: made.messages, computePath: made.project.drives.length === 1 },
-      };
+    async 'doc:new'({ requestId, ...spec }) {
+      return asRequest<OpenResult>(requestId, { status: 'canceled' }, async (r) => {
+        const made = valueOf(await job<LoadAnswer>(r, 'interactive', 'generate', spec as Record<string, unknown>));
+        const fileName = `${spec.name ?? spec.kind}.hingeplan.json`;
+        if (!made.ok || !made.project) return { status: 'failed', fileName, messages: made.messages };
+        return {
+          status: 'opened',
+          document: { project: made.project, filePath: null, fileName, format: 'project', messages: made.messages, computePath: made.project.drives.length === 1 },
+        };
+      });
     },
 
-    async 'doc:open'({ format }) {
-      const filters =
-        format === 'fold' ? [FOLD_FILTER]
-        : format === 'drawing' ? [DRAWING_FILTER]
-        : [{ name: 'Patterns', extensions: ['json', 'fold', 'dxf', 'svg'] }, PROJECT_FILTER, FOLD_FILTER, DRAWING_FILTER];
-      const title = format === 'fold' ? 'Import FOLD' : format === 'drawing' ? 'Import drawing (DXF or SVG)' : 'Open pattern';
-      const chosen = await host.chooseOpenFile({ title, filters });
-      if (!chosen) return { status: 'canceled' };
-      return openFile(chosen, { computePath: true });
+    async 'doc:open'({ format, requestId }) {
+      return asRequest<OpenResult>(requestId, { status: 'canceled' }, async (r) => {
+        const filters =
+          format === 'fold' ? [FOLD_FILTER]
+          : format === 'drawing' ? [DRAWING_FILTER]
+          : [{ name: 'Patterns', extensions: ['json', 'fold', 'dxf', 'svg'] }, PROJECT_FILTER, FOLD_FILTER, DRAWING_FILTER];
+        const title = format === 'fold' ? 'Import FOLD' : format === 'drawing' ? 'Import drawing (DXF or SVG)' : 'Open pattern';
+        const chosen = await host.chooseOpenFile({ title, filters });
+        if (!chosen) return { status: 'canceled' };
+        return openFile(r, chosen, { computePath: true });
+      });
     },
 
-    async 'doc:open-recent'({ path: filePath }) {
+    async 'doc:open-recent'({ path: filePath, requestId }) {
       // only files the person opened before: the page cannot name an arbitrary file to read
       if (!(await recent.has(filePath))) {
         return { status: 'failed', fileName: path.basename(filePath), messages: [{ severity: 'error', code: 'not-recent', text: `${path.basename(filePath)} is not in the recent files list.` }] };
       }
-      const r = await openFile(filePath, { computePath: true });
-      if (r.status === 'failed' && r.messages.some((m) => m.code === 'file-missing')) {
-        await recent.remove(filePath).catch(() => undefined);
-        host.recentChanged();
-      }
-      return r;
-    },
-
-    async 'doc:save'({ project, filePath, saveAs, suggestedName }) {
-      // a FOLD file or a drawing is not written over with a project: saving asks where
-      let target = !saveAs && filePath && approved.has(filePath) && !/\.(fold|dxf|svg)$/i.test(filePath) ? filePath : null;
-      if (!target) {
-        target = await host.chooseSaveFile({ title: 'Save project', defaultName: `${baseName(suggestedName)}.hingeplan.json`, filters: [PROJECT_FILTER] });
-        if (!target) return { status: 'canceled' };
-      }
-      const text = unwrap(await solver.run<string>('interactive', 'write-project', { project }));
-      const result = await writeTo(target, text);
-      if (result.status === 'saved') {
-        await recent.add(target).catch(() => undefined);
-        host.recentChanged();
-      }
-      return result;
-    },
-
-    async 'doc:export'({ kind, project, key, pathId, options, suggestedName, filePath }) {
-      const spec = EXPORT_FILES[kind];
-      const target = await host.chooseSaveFile({
-        title: spec.title,
-        defaultName: exportFileName(kind, suggestedName, options.format),
-        filters: [spec.filter],
-      });
-      if (!target) return { status: 'canceled' };
-      // a table's header names the document's file and hashes its text: read only a file this window opened or saved
-      let file: { name: string; text?: string } | undefined;
-      if (kind === 'angle-table' || kind === 'schedule') {
-        file = { name: filePath ? path.basename(filePath) : suggestedName };
-        if (filePath && approved.has(filePath)) {
-          const read = await readTextFile(filePath);
-          if (read.ok) file.text = read.text;
+      return asRequest<OpenResult>(requestId, { status: 'canceled' }, async (req) => {
+        const r = await openFile(req, filePath, { computePath: true });
+        if (r.status === 'failed' && r.messages.some((m) => m.code === 'file-missing')) {
+          await recent.remove(filePath).catch(() => undefined);
+          host.recentChanged();
         }
-      }
-      const outcome = await solver.run<{ data: string }>('long', 'export', { kind, project, key, pathId, options, file, version: startup.version });
-      if (outcome.status === 'failed') return { status: 'failed', message: outcome.error.message };
-      if (outcome.status !== 'done') return { status: 'canceled' };
-      return writeTo(target, outcome.value.data);
+        return r;
+      });
+    },
+
+    async 'doc:save'({ project, filePath, saveAs, suggestedName, requestId }) {
+      return asRequest<WriteResult>(requestId, { status: 'canceled' }, async (r) => {
+        // the page's filePath is only a hint: a path main never approved makes Save ask, as Save As does;
+        // a FOLD file or a drawing is not written over with a project either
+        let target = !saveAs && filePath && !/\.(fold|dxf|svg)$/i.test(filePath) && (await approved.has(filePath)) ? filePath : null;
+        if (!target) {
+          target = await host.chooseSaveFile({ title: 'Save project', defaultName: `${baseName(suggestedName)}.hingeplan.json`, filters: [PROJECT_FILTER] });
+          if (!target) return { status: 'canceled' };
+        }
+        const text = valueOf(await job<string>(r, 'interactive', 'write-project', { project }));
+        if (r.cancelled) return { status: 'canceled' };
+        const result = await writeTo(target, text);
+        if (result.status === 'saved') {
+          // a project file main wrote where the person said: the next Save goes there without asking
+          approved.add(target);
+          await recent.add(target).catch(() => undefined);
+          host.recentChanged();
+        }
+        return result;
+      });
+    },
+
+    async 'doc:export'({ kind, project, key, pathId, options, suggestedName, filePath, requestId }) {
+      return asRequest<WriteResult>(requestId, { status: 'canceled' }, async (r) => {
+        const spec = EXPORT_FILES[kind];
+        const table = kind === 'angle-table' || kind === 'schedule';
+        const sweep = table && pathId ? sweeps.get(pathId) : undefined;
+        if (table && pathId && !sweep) return { status: 'failed', message: 'The computed path is no longer available; compute it again and export.' };
+        const target = await host.chooseSaveFile({
+          title: spec.title,
+          defaultName: exportFileName(kind, suggestedName, options.format),
+          filters: [spec.filter],
+        });
+        if (!target) return { status: 'canceled' };
+        // a table's header names the document's file and hashes its bytes: read only a file main approved
+        let file: { name: string; bytes?: Uint8Array } | undefined;
+        if (table) {
+          file = { name: filePath ? path.basename(filePath) : suggestedName };
+          if (filePath && (await approved.has(filePath))) {
+            const read = await readFileBytes(filePath);
+            if (read.ok) file.bytes = read.bytes;
+          }
+        }
+        const payload = { kind, project, key, ...(sweep ? { sweep: { pathId, ...sweep } } : {}), options, file, version: startup.version, stream: table };
+        if (!table) {
+          const outcome = await job<{ data: string }>(r, 'export', 'export', payload, { onProgress: progressTo(requestId) });
+          if (outcome.status === 'failed') return { status: 'failed', message: outcome.error.message };
+          if (outcome.status !== 'done' || r.cancelled) return { status: 'canceled' };
+          return writeTo(target, outcome.value.data);
+        }
+        return streamTo(r, target, payload, progressTo(requestId));
+      });
     },
 
     async 'doc:export-chart'({ format, data, suggestedName }) {
@@ -259,7 +358,7 @@ export function createService(deps: ServiceDeps) {
     },
 
     async 'doc:state'(state) {
-      host.documentState(state);
+      host.documentState({ ...state, filePath: (await approved.has(state.filePath)) ? state.filePath : null });
       return { ok: true };
     },
 
@@ -268,6 +367,11 @@ export function createService(deps: ServiceDeps) {
     },
 
     async 'recovery:write'({ id, project, documentName, originalPath }) {
+      // the copy remembers where the document lives; that must be a file main approved, or restoring it
+      // would let the page choose a file that Save then writes without a dialog
+      if (originalPath !== null && !(await approved.has(originalPath))) {
+        throw new ServiceError('not-approved', `The recovery copy of ${documentName} was not kept: it names a file this window did not open or save.`);
+      }
       await recovery.write(id, project, documentName, originalPath);
       return { ok: true };
     },
@@ -280,57 +384,68 @@ export function createService(deps: ServiceDeps) {
     async 'recovery:restore'({ id }) {
       const item = await recovery.read(id);
       if (!item) return { status: 'failed', fileName: id, messages: [{ severity: 'error', code: 'recovery-missing', text: 'The recovery copy is gone or damaged.' }] };
-      if (item.entry.originalPath) approved.add(item.entry.originalPath);
+      // written by main, but check again: a copy from an older version or another hand gets no file to save over
+      const original = (await approved.has(item.entry.originalPath)) ? item.entry.originalPath : null;
+      const messages: MessageDto[] = [{ severity: 'info', code: 'recovered', text: `Recovered the unsaved edits of ${item.entry.documentName} from ${item.entry.savedAt}.` }];
+      if (item.entry.originalPath && !original) {
+        messages.push({ severity: 'warning', code: 'recovered-unapproved-path', text: `The copy names ${item.entry.originalPath}, which this program did not open or save recently; saving asks where.` });
+      }
       return {
         status: 'opened',
         document: {
           project: item.project,
-          filePath: item.entry.originalPath,
+          filePath: original,
           fileName: item.entry.documentName,
           format: 'project',
-          messages: [{ severity: 'info', code: 'recovered', text: `Recovered the unsaved edits of ${item.entry.documentName} from ${item.entry.savedAt}.` }],
+          messages,
           recovered: true,
         },
       };
     },
 
     async 'pattern:set'({ key, source }) {
-      const r = unwrap(await solver.setPattern(key, source));
-      return r as ResponseOf<'pattern:set'>;
+      const request = requests.begin()!;
+      try {
+        return unwrap(await solver.setPattern(key, source, { requestId: request.id })) as ResponseOf<'pattern:set'>;
+      } finally {
+        requests.end(request);
+      }
     },
 
     async solve({ requestId, key, drives }) {
-      return jobAnswer(await solver.run('interactive', 'solve', { key, drives }, { requestId, supersedeKey: 'solve' })) as ResponseOf<'solve'>;
+      return asRequest(requestId, { status: 'cancelled' as const }, async (r) => jobAnswer(await job(r, 'interactive', 'solve', { key, drives }, { supersedeKey: 'solve' }))) as Promise<ResponseOf<'solve'>>;
     },
 
     async branches({ requestId, key, drives }) {
-      return jobAnswer(await solver.run('long', 'branches', { key, drives }, { requestId, supersedeKey: 'branches' })) as ResponseOf<'branches'>;
+      return asRequest(requestId, { status: 'cancelled' as const }, async (r) => jobAnswer(await job(r, 'long', 'branches', { key, drives }, { supersedeKey: 'branches' }))) as Promise<ResponseOf<'branches'>>;
     },
 
     async sweep({ requestId, key, options }) {
-      const outcome = await solver.run('long', 'sweep', { key, options, pathId: requestId }, {
-        requestId,
-        supersedeKey: 'sweep',
-        onProgress: (done, total, phase) => host.emit('job:progress', { requestId, done, total, ...(phase ? { phase } : {}) }),
-      });
-      return jobAnswer(outcome) as ResponseOf<'sweep'>;
+      return asRequest(requestId, { status: 'cancelled' as const }, async (r) => {
+        const outcome = await job(r, 'long', 'sweep', { key, options, pathId: requestId }, { supersedeKey: 'sweep', onProgress: progressTo(requestId) });
+        if (outcome.status === 'done') sweeps.set(requestId, { key, options });
+        return jobAnswer(outcome);
+      }) as Promise<ResponseOf<'sweep'>>;
     },
 
     async tolerance({ requestId, key, options }) {
-      const outcome = await solver.run('long', 'tolerance', { key, options }, {
-        requestId,
-        supersedeKey: 'tolerance',
-        onProgress: (done, total, phase) => host.emit('job:progress', { requestId, done, total, ...(phase ? { phase } : {}) }),
-      });
-      return jobAnswer(outcome) as ResponseOf<'tolerance'>;
+      return asRequest(requestId, { status: 'cancelled' as const }, async (r) => {
+        // the sweep's request too: a worker that lost the path (restarted, evicted) solves it again
+        const sweep = sweeps.get(options.pathId);
+        const payload = { key, options, ...(sweep ? { sweep: { pathId: options.pathId, ...sweep } } : {}) };
+        return jobAnswer(await job(r, 'long', 'tolerance', payload, { supersedeKey: 'tolerance', onProgress: progressTo(requestId) }));
+      }) as Promise<ResponseOf<'tolerance'>>;
     },
 
-    async shape({ key, anglesDeg, basePanel }) {
-      return jobAnswer(await solver.run('interactive', 'shape', { key, anglesDeg, basePanel }, { supersedeKey: 'shape' })) as ResponseOf<'shape'>;
+    async shape({ key, anglesDeg, basePanel, requestId }) {
+      return asRequest(requestId, { status: 'cancelled' as const }, async (r) => jobAnswer(await job(r, 'interactive', 'shape', { key, anglesDeg, basePanel }, { supersedeKey: 'shape' }))) as Promise<ResponseOf<'shape'>>;
     },
 
     async 'job:cancel'({ requestId }) {
-      return { cancelled: solver.cancel(requestId) };
+      // both: a request main has not handed to a worker yet, and the job a lane runs or queues for it
+      const live = requests.cancel(requestId);
+      const inLane = solver.cancel(requestId);
+      return { cancelled: live || inLane };
     },
 
     async 'clipboard:write'({ text }) {

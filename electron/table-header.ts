@@ -5,7 +5,8 @@
 
 import type { Pattern } from '../solver/types';
 import type { TableHeader } from '../solver/outputs/table';
-import { sha256 } from '../solver/outputs/sha256';
+import { sha256, sha256Bytes } from '../solver/outputs/sha256';
+import { fileText } from './text-bytes';
 import { loadPatternText, writeProject, type Project } from '../solver';
 import { PatternSourceSchema, type DriveSpec, type ExportOptionsSchema, type ProjectDto, type SweepOptionsSchema } from './contract';
 import type { z } from 'zod';
@@ -18,25 +19,27 @@ export function shellWord(a: string): string {
   return /^[A-Za-z0-9_@%+=:,./-]+$/.test(a) ? a : `'${a.replace(/'/g, `'\\''`)}'`;
 }
 
-/** The file the header names and hashes, and whether its text on disk is the pattern that was solved. */
+/** The file the header names and hashes, and whether its contents on disk are the pattern that was solved. */
 export interface HeaderFile {
   name: string;
-  /** the file's text as read by the main process (absent for a document never saved) */
-  text?: string;
+  /** the file's bytes as read by the main process (absent for a document never saved) */
+  bytes?: Uint8Array;
 }
 
 /**
- * File name and SHA-256 for the header. The file's own text when it holds the pattern that was solved;
- * otherwise (unsaved edits, a new document) the text Save would write, and the header says so, since the
+ * File name and SHA-256 for the header. The SHA-256 of the file's own bytes (byte-order mark and all, as
+ * `sha256sum` sees them) when it holds the pattern that was solved; otherwise (unsaved edits, a new
+ * document, a file no longer UTF-8) of the text Save would write, and the header says so, since the
  * command reproduces the table only once that is saved.
  */
 export function fileFields(project: ProjectDto, file: HeaderFile): { file: string; fileSha256: string } {
-  if (file.text !== undefined) {
-    const loaded = loadPatternText(file.text, file.name);
+  const decoded = file.bytes ? fileText(file.bytes, file.name) : undefined;
+  if (file.bytes && decoded?.ok) {
+    const loaded = loadPatternText(decoded.text, file.name);
     // both through the contract's schema, so key order and null-for-absent cannot make equal patterns differ
     const norm = (a: unknown) => { const r = PatternSourceSchema.safeParse(a); return r.success ? JSON.stringify(r.data) : undefined; };
     const onDisk = loaded.project ? norm(loaded.project.source) : undefined;
-    if (onDisk !== undefined && onDisk === norm(project.source)) return { file: file.name, fileSha256: sha256(file.text) };
+    if (onDisk !== undefined && onDisk === norm(project.source)) return { file: file.name, fileSha256: sha256Bytes(file.bytes) };
   }
   return {
     file: `${file.name} (not saved as solved: the SHA-256 is of the project as Save would write it; save it before running the command)`,

@@ -11,11 +11,13 @@ import { ToleranceOptionsSchema, type ToleranceResultDto } from './contract';
 import { JobFailure, type JobContext } from './worker-protocol';
 import { patternFor, resolveOrFail, type JobState } from './jobs';
 import { degreeSamples } from './path-jobs';
+import { ExportSweepSchema, storedPathFor } from './export-path';
 
 const DEG = 180 / Math.PI;
 const RAD = Math.PI / 180;
 
-const ToleranceRequest = z.object({ key: z.string(), options: ToleranceOptionsSchema });
+/** `sweep`: the request of the path (main keeps it), so a worker that lost the path solves it again */
+const ToleranceRequest = z.object({ key: z.string(), options: ToleranceOptionsSchema, sweep: ExportSweepSchema.optional() });
 
 const nullable = (x: number) => (Number.isFinite(x) ? x : null);
 const deg = (x: number) => (Number.isFinite(x) ? x * DEG : null);
@@ -78,7 +80,8 @@ export function toleranceJob(state: JobState, payload: unknown, ctx: JobContext)
   if (!r.success) throw new JobFailure('bad-request', 'tolerance: malformed request');
   const { key, options: o } = r.data;
   const pattern = patternFor(state, key);
-  const stored = state.paths.get(o.pathId);
+  const kept = state.paths.get(o.pathId);
+  const stored = kept && kept.key === key ? kept : r.data.sweep ? storedPathFor(state, pattern, key, r.data.sweep, true, ctx) : undefined;
   if (!stored || stored.key !== key) throw new JobFailure('path-unknown', 'The path the sheets should follow is no longer known to the solver; compute the path again.');
   const sweep = stored.raw as SweepResult;
   const held = resolveOrFail(pattern, stored.request.held);

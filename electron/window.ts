@@ -35,7 +35,12 @@ export const SECURITY_HEADERS: Record<string, string> = {
   'Referrer-Policy': 'no-referrer',
 };
 
-export function mainWindowOptions(preloadPath: string): BrowserWindowConstructorOptions {
+export interface WindowBuild {
+  /** a packaged build (app.isPackaged): no developer tools */
+  packaged: boolean;
+}
+
+export function mainWindowOptions(preloadPath: string, build: WindowBuild): BrowserWindowConstructorOptions {
   return {
     width: 1480,
     height: 920,
@@ -57,7 +62,8 @@ export function mainWindowOptions(preloadPath: string): BrowserWindowConstructor
       webviewTag: false,
       navigateOnDragDrop: false,
       spellcheck: false,
-      devTools: true,
+      // the developer tools can run any code in the page with its bridge: only in a build run from source
+      devTools: !build.packaged,
     },
   };
 }
@@ -107,16 +113,48 @@ export function mimeType(file: string): string {
   return MIME[path.extname(file).toLowerCase()] ?? 'application/octet-stream';
 }
 
-/** The part of WebContents that hardening touches (a test passes a fake). */
-export type HardenableContents = Pick<WebContents, 'on' | 'setWindowOpenHandler'> & {
-  session: { setPermissionRequestHandler: WebContents['session']['setPermissionRequestHandler'] };
-};
+type Session = WebContents['session'];
+
+/** The part of a session that hardening touches (a test passes a fake). */
+export type HardenableSession = Pick<Session, 'setPermissionRequestHandler' | 'setPermissionCheckHandler' | 'setDevicePermissionHandler' | 'on'>;
+
+/** The part of WebContents that hardening touches. */
+export type HardenableContents = Pick<WebContents, 'on' | 'setWindowOpenHandler' | 'closeDevTools'> & { session: HardenableSession };
+
+const hardenedSessions = new WeakSet<object>();
+
+/**
+ * Refuse every permission the page could ask for (camera, notifications, clipboard reads, HID/serial/USB
+ * devices, ...): the app needs none. The request handler answers prompts; the check handler answers the
+ * synchronous "is it granted?" some APIs ask without prompting, which Electron otherwise grants.
+ */
+export function hardenSession(session: HardenableSession): void {
+  if (hardenedSessions.has(session)) return;
+  hardenedSessions.add(session);
+  session.setPermissionRequestHandler((_wc, _permission, callback) => callback(false));
+  session.setPermissionCheckHandler(() => false);
+  session.setDevicePermissionHandler(() => false);
+  // device pickers: answer "no device" at once instead of letting a chooser appear
+  session.on('select-hid-device', (event, _details, callback) => {
+    event.preventDefault();
+    callback();
+  });
+  session.on('select-usb-device', (event, _details, callback) => {
+    event.preventDefault();
+    callback();
+  });
+  session.on('select-serial-port', (event, _ports, _wc, callback) => {
+    event.preventDefault();
+    callback('');
+  });
+}
 
 /**
  * Block every way the page could leave the app: navigation (links, drops, location changes), new windows,
- * embedded webviews, and permission prompts (camera, notifications, ...), which the app never needs.
+ * embedded webviews; harden its session; and in a packaged build close the developer tools should anything
+ * open them (the window is also made without them).
  */
-export function hardenWebContents(contents: HardenableContents): void {
+export function hardenWebContents(contents: HardenableContents, build: WindowBuild): void {
   contents.on('will-navigate', (event: { preventDefault(): void }, url: string) => {
     if (!isAppUrl(url)) event.preventDefault();
   });
@@ -125,7 +163,8 @@ export function hardenWebContents(contents: HardenableContents): void {
   });
   contents.on('will-attach-webview', (event: { preventDefault(): void }) => event.preventDefault());
   contents.setWindowOpenHandler(() => ({ action: 'deny' }));
-  contents.session.setPermissionRequestHandler((_wc, _permission, callback) => callback(false));
+  hardenSession(contents.session);
+  if (build.packaged) contents.on('devtools-opened', () => contents.closeDevTools());
 }
 
 /** The built files, relative to dist/electron where main.cjs runs. */

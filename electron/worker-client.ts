@@ -1,9 +1,13 @@
 // Main side of the worker protocol: a lane is one worker thread running one job at a time, with a queue.
 // A job given a supersede key replaces every older job of the same key: a queued one is dropped, a running
 // one is asked to stop and its answer thrown away. That keeps a dragged slider from queueing stale solves.
+// A stopped job that does not look at the stop flag soon (one long solve, a load) has its worker replaced
+// at once; one that does gets a grace period to return. Workers run with memory limits, so a runaway
+// allocation ends the worker, never the process around it: the job fails with a message, the next one
+// gets a new worker.
 
-import { Worker } from 'node:worker_threads';
-import type { FromWorker, JobError, ToWorker } from './worker-protocol';
+import { Worker, type ResourceLimits } from 'node:worker_threads';
+import { CANCEL_BYTES, POLL_CELL, STOP_CELL, type FromWorker, type JobError, type ToWorker } from './worker-protocol';
 
 export type LaneOutcome<T> =
   | { status: 'done'; value: T }
@@ -17,6 +21,8 @@ export interface RunOptions {
   /** a newer job with the same key supersedes this one */
   supersedeKey?: string;
   onProgress?: (done: number, total: number, phase?: string) => void;
+  /** pieces of the file the job writes, in order */
+  onChunk?: (data: string) => void;
 }
 
 export interface WorkerLike {
@@ -42,17 +48,29 @@ export interface LaneOptions {
   spawn: () => WorkerLike;
   /** told when a worker died, so callers can forget state that lived in it */
   onRestart?: (reason: string) => void;
-  /** a stopped job that has not answered after this long has its worker replaced (default 4 s) */
+  /** a stopped job that has not looked at the stop flag after this long has its worker replaced (default 300 ms) */
+  pollGraceMs?: number;
+  /** a stopped job that looked at the flag but has not answered after this long has its worker replaced (default 4 s) */
   stopGraceMs?: number;
+  /** the worker's heap limit, named in the message when a job runs out of it */
+  memoryLimitMb?: number;
 }
 
-export function nodeWorkerSpawner(script: string, execArgv: string[] = []): () => WorkerLike {
-  return () => new Worker(script, { execArgv }) as unknown as WorkerLike;
+/**
+ * Memory a solver worker may use. The heap limit covers the solver's JavaScript objects (a path's samples
+ * as the window receives them, the report arrays); typed arrays live outside it, so requests are also
+ * bounded by work limits checked before anything is allocated (see DEVELOPERS.md).
+ */
+export const SOLVER_RESOURCE_LIMITS: ResourceLimits = { maxOldGenerationSizeMb: 2048, maxYoungGenerationSizeMb: 64, stackSizeMb: 8 };
+
+export function nodeWorkerSpawner(script: string, options: { execArgv?: string[]; resourceLimits?: ResourceLimits } = {}): () => WorkerLike {
+  const resourceLimits = options.resourceLimits ?? SOLVER_RESOURCE_LIMITS;
+  return () => new Worker(script, { execArgv: options.execArgv ?? [], resourceLimits }) as unknown as WorkerLike;
 }
 
 export class WorkerLane {
   private worker: WorkerLike | undefined;
-  private cancelCell = new Int32Array(new SharedArrayBuffer(4));
+  private cancelCell = new Int32Array(new SharedArrayBuffer(CANCEL_BYTES));
   private queue: Pending[] = [];
   private running: Pending | undefined;
   private nextSeq = 1;
@@ -112,27 +130,61 @@ export class WorkerLane {
   private stopRunning(why: 'superseded' | 'cancelled'): void {
     const job = this.running!;
     job.dropped = why;
-    Atomics.store(this.cancelCell, 0, job.seq);
+    const cell = this.cancelCell;
+    const polls = Atomics.load(cell, POLL_CELL);
+    Atomics.store(cell, STOP_CELL, job.seq);
     // answer now: the caller need not wait for the worker to notice
     job.resolve({ status: why });
-    // a job that never polls shouldStop() (one long factorisation, say) must not hold the lane forever
     const worker = this.worker;
-    const timer = setTimeout(() => {
-      if (this.running === job && this.worker === worker) void worker?.terminate();
-    }, this.options.stopGraceMs ?? 4000);
-    (timer as { unref?: () => void }).unref?.();
+    const stillRunning = () => this.running === job && this.worker === worker;
+    // a job that never polls shouldStop() (one long solve or factorisation) must not hold the lane: replace
+    // its worker once it has had a moment to look; one that looked gets the longer grace to return
+    const first = setTimeout(() => {
+      if (!stillRunning()) return;
+      if (Atomics.load(cell, POLL_CELL) === polls) {
+        this.replaceWorker();
+        return;
+      }
+      const second = setTimeout(() => {
+        if (stillRunning()) this.replaceWorker();
+      }, Math.max(0, (this.options.stopGraceMs ?? 4000) - (this.options.pollGraceMs ?? 300)));
+      (second as { unref?: () => void }).unref?.();
+    }, this.options.pollGraceMs ?? 300);
+    (first as { unref?: () => void }).unref?.();
+  }
+
+  /** End the worker of a stopped job and go on with the queue on a new one. */
+  private replaceWorker(): void {
+    const worker = this.worker;
+    if (!worker) return;
+    this.worker = undefined;
+    this.running = undefined;
+    void worker.terminate();
+    this.options.onRestart?.('a stopped job did not return in time');
+    this.pump();
   }
 
   private ensureWorker(): WorkerLike {
     if (this.worker) return this.worker;
     const worker = this.options.spawn();
-    this.cancelCell = new Int32Array(new SharedArrayBuffer(4));
+    this.cancelCell = new Int32Array(new SharedArrayBuffer(CANCEL_BYTES));
     worker.postMessage({ type: 'init', cancel: this.cancelCell.buffer as SharedArrayBuffer });
     worker.on('message', (m) => this.onMessage(worker, m));
-    worker.on('error', (e) => this.onDeath(worker, `the solver stopped: ${e.message}`));
-    worker.on('exit', (code) => this.onDeath(worker, `the solver exited (code ${code})`));
+    worker.on('error', (e) => this.onDeath(worker, this.describeError(e)));
+    worker.on('exit', (code) => this.onDeath(worker, { code: 'worker-failed', message: `the solver exited (code ${code})` }));
     this.worker = worker;
     return worker;
+  }
+
+  private describeError(e: Error): JobError {
+    if ((e as NodeJS.ErrnoException).code === 'ERR_WORKER_OUT_OF_MEMORY') {
+      const limit = this.options.memoryLimitMb ? ` (${this.options.memoryLimitMb} MiB)` : '';
+      return {
+        code: 'worker-out-of-memory',
+        message: `The solver ran out of the memory it may use${limit} and was restarted; the request was not finished. Ask for less at once: a larger step, fewer rows or a smaller pattern.`,
+      };
+    }
+    return { code: 'worker-failed', message: `the solver stopped: ${e.message}` };
   }
 
   private pump(): void {
@@ -151,6 +203,10 @@ export class WorkerLane {
       if (!job.dropped) job.options.onProgress?.(message.done, message.total, message.phase);
       return;
     }
+    if (message.type === 'chunk') {
+      if (!job.dropped) job.options.onChunk?.(message.data);
+      return;
+    }
     this.running = undefined;
     if (!job.dropped) {
       job.resolve(message.ok ? { status: 'done', value: message.value } : { status: 'failed', error: message.error });
@@ -158,14 +214,14 @@ export class WorkerLane {
     this.pump();
   }
 
-  private onDeath(worker: WorkerLike, reason: string): void {
+  private onDeath(worker: WorkerLike, error: JobError): void {
     if (worker !== this.worker) return;
     this.worker = undefined;
     const job = this.running;
     this.running = undefined;
-    if (job && !job.dropped) job.resolve({ status: 'failed', error: { code: 'worker-failed', message: reason } });
+    if (job && !job.dropped) job.resolve({ status: 'failed', error });
     if (this.disposed) return;
-    this.options.onRestart?.(reason);
+    this.options.onRestart?.(error.message);
     this.pump();
   }
 }

@@ -1,7 +1,9 @@
 // The protocol between the main process and a solver worker (worker_threads). Every job has a sequence
 // number; the worker answers with progress messages and one result. Cancelling cannot wait for the worker
 // to read a message (a sweep runs without yielding), so the main side writes the job's number into a
-// shared cell that the job polls through shouldStop().
+// shared cell that the job polls through shouldStop(). Each poll also counts in a second cell, so the main
+// side can tell a job that looks at the flag (give it time to stop) from one that never will (replace its
+// worker at once).
 
 export interface RunMessage {
   type: 'run';
@@ -12,9 +14,14 @@ export interface RunMessage {
 
 export interface InitMessage {
   type: 'init';
-  /** Int32Array over it: [0] = sequence number of the job asked to stop */
+  /** Int32Array over it: [STOP_CELL] = sequence number of the job asked to stop, [POLL_CELL] = polls so far */
   cancel: SharedArrayBuffer;
 }
+
+export const STOP_CELL = 0;
+export const POLL_CELL = 1;
+/** Bytes of the shared cells. */
+export const CANCEL_BYTES = 8;
 
 export type ToWorker = RunMessage | InitMessage;
 
@@ -24,6 +31,13 @@ export interface ProgressMessage {
   done: number;
   total: number;
   phase?: string;
+}
+
+/** A piece of the file a job writes (a table), in order; main appends it to the file as it comes. */
+export interface ChunkMessage {
+  type: 'chunk';
+  seq: number;
+  data: string;
 }
 
 export interface JobError {
@@ -36,12 +50,14 @@ export type ResultMessage =
   | { type: 'result'; seq: number; ok: true; value: unknown; stopped?: boolean }
   | { type: 'result'; seq: number; ok: false; error: JobError };
 
-export type FromWorker = ProgressMessage | ResultMessage;
+export type FromWorker = ProgressMessage | ChunkMessage | ResultMessage;
 
 export interface JobContext {
   progress(done: number, total: number, phase?: string): void;
   /** true once the main side asked this job to stop */
   shouldStop(): boolean;
+  /** send a piece of the job's output file to main, which writes it as it comes (absent: return the whole text) */
+  write?(data: string): void;
 }
 
 /** A job returns its value; it throws a JobFailure for an error that is the caller's to show. */
@@ -68,7 +84,7 @@ export const PROGRESS_INTERVAL_MS = 40;
 
 /** Worker side: answer run messages with the given jobs, one at a time, in arrival order. */
 export function serveJobs(port: PortLike, jobs: Record<string, Job>, now: () => number = Date.now): void {
-  let cancel = new Int32Array(new SharedArrayBuffer(4));
+  let cancel = new Int32Array(new SharedArrayBuffer(CANCEL_BYTES));
   port.on('message', (raw) => {
     const message = raw as ToWorker;
     if (message.type === 'init') {
@@ -90,11 +106,17 @@ export function serveJobs(port: PortLike, jobs: Record<string, Job>, now: () => 
         last = t;
         port.postMessage({ type: 'progress', seq, done, total, phase } satisfies ProgressMessage);
       },
-      shouldStop: () => Atomics.load(cancel, 0) === seq,
+      shouldStop: () => {
+        Atomics.add(cancel, POLL_CELL, 1);
+        return Atomics.load(cancel, STOP_CELL) === seq;
+      },
+      write(data) {
+        if (data) port.postMessage({ type: 'chunk', seq, data } satisfies ChunkMessage);
+      },
     };
     try {
       const value = job(payload, ctx);
-      port.postMessage({ type: 'result', seq, ok: true, value, stopped: ctx.shouldStop() } satisfies ResultMessage);
+      port.postMessage({ type: 'result', seq, ok: true, value, stopped: Atomics.load(cancel, STOP_CELL) === seq } satisfies ResultMessage);
     } catch (err) {
       const error: JobError =
         err instanceof JobFailure

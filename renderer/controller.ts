@@ -40,6 +40,8 @@ export class Controller {
   private solvedFor: { source: unknown; drives: unknown } | null = null;
   private recoveryTimer: ReturnType<typeof setTimeout> | undefined;
   private lastDocState = '';
+  /** the request id of the export being written, if one is */
+  private runningExport: string | undefined;
   private unsubscribe: (() => void)[] = [];
   /** a document asked for its path at opening: computed once its first solve is in, from that solution */
   private autoPath = false;
@@ -183,15 +185,23 @@ export class Controller {
     const key = await this.ensurePattern(project);
     if (!key) return null;
     const shown = this.shownAngles();
-    const r = await this.api.exportFile({
-      kind,
-      project,
-      key,
-      pathId: this.state.path.result?.pathId,
-      options: { ...options, anglesDeg: options.anglesDeg ?? shown ?? undefined, basePanel: project.source.basePanel },
-      suggestedName: doc.fileName,
-      filePath: doc.filePath,
-    });
+    // a table export can take a while: "cancel running job" stops it too
+    const requestId = newId('export');
+    this.runningExport = requestId;
+    const r = await this.api
+      .exportFile({
+        kind,
+        project,
+        key,
+        pathId: this.state.path.result?.pathId,
+        options: { ...options, anglesDeg: options.anglesDeg ?? shown ?? undefined, basePanel: project.source.basePanel },
+        suggestedName: doc.fileName,
+        filePath: doc.filePath,
+        requestId,
+      })
+      .finally(() => {
+        if (this.runningExport === requestId) this.runningExport = undefined;
+      });
     if (!r.ok) {
       this.fail('The export failed', r.error.message);
       return null;
@@ -499,6 +509,12 @@ export class Controller {
     await this.computePath({ drive: path.driveLabel, fromDeg, toDeg: toDeg === fromDeg ? (td > 0 ? 180 : -180) : toDeg, stepDeg: asked?.stepDeg, startAnglesDeg: start, branchId: `ray:${branch.name}`, ray: { name: branch.name, atDeg: event.driveDeg } });
   }
 
+  /** Stop what runs: an export being written, and the path being computed. */
+  async cancelRunning(): Promise<void> {
+    if (this.runningExport) await this.api.cancelJob({ requestId: this.runningExport });
+    await this.cancelPath();
+  }
+
   async cancelPath(): Promise<void> {
     const id = this.state.path.requestId;
     if (!id || this.state.path.status !== 'running') return;
@@ -639,7 +655,7 @@ export class Controller {
       case 'compute-path':
         return this.computePath();
       case 'cancel-job':
-        return this.cancelPath();
+        return this.cancelRunning();
       case 'fit-view':
         this.store.dispatch({ type: 'fit-view' });
         return;

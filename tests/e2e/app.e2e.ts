@@ -315,6 +315,45 @@ export const e2eTests: E2ETest[] = [
     },
   },
   {
+    name: 'requests too large to compute are refused with a message in the window, and the app stays up',
+    timeoutMs: 150_000,
+    async run(h) {
+      await withSession(h, 'oversized-requests', { openSample: COUPON_FILE }, async ({ page, host, tmp }) => {
+        await waitSolved(page);
+        // a path of 1.8 million samples: refused at once, naming the step to use
+        await page.getByLabel('path from, degrees').fill('0');
+        await page.getByLabel('path to, degrees').fill('180');
+        await page.getByLabel('path step, degrees').fill('0.0001');
+        await page.click('[data-testid=compute-path]');
+        await page.getByText(/the window takes at most 8 million\. Use a step of at least/).waitFor({ timeout: 30_000 });
+        // a path the window can take, then a schedule of it with a time step of a nanosecond
+        await page.getByLabel('path step, degrees').fill('20');
+        await page.click('[data-testid=compute-path]');
+        await page.waitForSelector('[data-testid=path-summary]', { timeout: 60_000 });
+        await page.click('button:has-text("Export…")');
+        const dialog = page.getByRole('dialog');
+        await dialog.getByLabel('Deployment schedule of the computed path').check();
+        await dialog.getByLabel('total time (s)').fill('10');
+        await dialog.getByLabel('rows by').selectOption('dt');
+        await dialog.getByLabel('time step (s)').fill('0.000000001');
+        const target = path.join(tmp, 'never.schedule.csv');
+        host.saveAnswers.push(target);
+        const started = Date.now();
+        await dialog.getByTestId('export-go').click();
+        const notice = page.locator('[data-testid=notice-error]').filter({ hasText: /a schedule takes at most 100,000/ });
+        await notice.waitFor({ timeout: 30_000 });
+        assert.ok(Date.now() - started < 15_000, 'refused in seconds');
+        assert.match((await notice.textContent()) ?? '', /time step of 1e-9 s over 10 s gives/);
+        await fs.access(target).then(() => assert.fail('no file is written'), () => undefined);
+        await screenshot(page, 'oversized-requests');
+        // the dialog stays open with what was asked; the app goes on: a drive typed in is solved
+        await dialog.getByRole('button', { name: 'Cancel' }).click();
+        await setDriveField(page, 'c0', 30);
+        assert.match(await waitSolved(page), /Solved|Several/);
+      });
+    },
+  },
+  {
     name: 'a malformed file shows the readers’ message with where it is, and the app stays up',
     async run(h) {
       await withSession(h, 'malformed-file', { openSample: COUPON_FILE }, async ({ page, host, tmp }) => {

@@ -12,8 +12,14 @@ function items(t: MenuItemConstructorOptions[]): MenuItemConstructorOptions[] {
 
 describe('application menu', () => {
   const sent: [string, string | undefined][] = [];
-  const template = menuTemplate({ send: (c, p) => sent.push([c, p]), recent: [{ path: '/w/a.hingeplan.json', name: 'a.hingeplan.json' }], platform: 'linux', quit: () => sent.push(['quit', undefined]) });
+  const template = menuTemplate({ send: (c, p) => sent.push([c, p]), recent: [{ path: '/w/a.hingeplan.json', name: 'a.hingeplan.json' }], platform: 'linux', devTools: true, quit: () => sent.push(['quit', undefined]) });
   const all = items(template);
+
+  it('offers the developer tools only in a build run from source', () => {
+    expect(all.some((i) => i.role === 'toggleDevTools')).toBe(true);
+    const packaged = items(menuTemplate({ send: () => undefined, recent: [], platform: 'linux', devTools: false, quit: () => undefined }));
+    expect(packaged.some((i) => i.role === 'toggleDevTools')).toBe(false);
+  });
 
   it('sends only commands the contract knows', () => {
     for (const i of all) if (i.click && i.label !== 'Quit') (i.click as () => void)();

@@ -3,6 +3,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { mkdtempSync, promises as fs, readdirSync, readFileSync } from 'node:fs';
 import os from 'node:os';
+import { spawn } from 'node:child_process';
 import path from 'node:path';
 import { createService, type DialogHost } from '../../electron/service';
 import { SolverClient } from '../../electron/solver-client';
@@ -144,6 +145,36 @@ describe('main-process handlers', () => {
     expect(await call('doc:open', { format: 'fold' })).toMatchObject({ status: 'failed', messages: [{ code: 'not-text' }] });
   });
 
+  it('refuses a file over the readers’ limit before reading it, and names the line of a byte that is not UTF-8', async () => {
+    const big = path.join(tmp, 'huge.hingeplan.json');
+    await fs.writeFile(big, '');
+    await fs.truncate(big, 40 * 1024 * 1024);
+    host.open.push(big);
+    const r = (await call('doc:open', { format: 'any' })) as { status: string; messages: { code: string; text: string }[] };
+    expect(r).toMatchObject({ status: 'failed', messages: [{ code: 'file-too-large' }] });
+    expect(r.messages[0].text).toContain('32 MiB');
+    const latin1 = path.join(tmp, 'latin1.hingeplan.json');
+    await fs.writeFile(latin1, Buffer.concat([Buffer.from('{\n  "name": "Gr'), Buffer.from([0xf6]), Buffer.from('\u00dfe"\n}\n')]));
+    host.open.push(latin1);
+    const bad = (await call('doc:open', { format: 'any' })) as { status: string; messages: { code: string; text: string; where?: { line?: number } }[] };
+    expect(bad).toMatchObject({ status: 'failed', messages: [{ code: 'not-text', where: { line: 2 } }] });
+    expect(bad.messages[0].text).toMatch(/latin1\.hingeplan\.json is not UTF-8 text: byte \d+ \(line 2/);
+  });
+
+  it('clears what an interrupted save left beside a file when it is opened', async () => {
+    const dir = path.join(tmp, 'leftovers');
+    await fs.mkdir(dir);
+    const file = path.join(dir, 'coupon.hingeplan.json');
+    await fs.copyFile(coupon, file);
+    const child = spawn('true');
+    await new Promise((r) => child.once('exit', r));
+    const left = path.join(dir, `.coupon.hingeplan.json.hingeplan-save-${child.pid}-0a1b.tmp`);
+    await fs.writeFile(left, '{"format": "hingeplan-pro');
+    host.open.push(file);
+    expect(await call('doc:open', {})).toMatchObject({ status: 'opened' });
+    expect(readdirSync(dir)).toEqual(['coupon.hingeplan.json']);
+  });
+
   it('opens only recent files by path: the page cannot name any file to read', async () => {
     const r = (await call('doc:open-recent', { path: '/etc/passwd' })) as { status: string; messages: { code: string }[] };
     expect(r).toMatchObject({ status: 'failed', messages: [{ code: 'not-recent' }] });
@@ -274,20 +305,23 @@ describe('main-process handlers', () => {
   });
 
   it('runs a sweep in the worker with progress to the page, and stops it on cancel', async () => {
-    const m = miura({ rows: 12, cols: 12, a: 20, b: 15, alphaDeg: 70 }).project!;
-    await call('pattern:set', { key: 'm12', source: m.source });
+    const m = miura({ rows: 6, cols: 6, a: 20, b: 15, alphaDeg: 70 }).project!;
+    await call('pattern:set', { key: 'm6', source: m.source });
     host.events = [];
-    const options = { drive: m.drives[0].crease, fromDeg: 0, toDeg: 180, stepDeg: 0.05, held: [] };
-    const running = service.dispatch('sweep', { requestId: 'long-1', key: 'm12', options });
-    for (let i = 0; i < 200 && !host.events.length; i++) await new Promise((r) => setTimeout(r, 20));
+    const options = { drive: m.drives[0].crease, fromDeg: 0, toDeg: 180, stepDeg: 0.02, held: [] };
+    const running = service.dispatch('sweep', { requestId: 'long-1', key: 'm6', options });
+    for (let i = 0; i < 1000 && !host.events.length; i++) await new Promise((r) => setTimeout(r, 20));
     expect(host.events.length).toBeGreaterThan(0);
-    expect(host.events[0]).toMatchObject(['job:progress', { requestId: 'long-1', total: 3601 }]);
+    expect(host.events[0]).toMatchObject(['job:progress', { requestId: 'long-1', total: 9001 }]);
     expect(await call('job:cancel', { requestId: 'long-1' })).toEqual({ cancelled: true });
     expect(await running).toEqual({ ok: true, value: { status: 'cancelled' } });
-    // the lane is free again: the next sweep runs to its end on it
-    const short = (await call('sweep', { requestId: 'short-1', key: 'm12', options: { ...options, stepDeg: 30 } })) as { status: string; value: { samples: unknown[]; complete: boolean } };
+    // the lane is free again at once: the sweep saw the stop flag (a quick job on the same lane answers)
+    const t0 = Date.now();
+    expect(await solver.run('long', 'set-pattern', { key: 'probe', source: loadPatternText(readFileSync(coupon, 'utf8'), 'c.json').project!.source })).toMatchObject({ status: 'done' });
+    expect(Date.now() - t0).toBeLessThan(3000);
+    const short = (await call('sweep', { requestId: 'short-1', key: 'probe', options: { drive: 'c0', fromDeg: 0, toDeg: 150, stepDeg: 30, held: [] } })) as { status: string; value: { samples: unknown[]; complete: boolean } };
     expect(short.status).toBe('done');
-    expect(short.value.samples.length).toBe(7);
+    expect(short.value.samples.length).toBe(6);
   });
 
   it('writes the angle table with the command-line header, and the recorded command writes the same table', async () => {

@@ -16,18 +16,31 @@ const text = readFileSync(file, 'utf8');
 const loaded = loadPatternText(text, 'hinge-coupon.hingeplan.json');
 const project = ProjectSchema.parse(loaded.project);
 const pattern = loaded.pattern!;
-// Node's SHA-256 (OpenSSL) as the reference for the hash of the UTF-8 text
-const hash = (t: string) => createHash('sha256').update(t, 'utf8').digest('hex');
+const bytes = readFileSync(file);
+// Node's SHA-256 (OpenSSL, FIPS 180-4) as the reference: of the file's bytes, or of a text's UTF-8 bytes
+const hash = (t: string | Uint8Array) => (typeof t === 'string' ? createHash('sha256').update(t, 'utf8') : createHash('sha256').update(t)).digest('hex');
 
 describe('table header of an app export', () => {
   it('names and hashes the file when its text is the pattern solved', () => {
-    expect(fileFields(project, { name: 'hinge-coupon.hingeplan.json', text })).toEqual({ file: 'hinge-coupon.hingeplan.json', fileSha256: hash(text) });
+    expect(fileFields(project, { name: 'hinge-coupon.hingeplan.json', bytes })).toEqual({ file: 'hinge-coupon.hingeplan.json', fileSha256: hash(bytes) });
+  });
+
+  it('hashes the bytes as they are on disk: a byte-order mark is part of the file', () => {
+    const withBom = Buffer.concat([Buffer.from([0xef, 0xbb, 0xbf]), bytes]);
+    const f = fileFields(project, { name: 'hinge-coupon.hingeplan.json', bytes: withBom });
+    expect(f).toEqual({ file: 'hinge-coupon.hingeplan.json', fileSha256: hash(withBom) });
+    expect(f.fileSha256).not.toBe(hash(text));
+  });
+
+  it('does not name a file that is no longer UTF-8 as the one solved', () => {
+    const broken = Buffer.concat([bytes, Buffer.from([0x0a, 0xc3, 0x28])]);
+    expect(fileFields(project, { name: 'hinge-coupon.hingeplan.json', bytes: broken }).file).toMatch(/not saved as solved/);
   });
 
   it('says so when the pattern has unsaved edits, and hashes the project as Save would write it', () => {
     const edited = structuredClone(project);
     edited.source.vertices[1] = [edited.source.vertices[1][0] + 1, edited.source.vertices[1][1]];
-    const f = fileFields(edited, { name: 'hinge-coupon.hingeplan.json', text });
+    const f = fileFields(edited, { name: 'hinge-coupon.hingeplan.json', bytes });
     expect(f.file).toMatch(/^hinge-coupon\.hingeplan\.json \(not saved as solved/);
     expect(f.fileSha256).toBe(hash(writeProject(edited as Project)));
     expect(fileFields(project, { name: 'new.hingeplan.json' }).file).toMatch(/not saved as solved/);

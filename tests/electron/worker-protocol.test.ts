@@ -3,11 +3,13 @@
 import { afterEach, describe, expect, it } from 'vitest';
 import { WorkerLane, nodeWorkerSpawner } from '../../electron/worker-client';
 import { buildWorker } from './support';
+import type { ResourceLimits } from 'node:worker_threads';
 
 const lanes: WorkerLane[] = [];
-async function lane(options: { stopGraceMs?: number; onRestart?: (r: string) => void } = {}) {
+async function lane(options: { stopGraceMs?: number; onRestart?: (r: string) => void; resourceLimits?: ResourceLimits; memoryLimitMb?: number } = {}) {
   const script = await buildWorker('tests/electron/fixtures/count-worker.ts');
-  const l = new WorkerLane({ spawn: nodeWorkerSpawner(script), ...options });
+  const { resourceLimits, ...rest } = options;
+  const l = new WorkerLane({ spawn: nodeWorkerSpawner(script, resourceLimits ? { resourceLimits } : {}), ...rest });
   lanes.push(l);
   return l;
 }
@@ -30,7 +32,8 @@ describe('worker lane', () => {
   });
 
   it('cancels a running job: it answers cancelled at once and the worker stops it early', async () => {
-    const l = await lane();
+    const reasons: string[] = [];
+    const l = await lane({ onRestart: (r) => reasons.push(r) });
     let progressed = 0;
     const running = l.run('count', { n: 200, ms: 10 }, { requestId: 'sweep-1', onProgress: () => progressed++ });
     await new Promise((r) => setTimeout(r, 150));
@@ -42,6 +45,8 @@ describe('worker lane', () => {
     expect(await l.run('echo', { ok: 1 })).toEqual({ status: 'done', value: { ok: 1 } });
     expect(Date.now() - t0).toBeLessThan(1500);
     expect(progressed).toBe(before);
+    // a job that looks at the flag keeps its worker (and whatever the worker holds)
+    expect(reasons).toEqual([]);
   });
 
   it('cancels a queued job without running it', async () => {
@@ -93,5 +98,52 @@ describe('worker lane', () => {
     expect(await l.run('echo', 'after')).toEqual({ status: 'done', value: 'after' });
     expect(Date.now() - t0).toBeLessThan(2500);
     expect(reasons.length).toBe(1);
+  });
+
+  it('replaces the worker of a superseded job that never looks at the flag at once, not after the grace period', async () => {
+    const reasons: string[] = [];
+    // the default 4 s grace for jobs that do look; this one never does (one long solve, say)
+    const l = await lane({ onRestart: (r) => reasons.push(r) });
+    const old = l.run('busy', { ms: 6000 }, { supersedeKey: 'solve' });
+    await new Promise((r) => setTimeout(r, 100));
+    const t0 = Date.now();
+    const latest = l.run('echo', 'latest', { supersedeKey: 'solve' });
+    expect(await old).toEqual({ status: 'superseded' });
+    expect(await latest).toEqual({ status: 'done', value: 'latest' });
+    expect(Date.now() - t0).toBeLessThan(2500);
+    expect(reasons).toEqual(['a stopped job did not return in time']);
+  });
+
+  it('gives a stopped job that looks at the flag its grace period before replacing its worker', async () => {
+    const reasons: string[] = [];
+    const l = await lane({ stopGraceMs: 1200, onRestart: (r) => reasons.push(r) });
+    const slow = l.run('linger', { ms: 8000 }, { requestId: 'slow' });
+    await new Promise((r) => setTimeout(r, 100));
+    const t0 = Date.now();
+    l.cancel('slow');
+    expect(await slow).toEqual({ status: 'cancelled' });
+    expect(await l.run('echo', 'next')).toEqual({ status: 'done', value: 'next' });
+    const waited = Date.now() - t0;
+    expect(waited).toBeGreaterThanOrEqual(1100);
+    expect(waited).toBeLessThan(4000);
+    expect(reasons.length).toBe(1);
+  });
+
+  it('ends only the worker when a job allocates without bound: the job fails with a message, the next one runs', async () => {
+    const reasons: string[] = [];
+    const l = await lane({ resourceLimits: { maxOldGenerationSizeMb: 64, maxYoungGenerationSizeMb: 16 }, memoryLimitMb: 64, onRestart: (r) => reasons.push(r) });
+    let peak = process.memoryUsage().rss;
+    const start = peak;
+    const sampler = setInterval(() => (peak = Math.max(peak, process.memoryUsage().rss)), 10);
+    const t0 = Date.now();
+    const r = await l.run('hog', {});
+    clearInterval(sampler);
+    expect(r).toMatchObject({ status: 'failed', error: { code: 'worker-out-of-memory' } });
+    expect((r as { error: { message: string } }).error.message).toMatch(/ran out of the memory it may use \(64 MiB\) and was restarted/);
+    expect(Date.now() - t0).toBeLessThan(15_000);
+    // the process around it grew by about the worker's limit, not without bound
+    expect(peak - start).toBeLessThan(400 * 1024 * 1024);
+    expect(reasons.length).toBe(1);
+    expect(await l.run('echo', 'alive')).toEqual({ status: 'done', value: 'alive' });
   });
 });

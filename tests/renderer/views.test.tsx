@@ -185,7 +185,7 @@ function inProcessTransport() {
       const ok = (value: unknown) => ({ ok: true, value });
       switch (channel) {
         case 'app:startup': {
-          const loaded = jobs.load({ text: couponText, fileName: 'hinge-coupon.hingeplan.json' }, ctx) as { project: ProjectDto };
+          const loaded = jobs.load({ bytes: new TextEncoder().encode(couponText), fileName: 'hinge-coupon.hingeplan.json' }, ctx) as { project: ProjectDto };
           return ok({ version: 't', platform: 'test', document: { project: loaded.project, filePath: null, fileName: 'hinge-coupon.hingeplan.json', format: 'project', messages: [] }, recovery: [], recent: [], startupMessages: [] });
         }
         case 'pattern:set':
