@@ -158,7 +158,7 @@ describe('main-process handlers', () => {
     host.open.push(latin1);
     const bad = (await call('doc:open', { format: 'any' })) as { status: string; messages: { code: string; text: string; where?: { line?: number } }[] };
     expect(bad).toMatchObject({ status: 'failed', messages: [{ code: 'not-text', where: { line: 2 } }] });
-    expect(bad.messages[0].text).toMatch(/latin1\.hingeplan\.json is not UTF-8 text: byte \d+ \(line 2/);
+    expect(bad.messages[0].text).toMatch(/latin1\.hingeplan\.json: The file is not UTF-8 text: at line 2, byte \d+ of the line/);
   });
 
   it('clears what an interrupted save left beside a file when it is opened', async () => {
