@@ -8,18 +8,12 @@ import { join } from 'node:path';
 import { spawn } from 'node:child_process';
 import { createHash } from 'node:crypto';
 import { build } from 'esbuild';
-import { main } from '../cli/main';
-import { nodeIo, type Io } from '../cli/io';
+import { runIn } from './support/cli';
 import { CAUTIONS } from '../solver/formats/cautions';
 
 const dir = mkdtempSync(join(tmpdir(), 'hingeplan-path-cli-'));
 
-function run(args: string[], patch: Partial<Io> = {}) {
-  let out = '';
-  let err = '';
-  const io: Io = { ...nodeIo(), stdout: (t) => { out += t; }, stderr: (t) => { err += t; }, stderrIsTTY: false, ...patch };
-  return main(args, io).then((code) => ({ code, out, err }));
-}
+const run = runIn;
 
 const coupon = join(dir, 'coupon.hingeplan.json');
 const sheet = join(dir, 'sheet.hingeplan.json');

@@ -7,19 +7,12 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { spawn } from 'node:child_process';
 import { createHash } from 'node:crypto';
-import { main } from '../cli/main';
-import { bundledCli } from './support/cli';
-import { nodeIo, type Io } from '../cli/io';
+import { bundledCli, runIn } from './support/cli';
 import { CAUTIONS } from '../solver/formats/cautions';
 
 const dir = mkdtempSync(join(tmpdir(), 'hingeplan-tolerance-cli-'));
 
-function run(args: string[], patch: Partial<Io> = {}) {
-  let out = '';
-  let err = '';
-  const io: Io = { ...nodeIo(), stdout: (t) => { out += t; }, stderr: (t) => { err += t; }, stderrIsTTY: false, ...patch };
-  return main(args, io).then((code) => ({ code, out, err }));
-}
+const run = runIn;
 
 const coupon = join(dir, 'coupon.hingeplan.json');
 const sheet = join(dir, 'sheet.hingeplan.json');

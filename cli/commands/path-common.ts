@@ -9,7 +9,7 @@ import type { TableHeader, TableInput } from '../../solver/outputs/table';
 import { readJsonText } from '../../solver/formats/limits';
 import { decodeUtf8 } from '../../solver/formats/text';
 import { numberOption, UsageError, type OptionSpec } from '../args';
-import { hashBytes, printMessages, type Loaded } from '../load';
+import { hashBytes, loadFile, printMessages, type Loaded } from '../load';
 import type { Io } from '../io';
 import { VERSION } from '../version';
 import { EXIT } from '../exit-codes';
@@ -121,6 +121,22 @@ export function holdsOption(io: Io, loaded: Loaded, holds: string[] | undefined,
     return undefined;
   }
   return resolved.drives;
+}
+
+/**
+ * The pattern file, its drive and its held creases, as every path command reads them; undefined when the
+ * file or a hold was refused (printed).
+ */
+export async function driveSetup(io: Io, command: string, values: Record<string, unknown>, positionals: string[]): Promise<{ loaded: Loaded; file: string; drive: number; holds: Drive[] } | undefined> {
+  const file = positionals[0];
+  const loaded = await loadFile(io, file, command);
+  if (!loaded) return undefined;
+  const { pattern } = loaded;
+  const drive = creaseOption(pattern, values.drive as string | undefined, 'drive');
+  const holds = holdsOption(io, loaded, values.hold as string[] | undefined, file!);
+  if (!holds) return undefined;
+  if (holds.some((h) => h.crease === drive)) throw new UsageError(`--hold: the drive ${pattern.creases[drive].label} cannot also be held`);
+  return { loaded, file: file!, drive, holds };
 }
 
 /** A JSON input (a start state): its bytes checked as UTF-8 and JSON by the core readers. */

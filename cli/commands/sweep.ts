@@ -2,7 +2,7 @@ import type { Command } from '../command';
 import type { Io } from '../io';
 import { parseCommandArgs, UsageError, type OptionValues } from '../args';
 import type { OptionSpec } from '../args';
-import { loadFile, type Loaded } from '../load';
+import type { Loaded } from '../load';
 import { EXIT } from '../exit-codes';
 import { openOutput, type Output } from '../output';
 import { sweepSteps, type SweepOptions, type SweepResult, type SweepSample } from '../../solver/paths/sweep';
@@ -11,7 +11,7 @@ import { CAUTIONS } from '../../solver/formats/cautions';
 import { decimalsText, degreesText } from '../../solver/formats/numbers';
 import type { Drive, Pattern } from '../../solver/types';
 import {
-  creaseOption, digitsOption, EXIT_INTERRUPTED, holdsOption, intOrUndefined, methodOption, PATH_OPTIONS_HELP, pathOptions,
+  driveSetup, digitsOption, EXIT_INTERRUPTED, intOrUndefined, methodOption, PATH_OPTIONS_HELP, pathOptions,
   printSolverMessages, rangeOptions, REQUEST_CODES, requestError, runResponsive, startOption, tableHeader, joinNegativeNumbers,
   checksOption, checksOptions, checksHook, CHECKS_HELP,
 } from './path-common';
@@ -35,14 +35,10 @@ export interface SweepSetup {
 
 /** Everything a path command needs from its options, or undefined when the input was refused (printed). */
 export async function sweepSetup(io: Io, command: string, values: OptionValues, positionals: string[]): Promise<SweepSetup | undefined> {
-  const file = positionals[0];
-  const loaded = await loadFile(io, file, command);
-  if (!loaded) return undefined;
+  const base = await driveSetup(io, command, values, positionals);
+  if (!base) return undefined;
+  const { loaded, file, drive, holds } = base;
   const { pattern } = loaded;
-  const drive = creaseOption(pattern, values.drive as string | undefined, 'drive');
-  const holds = holdsOption(io, loaded, values.hold as string[] | undefined, file!);
-  if (!holds) return undefined;
-  if (holds.some((h) => h.crease === drive)) throw new UsageError(`--hold: the drive ${pattern.creases[drive].label} cannot also be held`);
   const range = rangeOptions(values, pattern.creases.length);
   const start = startOption(io, pattern, values.start as string | undefined);
   if (start === null) return undefined;
@@ -59,17 +55,17 @@ export async function sweepSetup(io: Io, command: string, values: OptionValues, 
     conditionEvery: intOrUndefined(values['condition-every'], 'condition-every', 0),
     keepSamples: false,
   };
-  const checks = checksOption(io, loaded, values, file!, drive, holds);
+  const checks = checksOption(io, loaded, values, file, drive, holds);
   if (!checks) return undefined;
   return {
     loaded,
-    file: file!,
+    file: file,
     options,
     holds,
     checks,
     driveDegrees: new Map(range.samples.map((r, i) => [r, range.degrees[i]])),
     inputs: start ? [start.input] : [],
-    inputFiles: [file!, ...(start ? [start.input.file] : [])],
+    inputFiles: [file, ...(start ? [start.input.file] : [])],
   };
 }
 

@@ -4,7 +4,7 @@
 import type { Command } from '../command';
 import type { Io } from '../io';
 import { numberOption, parseCommandArgs, UsageError, type OptionSpec, type OptionValues } from '../args';
-import { loadFile, type Loaded } from '../load';
+import type { Loaded } from '../load';
 import { EXIT } from '../exit-codes';
 import { textTable } from '../table-text';
 import {
@@ -15,7 +15,7 @@ import { linearMisfit, toleranceTable, worstVertices } from '../../solver/output
 import { CAUTIONS } from '../../solver/formats/cautions';
 import type { SweepOptions } from '../../solver/paths/sweep';
 import {
-  creaseOption, EXIT_INTERRUPTED, holdsOption, intOrUndefined, joinNegativeNumbers, methodOption, pathOptions, printSolverMessages,
+  driveSetup, EXIT_INTERRUPTED, intOrUndefined, joinNegativeNumbers, methodOption, pathOptions, printSolverMessages,
   rangeOptions, runResponsive, startOption, tableHeader,
 } from './path-common';
 import { writeWhole } from '../output';
@@ -42,14 +42,10 @@ const spec: OptionSpec = {
 };
 
 async function options(io: Io, values: OptionValues, positionals: string[]): Promise<{ loaded: Loaded; file: string; options: ToleranceOptions; inputs: TableInput[] } | undefined> {
-  const file = positionals[0];
-  const loaded = await loadFile(io, file, 'tolerance');
-  if (!loaded) return undefined;
+  const base = await driveSetup(io, 'tolerance', values, positionals);
+  if (!base) return undefined;
+  const { loaded, file, drive, holds } = base;
   const { pattern } = loaded;
-  const drive = creaseOption(pattern, values.drive as string | undefined, 'drive');
-  const holds = holdsOption(io, loaded, values.hold as string[] | undefined, file!);
-  if (!holds) return undefined;
-  if (holds.some((h) => h.crease === drive)) throw new UsageError(`--hold: the drive ${pattern.creases[drive].label} cannot also be held`);
   let path: Pick<SweepOptions, 'from' | 'to' | 'samples'>;
   if (values.at !== undefined) {
     if (values.from !== undefined || values.to !== undefined || values.step !== undefined) throw new UsageError('give either --at or --from/--to/--step, not both');
@@ -85,7 +81,7 @@ async function options(io: Io, values: OptionValues, positionals: string[]): Pro
   };
   const refused = checkToleranceOptions(o);
   if (refused) throw new UsageError(refused.replace(/^The number of samples/, '--samples: the number').replace(/^The seed/, '--seed: the seed'));
-  return { loaded, file: file!, options: o, inputs: start ? [start.input] : [] };
+  return { loaded, file, options: o, inputs: start ? [start.input] : [] };
 }
 
 function fmt(x: number, digits = 4): string {

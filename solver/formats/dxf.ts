@@ -10,6 +10,7 @@ import type { Message, Where } from '../types';
 import { MAX_CREASES, MAX_TEXT_BYTES, utf8Length } from './limits';
 import type { Drawing, DrawnLine, DrawnText } from './drawing';
 import { rgbHex, type Colour } from './colour';
+import { apply, compose, IDENTITY, type Affine } from '../math/affine';
 
 /** $INSUNITS codes (DXF reference, header variables; common practice) and the unit names we use. */
 export const INSUNITS: Record<number, string> = {
@@ -30,15 +31,6 @@ interface Entity {
   lines: number[];
 }
 
-/** An affine map x' = a x + c y + e, y' = b x + d y + f. */
-type Affine = [number, number, number, number, number, number];
-const IDENTITY: Affine = [1, 0, 0, 1, 0, 0];
-const compose = (m: Affine, n: Affine): Affine => [
-  m[0] * n[0] + m[2] * n[1], m[1] * n[0] + m[3] * n[1],
-  m[0] * n[2] + m[2] * n[3], m[1] * n[2] + m[3] * n[3],
-  m[0] * n[4] + m[2] * n[5] + m[4], m[1] * n[4] + m[3] * n[5] + m[5],
-];
-const apply = (m: Affine, x: number, y: number): [number, number] => [m[0] * x + m[2] * y + m[4], m[1] * x + m[3] * y + m[5]];
 
 interface Layer {
   colour?: Colour;

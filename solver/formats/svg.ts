@@ -14,6 +14,7 @@ import type { Message, Where } from '../types';
 import { MAX_CREASES, MAX_NESTING, MAX_TEXT_BYTES, utf8Length } from './limits';
 import type { Drawing } from './drawing';
 import { cssColour } from './colour';
+import { apply, compose, IDENTITY, type Affine } from '../math/affine';
 
 const SVG_NS = 'http://www.w3.org/2000/svg';
 const XLINK_NS = 'http://www.w3.org/1999/xlink';
@@ -22,15 +23,6 @@ const MAX_LISTED = 10;
 
 /** Lengths per unit in CSS pixels (CSS Values and Units 3: 1in = 96px = 2.54cm; 1pt = 1/72 in; 1pc = 12pt). */
 const PX_PER: Record<string, number> = { px: 1, '': 1, in: 96, cm: 96 / 2.54, mm: 96 / 25.4, q: 96 / 101.6, pt: 96 / 72, pc: 16 };
-
-type Affine = [number, number, number, number, number, number];
-const IDENTITY: Affine = [1, 0, 0, 1, 0, 0];
-const compose = (m: Affine, n: Affine): Affine => [
-  m[0] * n[0] + m[2] * n[1], m[1] * n[0] + m[3] * n[1],
-  m[0] * n[2] + m[2] * n[3], m[1] * n[2] + m[3] * n[3],
-  m[0] * n[4] + m[2] * n[5] + m[4], m[1] * n[4] + m[3] * n[5] + m[5],
-];
-const apply = (m: Affine, x: number, y: number): [number, number] => [m[0] * x + m[2] * y + m[4], m[1] * x + m[3] * y + m[5]];
 
 class SvgError extends Error {}
 
