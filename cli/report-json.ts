@@ -39,7 +39,7 @@ export function solutionJson(pattern: Pattern, s: Solution, index: number, drive
     matchesAssignment: s.matchesAssignment,
     localDof: s.localDof,
     ...(s.nullity ? { nullity: s.nullity } : {}),
-    condition: finite(s.condition),
+    ...(Number.isNaN(s.condition) ? { conditionEvaluated: false } : { condition: finite(s.condition) }),
     signs: s.signs,
     ...(s.stacked?.length ? { stacked: s.stacked.map((c) => pattern.creases[c].label) } : {}),
     sensitivity,

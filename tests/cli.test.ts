@@ -38,8 +38,26 @@ describe('hingeplan command line', () => {
     expect((await run(['new', 'waterbomb', '--units', ''])).code).toBe(2);
   });
 
-  it('solve --json has the documented shape and exits 0 when solved', async () => {
+  it('solve evaluates condition numbers where asked and says where it did not', async () => {
     const r = await run(['solve', coupon, '--set', 'c0=45', '--json']);
+    const j = JSON.parse(r.out);
+    const matching = j.solutions.filter((s: { matchesAssignment: boolean }) => s.matchesAssignment);
+    expect(matching.length).toBeGreaterThan(0);
+    for (const s of j.solutions) {
+      if (s.matchesAssignment) expect(typeof s.condition).toBe('number');
+      else {
+        expect(s).toMatchObject({ conditionEvaluated: false });
+        expect(s.condition).toBeUndefined();
+      }
+    }
+    if (matching.length < j.solutions.length) expect(j.messages.map((m: { code: string }) => m.code)).toContain('condition-not-evaluated');
+    const one = JSON.parse((await run(['solve', coupon, '--set', 'c0=45', '--json', '--conditions', '1'])).out);
+    expect(one.solutions.filter((s: { condition?: number }) => typeof s.condition === 'number')).toHaveLength(1);
+    expect((await run(['solve', coupon, '--conditions', 'some'])).code).toBe(2);
+  });
+
+  it('solve --json has the documented shape and exits 0 when solved', async () => {
+    const r = await run(['solve', coupon, '--set', 'c0=45', '--json', '--conditions', 'all']);
     expect(r.code).toBe(0);
     const j = JSON.parse(r.out);
     expect(j.status).toBe('several-solutions');

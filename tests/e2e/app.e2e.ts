@@ -7,7 +7,7 @@ import Papa from 'papaparse';
 import { createHash } from 'node:crypto';
 import type { Page } from 'playwright-core';
 import { CAUTIONS, loadPatternText, solveDrives, resolveDrives, type Pattern } from '../../solver';
-import { screenshot, SAMPLES, type AppSession, type Harness, type SessionOptions } from './harness';
+import { screenshot, SAMPLES, waitSolved, withSession, type Harness } from './harness';
 import { metadata } from '../support/table-header';
 
 export interface E2ETest {
@@ -19,32 +19,6 @@ export interface E2ETest {
 const DEG = 180 / Math.PI;
 const COUPON_FILE = 'hinge-coupon.hingeplan.json';
 const COUPON = path.join(SAMPLES, COUPON_FILE);
-
-async function withSession(h: Harness, name: string, options: SessionOptions, fn: (s: AppSession) => Promise<void>): Promise<void> {
-  const s = await h.open(options);
-  try {
-    await fn(s);
-    // nothing the page did may have broken the CSP or thrown
-    assert.deepEqual(s.pageErrors.filter((e) => !/GL Driver Message/.test(e)), [], 'the page reported errors');
-  } catch (err) {
-    await screenshot(s.page, `${name}-FAILED`).catch(() => undefined);
-    throw err;
-  } finally {
-    await s.close();
-  }
-}
-
-async function waitSolved(page: Page, timeout = 60_000): Promise<string> {
-  await page.waitForFunction(
-    () => {
-      const t = document.querySelector('[data-testid=solve-status]')?.textContent ?? '';
-      return t && !t.includes('solving') && !t.includes('Not solved yet');
-    },
-    null,
-    { timeout },
-  );
-  return (await page.textContent('[data-testid=solve-status]')) ?? '';
-}
 
 /** Angles in the hinge table as shown: label → degrees. */
 async function tableAngles(page: Page): Promise<Map<string, number>> {

@@ -7,6 +7,7 @@ import http from 'node:http';
 import { promises as fs, mkdtempSync } from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
+import assert from 'node:assert/strict';
 import { execFileSync } from 'node:child_process';
 import { fileURLToPath } from 'node:url';
 import { build } from 'esbuild';
@@ -215,4 +216,34 @@ export async function screenshot(page: Page, name: string): Promise<string> {
   const file = path.join(SCREENSHOTS, `${name}.png`);
   await page.screenshot({ path: file });
   return file;
+}
+
+/**
+ * Open a session, run `fn`, and fail when the page reported errors (a broken content policy, a throw);
+ * a failure leaves a screenshot named `<name>-FAILED`. The session is closed in every case.
+ */
+export async function withSession(h: Harness, name: string, options: SessionOptions, fn: (s: AppSession) => Promise<void>): Promise<void> {
+  const s = await h.open(options);
+  try {
+    await fn(s);
+    assert.deepEqual(s.pageErrors.filter((e) => !/GL Driver Message/.test(e)), [], 'the page reported errors');
+  } catch (err) {
+    await screenshot(s.page, `${name}-FAILED`).catch(() => undefined);
+    throw err;
+  } finally {
+    await s.close();
+  }
+}
+
+/** Wait until the solve status says something other than solving or not solved yet; its text. */
+export async function waitSolved(page: Page, timeout = 60_000): Promise<string> {
+  await page.waitForFunction(
+    () => {
+      const t = document.querySelector('[data-testid=solve-status]')?.textContent ?? '';
+      return t && !t.includes('solving') && !t.includes('Not solved yet');
+    },
+    null,
+    { timeout },
+  );
+  return (await page.textContent('[data-testid=solve-status]')) ?? '';
 }

@@ -8,30 +8,10 @@ import { loadPatternText } from '../../solver';
 import { runSteps } from '../../solver/paths/sweep';
 import { toleranceSteps } from '../../solver/outputs/tolerance/run';
 import { worstVertices } from '../../solver/outputs/tolerance/table';
-import { screenshot, SAMPLES, type AppSession, type Harness, type SessionOptions } from './harness';
+import { screenshot, SAMPLES, waitSolved, withSession } from './harness';
 import type { E2ETest } from './app.e2e';
 
 const D = Math.PI / 180;
-
-async function withSession(h: Harness, name: string, options: SessionOptions, fn: (s: AppSession) => Promise<void>): Promise<void> {
-  const s = await h.open(options);
-  try {
-    await fn(s);
-    assert.deepEqual(s.pageErrors.filter((e) => !/GL Driver Message/.test(e)), [], 'the page reported errors');
-  } catch (err) {
-    await screenshot(s.page, `${name}-FAILED`).catch(() => undefined);
-    throw err;
-  } finally {
-    await s.close();
-  }
-}
-
-async function waitSolved(page: Page): Promise<void> {
-  await page.waitForFunction(() => {
-    const t = document.querySelector('[data-testid=solve-status]')?.textContent ?? '';
-    return t && !t.includes('solving') && !t.includes('Not solved yet');
-  }, null, { timeout: 90_000 });
-}
 
 /** Compute the path of the path form and wait until it is done (a new request that is no longer running). */
 async function computePath(page: Page, range: { from: string; to: string; step: string }) {
@@ -86,7 +66,7 @@ export const toleranceTests: E2ETest[] = [
       const loaded = loadPatternText(readFileSync(file, 'utf8'), path.basename(file));
       const pattern = loaded.pattern!;
       await withSession(h, 'tolerance-sunshade', { viewport: { width: 1280, height: 800 } }, async ({ page, host }) => {
-        await waitSolved(page);
+        await waitSolved(page, 90_000);
         // the sheets follow the path on screen: compute it first (20° … 60° every 20°)
         await computePath(page, { from: '20', to: '60', step: '20' });
         await page.click('[data-testid=tab-tolerance]');
@@ -161,7 +141,7 @@ export const toleranceTests: E2ETest[] = [
     timeoutMs: 180_000,
     async run(h) {
       await withSession(h, 'tolerance-coupon', { openSample: 'hinge-coupon.hingeplan.json' }, async ({ page }) => {
-        await waitSolved(page);
+        await waitSolved(page, 90_000);
         await page.click('[data-testid=tab-tolerance]');
         // without a path there is nothing to follow: the tab says so
         assert.match((await page.textContent('[data-testid=tolerance-body]')) ?? '', /Compute the path first/);

@@ -8,36 +8,11 @@ import path from 'node:path';
 import type { Page } from 'playwright-core';
 import { PNG } from 'pngjs';
 import { CAUTIONS, buildPattern, flatBranches, foldedShape, loadPatternText, miura, resolveDrives, solveDrives, sweep, waterbomb, type Pattern } from '../../solver';
-import { screenshot, SAMPLES, type AppSession, type Harness, type SessionOptions } from './harness';
+import { screenshot, SAMPLES, waitSolved, withSession, type AppSession } from './harness';
 import type { E2ETest } from './app.e2e';
 
 const DEG = 180 / Math.PI;
 const RAD = Math.PI / 180;
-
-async function withSession(h: Harness, name: string, options: SessionOptions, fn: (s: AppSession) => Promise<void>): Promise<void> {
-  const s = await h.open(options);
-  try {
-    await fn(s);
-    assert.deepEqual(s.pageErrors.filter((e) => !/GL Driver Message/.test(e)), [], 'the page reported errors');
-  } catch (err) {
-    await screenshot(s.page, `${name}-FAILED`).catch(() => undefined);
-    throw err;
-  } finally {
-    await s.close();
-  }
-}
-
-async function waitSolved(page: Page, timeout = 60_000): Promise<string> {
-  await page.waitForFunction(
-    () => {
-      const t = document.querySelector('[data-testid=solve-status]')?.textContent ?? '';
-      return t && !t.includes('solving') && !t.includes('Not solved yet');
-    },
-    null,
-    { timeout },
-  );
-  return (await page.textContent('[data-testid=solve-status]')) ?? '';
-}
 
 /** Wait for a path to be computed and shown (its summary or its outcome), and return the summary text. */
 async function waitPath(page: Page, timeout = 90_000): Promise<{ summary: string; outcome: string }> {
