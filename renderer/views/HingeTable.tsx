@@ -90,7 +90,7 @@ export function HingeTable(props: HingeTableProps) {
         <h2>
           Hinges <span className="count">{rows.length}</span>
         </h2>
-        <input className="table-filter" placeholder="find crease or status" aria-label="filter hinges" value={filter} onChange={(e) => setFilter(e.target.value)} />
+        <input className="table-filter" placeholder="crease or status" aria-label="filter hinges" value={filter} onChange={(e) => setFilter(e.target.value)} />
         <button onClick={() => props.onCopy(filtered)} title="Copy the rows shown as CSV, with the cautions line">
           Copy as CSV
         </button>
