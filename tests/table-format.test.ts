@@ -5,7 +5,7 @@ import { sha256, sha256Bytes } from '../solver/outputs/sha256';
 import { angleTable, AngleTableWriter, csvCell, num, type RowField } from '../solver/outputs/table';
 import { runSteps, sweep, sweepSteps, type SweepSample } from '../solver/paths/sweep';
 import { CAUTIONS } from '../solver/formats/cautions';
-import { jsonText, writeJson } from '../solver/formats/json-text';
+import { jsonText, LazyArray, writeJson } from '../solver/formats/json-text';
 import fc from 'fast-check';
 import { directionsFromSectors, vertexPattern } from './support/vertex';
 
@@ -168,5 +168,19 @@ describe('JSON text', () => {
       writeJson((t) => parts.push(t), v, pretty);
       expect(parts.join('')).toBe(jsonText(v, pretty));
     }), { numRuns: 500 });
+  });
+
+  it('an array made item by item as it is written is the same text as the array written whole', () => {
+    fc.assert(fc.property(fc.array(fc.jsonValue({ maxDepth: 3 }), { maxLength: 6 }), fc.boolean(), (items, pretty) => {
+      let made = 0;
+      const lazy = new LazyArray(items.length, (i) => { made++; return items[i]; });
+      const parts: string[] = [];
+      writeJson((t) => parts.push(t), { list: lazy, after: 1 }, pretty);
+      expect(made).toBe(items.length);
+      // the reference: JSON.parse of the text equals the array (JSON, RFC 8259), and the text equals the
+      // array's own text when no item is a plain value on a pretty one-line array
+      expect(JSON.parse(parts.join(''))).toEqual(JSON.parse(JSON.stringify({ list: items, after: 1 })));
+      if (!pretty || items.some((x) => x !== null && typeof x === 'object')) expect(parts.join('')).toBe(jsonText({ list: items, after: 1 }, pretty));
+    }), { numRuns: 300 });
   });
 });

@@ -127,9 +127,11 @@ function shownSolutions(report: SolveReport, which: string): number[] {
 function textReport(pattern: Pattern, driveCreases: number[], report: SolveReport, shownCount: number, groups: ReturnType<typeof groupSolutions>, checks: SolutionChecks[] = []): string {
   const out: string[] = [];
   out.push(`${pattern.name}: ${report.status}  (DOF left ${report.dof}, pattern DOF ${report.patternDof})`);
-  for (const m of report.messages) out.push(`  ${m.severity}: ${m.text}`);
+  // the options that ask for what a message says was left out
+  const ask: Record<string, string> = { 'sensitivity-not-evaluated': '--solutions all', 'condition-not-evaluated': '--conditions all' };
+  for (const m of report.messages) out.push(`  ${m.severity}: ${ask[m.code] ? `${m.text.replace(/\.$/, '')}; ${ask[m.code]} for every one.` : m.text}`);
   const s = report.search;
-  out.push(`  search: ${s.complete ? 'complete' : 'not complete'}: ${s.method}; found ${s.found}${s.limit !== undefined ? ` (cap ${s.limit})` : ''}; ${s.note}.`);
+  out.push(`  search: ${s.complete ? 'complete' : 'not complete'}: ${s.method}; found ${s.found}${s.limit !== undefined ? ` (cap ${s.limit})` : ''}; ${s.note}${s.limit !== undefined && !s.complete ? ' (--max-states <n> to look further)' : ''}.`);
   const shown = report.solutions.slice(0, shownCount);
   const columns = shown.length ? shown : report.compromise ? [report.compromise] : [];
   if (columns.length) {

@@ -10,6 +10,18 @@ export class RawJson {
   constructor(readonly text: string) {}
 }
 
+/**
+ * A JSON array whose items are made one at a time as writeJson reaches them, so a long list of large
+ * objects (the solutions of a big sheet, each with an angle and a sensitivity per crease) never exists
+ * whole. JSON.stringify sees an ordinary array (toJSON).
+ */
+export class LazyArray<T> {
+  constructor(readonly length: number, readonly item: (i: number) => T) {}
+  toJSON(): T[] {
+    return Array.from({ length: this.length }, (_, i) => this.item(i));
+  }
+}
+
 function isPlain(v: unknown): boolean {
   return v === null || typeof v !== 'object' || v instanceof RawJson;
 }
@@ -44,6 +56,7 @@ export function jsonText(value: unknown, pretty = false, level = 0): string {
   if (s !== undefined || isPlain(value)) return s ?? 'null';
   const pad = pretty ? '\n' + '  '.repeat(level + 1) : '';
   const end = pretty ? '\n' + '  '.repeat(level) : '';
+  if (value instanceof LazyArray) return jsonText(value.toJSON(), pretty, level);
   if (Array.isArray(value) || ArrayBuffer.isView(value)) {
     const items = Array.from(value as ArrayLike<unknown>);
     if (!items.length) return '[]';
@@ -77,6 +90,15 @@ export function writeJson(write: (text: string) => void, value: unknown, pretty 
   if (s !== undefined || isPlain(value)) { write(s ?? 'null'); return; }
   const pad = pretty ? '\n' + '  '.repeat(level + 1) : '';
   const end = pretty ? '\n' + '  '.repeat(level) : '';
+  if (value instanceof LazyArray) {
+    write('[');
+    for (let i = 0; i < value.length; i++) {
+      write((i ? ',' : '') + pad);
+      writeJson(write, value.item(i), pretty, level + 1);
+    }
+    write((value.length ? end : '') + ']');
+    return;
+  }
   if (Array.isArray(value) || ArrayBuffer.isView(value)) {
     const items = Array.from(value as ArrayLike<unknown>);
     if (!items.length) { write('[]'); return; }

@@ -131,10 +131,10 @@ function statusText(status: SolveStatus, count: number, families: Family[], sear
 /** What was left out of the detail, and states past a hinge limit. */
 function detailNotes({ pattern, cls, messages }: ReportContext): void {
   if (cls.undetailed) {
-    messages.push({ severity: 'info', code: 'sensitivity-not-evaluated', text: `Sensitivities are computed for the first ${cls.detail} solution(s) only, as asked; the other ${cls.undetailed} are proven isolated vertex by vertex.` });
+    messages.push({ severity: 'info', code: 'sensitivity-not-evaluated', text: `Sensitivities are computed for the first ${cls.detail === 1 ? 'solution only (the one shown in full)' : `${cls.detail} solutions only (those shown in full)`}; the other ${cls.undetailed} are proven isolated vertex by vertex.` });
   }
   if (cls.unconditioned) {
-    messages.push({ severity: 'info', code: 'condition-not-evaluated', text: `The condition number is evaluated for the first ${cls.conditions} solution(s) only (each costs a factorization); the other ${cls.unconditioned} are proven isolated vertex by vertex.` });
+    messages.push({ severity: 'info', code: 'condition-not-evaluated', text: `The condition number is evaluated for the first ${cls.conditions === 1 ? 'solution' : `${cls.conditions} solutions`} only (each costs a factorization of the whole sheet); the other ${cls.unconditioned} are proven isolated vertex by vertex.` });
   }
   if (cls.excluded.length) {
     const v = limitViolations(pattern, cls.excluded[0].solution.angles);
