@@ -27,20 +27,24 @@ const LIMIT_S = 600;
 interface Measured { cpu?: number; wall: number; rssMiB?: number; bytes: number; code: number | null; out: string; err: string }
 
 /** One whole process: GNU time's user+sys and maximum resident set size, the wall time, what it wrote. */
-function measure(argv: string[], outFile?: string): Measured {
+function measure(argv: string[], outFile?: string, stdoutFile?: string): Measured {
   const useTime = existsSync(TIME);
   const report = join(work, 'time.txt');
+  // stdout into a file when asked: a JSON of hundreds of MB is longer than the longest string this script could hold
+  const fd = stdoutFile ? openSync(stdoutFile, 'w') : undefined;
   const t0 = process.hrtime.bigint();
   const r = spawnSync(useTime ? TIME : argv[0], useTime ? ['-f', '%U %S %M', '-o', report, ...argv] : argv.slice(1), {
-    encoding: 'utf8', maxBuffer: 1 << 30, timeout: LIMIT_S * 1000,
+    encoding: 'utf8', maxBuffer: 1 << 30, timeout: LIMIT_S * 1000, ...(fd !== undefined ? { stdio: ['ignore', fd, 'pipe'] } : {}),
   });
+  if (fd !== undefined) closeSync(fd);
   const wall = Number(process.hrtime.bigint() - t0) / 1e9;
   let cpu: number | undefined, rssMiB: number | undefined;
   if (useTime && existsSync(report)) {
     const last = readFileSync(report, 'utf8').trim().split('\n').pop()!.split(' ').map(Number);
     if (last.length === 3 && last.every(Number.isFinite)) { cpu = last[0] + last[1]; rssMiB = last[2] / 1024; }
   }
-  const bytes = outFile && existsSync(outFile) ? statSync(outFile).size : Buffer.byteLength(r.stdout ?? '');
+  const written = outFile ?? stdoutFile;
+  const bytes = written && existsSync(written) ? statSync(written).size : Buffer.byteLength(r.stdout ?? '');
   return { cpu, wall, rssMiB, bytes, code: r.status, out: r.stdout ?? '', err: r.stderr ?? '' };
 }
 
@@ -170,8 +174,8 @@ if (chosen.length) {
       rmSync(out, { force: true });
       const argv = c.argv(out);
       const toFile = argv.includes('--out');
-      const m = measure([process.execPath, CLI, ...argv], toFile ? out : undefined);
-      const text = toFile && existsSync(out) ? lastBytes(out, 20000) : m.out.slice(-20000);
+      const m = measure([process.execPath, CLI, ...argv], toFile ? out : undefined, toFile ? undefined : out);
+      const text = existsSync(out) ? lastBytes(out, 20000) : m.out.slice(-20000);
       const result = m.code === null ? `stopped after ${LIMIT_S} s` : `exit ${m.code}${tail(text) ? `; ${tail(text)}` : ''}`;
       console.log(`| ${s.title} | ${s.creases} | ${c.what} | ${fmt(m.cpu)} s | ${fmt(m.wall)} s | ${mib(m.rssMiB)} MiB | ${size(m.bytes)} | ${result} |`);
       rmSync(out, { force: true });

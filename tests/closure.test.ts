@@ -3,7 +3,7 @@ import { Quaternion, Vector3 } from 'three';
 import { buildClosureSystem, closureScratch, evaluateBlock } from '../solver/closure/blocks';
 import { axisAngleRotation, mat3, multiplyMat3, rotationVector, vec3 } from '../solver/math/rotation';
 import { directionsFromSectors, vertexPattern } from './support/vertex';
-import { mulberry32 } from '../solver/paths/cone';
+import { mulberry32 } from '../solver/math/random';
 
 const rng = mulberry32;
 

@@ -6,16 +6,8 @@ import { describe, expect, it } from 'vitest';
 import { Line3, Vector3 } from 'three';
 import { ExtendedTriangle } from 'three-mesh-bvh';
 import { COPLANAR, CROSSING, DISJOINT, intersectTriangles, overlap2D, triangleDistance } from '../solver/math/triangles';
+import { mulberry32 } from '../solver/math/random';
 
-function mulberry32(seed: number) {
-  return () => {
-    seed |= 0;
-    seed = (seed + 0x6d2b79f5) | 0;
-    let t = Math.imul(seed ^ (seed >>> 15), 1 | seed);
-    t = (t + Math.imul(t ^ (t >>> 7), 61 | t)) ^ t;
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 // the package's typings list fewer parameters than its code takes (the output points, a quiet flag)
 interface Reference {

@@ -10,6 +10,7 @@ import { sweep } from '../solver/paths/sweep';
 import { ContactChecker } from '../solver/outputs/contact';
 import { StatesBetween, refineFirstContact, CONTACT_REFINEMENT } from '../solver/outputs/contact-path';
 import { miuraSheet } from './support/references';
+import { mulberry32 } from '../solver/math/random';
 
 const DEG = Math.PI / 180;
 
@@ -201,15 +202,6 @@ interface Reference {
   distanceToTriangle(other: Reference): number;
 }
 
-function mulberry32(seed: number) {
-  return () => {
-    seed |= 0;
-    seed = (seed + 0x6d2b79f5) | 0;
-    let t = Math.imul(seed ^ (seed >>> 15), 1 | seed);
-    t = (t + Math.imul(t ^ (t >>> 7), 61 | t)) ^ t;
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 /** A rotation (random unit quaternion) about the point (cx, cy, cz), plus a shift, as a 3×4 transform. */
 function randomPlacement(rand: () => number, cx: number, cy: number, cz: number, shift: number): Float64Array {

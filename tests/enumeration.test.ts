@@ -8,7 +8,7 @@ import { Quaternion, Vector3 } from 'three';
 import { Matrix, SingularValueDecomposition } from 'ml-matrix';
 import { closeVertex } from '../solver/closure/vertex-solve';
 import { degree4States } from '../solver/paths/propagate';
-import { mulberry32 } from '../solver/paths/cone';
+import { mulberry32 } from '../solver/math/random';
 import { buildClosureSystem, type ClosureSystem } from '../solver/closure/blocks';
 import { ClosureProblem } from '../solver/closure/newton';
 import { solveDrives } from '../solver/search/solve';

@@ -7,6 +7,7 @@ import { solveDrives } from '../solver/search/solve';
 import { sweep } from '../solver/paths/sweep';
 import { LoadModel, STANDARD_GRAVITY, metresPerUnit, ratesFromSensitivity, type LoadSpec } from '../solver/outputs/torque';
 import { miuraSheet } from './support/references';
+import { mulberry32 } from '../solver/math/random';
 
 const DEG = Math.PI / 180;
 
@@ -88,15 +89,6 @@ describe('one panel lifted off a fixed base by its hinge: τ = m g (L/2) cos θ 
 });
 
 describe('torque is the derivative of the potential energy', () => {
-  function mulberry32(seed: number) {
-    return () => {
-      seed |= 0;
-      seed = (seed + 0x6d2b79f5) | 0;
-      let t = Math.imul(seed ^ (seed >>> 15), 1 | seed);
-      t = (t + Math.imul(t ^ (t >>> 7), 61 | t)) ^ t;
-      return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-    };
-  }
 
   it('along any direction of the fold angles (central differences, any state, springs and tilted gravity)', () => {
     const { pattern } = miuraSheet(3, 4, 40, 30, 70);

@@ -14,7 +14,8 @@
 
 import type { Drive, Message, Pattern } from '../types';
 import { ClosureProblem, solveSmall } from '../closure/newton';
-import { flatCone, mulberry32, nullSpace } from './cone';
+import { flatCone, nullSpace } from './cone';
+import { mulberry32 } from '../math/random';
 import { buildClosureSystem } from '../closure/blocks';
 import { pivotedQR, nullBasisFromQR } from '../math/qr';
 import { flatModesByVertex, rayClosesByVertex } from './flat-modes';

@@ -5,6 +5,7 @@
 import { nullBasisFromQR, pivotedQR } from '../math/qr';
 import type { Pattern } from '../types';
 import { solveSmall } from '../closure/newton';
+import { mulberry32 } from '../math/random';
 
 export interface ConeRay {
   /** unit direction over all creases (zeros on held creases) */
@@ -40,16 +41,6 @@ export interface ConeResult {
 
 export const CONE_MAX_VARIABLES = 400;
 
-export function mulberry32(seed: number): () => number {
-  let s = seed >>> 0;
-  return () => {
-    s = (s + 0x6d2b79f5) >>> 0;
-    let t = s;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 function gaussian(rand: () => number): number {
   const u = Math.max(rand(), 1e-300);

@@ -10,7 +10,8 @@
 
 import type { Drive, Pattern, SearchSummary } from '../types';
 import { ClosureProblem, type LsqResult } from '../closure/newton';
-import { CONE_MAX_VARIABLES, flatCone, mulberry32 } from '../paths/cone';
+import { CONE_MAX_VARIABLES, flatCone } from '../paths/cone';
+import { mulberry32 } from '../math/random';
 import { wrapAngle } from '../math/rotation';
 import { DEFAULT_STATE_CAP, enumerateStates, planEnumeration } from './enumerate';
 import { assignmentSigns, canonicalFoldedFlat, isMovable, sameState } from './states';

@@ -9,7 +9,7 @@
 
 import type { Pattern } from '../../types';
 import type { ClosureSystem } from '../../closure/blocks';
-import { mulberry32 } from '../../paths/cone';
+import { mulberry32 } from '../../math/random';
 
 /** One independent parameter's first-order effect: changes of slot direction angles and block defects per unit. */
 export interface ParameterEffect {

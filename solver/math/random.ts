@@ -1,0 +1,13 @@
+// A small seeded random stream (mulberry32, a 32-bit generator in the public domain, common practice for
+// reproducible multistarts and Monte Carlo), so every run with the same seed gives the same numbers.
+
+export function mulberry32(seed: number): () => number {
+  let s = seed >>> 0;
+  return () => {
+    s = (s + 0x6d2b79f5) >>> 0;
+    let t = s;
+    t = Math.imul(t ^ (t >>> 15), t | 1);
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+  };
+}
