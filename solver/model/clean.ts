@@ -441,15 +441,21 @@ function keepPiecesOnce(w: Work): Piece[] | undefined {
   return errors ? undefined : order;
 }
 
-/** 6. Pieces with a free end, no longer than twice the snap, are removed (again at the end they leave free). */
-function removeStubs(w: Work, pieces: Piece[]): Piece[] {
-  const { vx, vy } = w;
-  const removed = new Uint8Array(pieces.length);
-  const incident: number[][] = vx.map(() => []);
+/** The pieces at each vertex (indices into `pieces`). */
+function incidence(vertices: number, pieces: Piece[]): number[][] {
+  const incident: number[][] = Array.from({ length: vertices }, () => []);
   pieces.forEach((p, k) => {
     incident[p.u].push(k);
     incident[p.v].push(k);
   });
+  return incident;
+}
+
+/** 6. Pieces with a free end, no longer than twice the snap, are removed (again at the end they leave free). */
+function removeStubs(w: Work, pieces: Piece[]): Piece[] {
+  const { vx, vy } = w;
+  const removed = new Uint8Array(pieces.length);
+  const incident = incidence(vx.length, pieces);
   const live = (v: number) => incident[v].filter((k) => !removed[k]);
   const queue: number[] = [];
   for (let v = 0; v < vx.length; v++) if (incident[v].length === 1) queue.push(v);
@@ -474,11 +480,7 @@ function removeStubs(w: Work, pieces: Piece[]): Piece[] {
 function joinCollinear(w: Work, pieces: Piece[]): Piece[] {
   const { vx, vy } = w;
   const removed = new Uint8Array(pieces.length);
-  const incident: number[][] = vx.map(() => []);
-  pieces.forEach((p, k) => {
-    incident[p.u].push(k);
-    incident[p.v].push(k);
-  });
+  const incident = incidence(vx.length, pieces);
   for (let v = 0; v < vx.length; v++) {
     const live = incident[v].filter((k) => !removed[k]);
     if (live.length !== 2) continue;
