@@ -4,6 +4,7 @@ import type { OptionSpec } from '../args';
 import { drivesFor, loadFile, printMessages } from '../load';
 import { EXIT, exitForStatus } from '../exit-codes';
 import { messageJson } from '../report-json';
+import { LazyArray } from '../../solver/formats/json-text';
 import { textTable } from '../table-text';
 import { branchesAt, flatBranches, type BranchAnalysis } from '../../solver/paths/branches';
 import { solveDrives } from '../../solver/search/solve';
@@ -21,18 +22,22 @@ function analysisJson(pattern: Pattern, a: BranchAnalysis, at: Float64Array | un
     nullity: Number.isFinite(a.nullity) ? a.nullity : null,
     partial: a.partial,
     ...(at ? { angles: Object.fromEntries(listed.map((c) => [label(c), given.find((d) => d.crease === c && d.value === at[c])?.degrees ?? at[c] * DEG])) } : {}),
-    branches: a.branches.map((b) => ({
-      id: b.id,
-      name: b.name,
-      group: b.group,
-      kind: b.kind,
-      matchesAssignment: b.matchesAssignment,
-      tangent: Object.fromEntries(listed.map((c) => [label(c), b.tangent[c]])),
-      reference: b.reference >= 0 ? label(b.reference) : null,
-      ratios: Object.fromEntries([...b.ratios].map(([c, r]) => [label(c), r])),
-      ...(b.line ? { line: b.line.map(label) } : {}),
-      verified: b.verified,
-    })),
+    // made one at a time as they are written: each ray of an 80 × 80 sheet lists its 51,520 creases twice
+    branches: new LazyArray(a.branches.length, (k) => {
+      const b = a.branches[k];
+      return {
+        id: b.id,
+        name: b.name,
+        group: b.group,
+        kind: b.kind,
+        matchesAssignment: b.matchesAssignment,
+        tangent: Object.fromEntries(listed.map((c) => [label(c), b.tangent[c]])),
+        reference: b.reference >= 0 ? label(b.reference) : null,
+        ratios: Object.fromEntries([...b.ratios].map(([c, r]) => [label(c), r])),
+        ...(b.line ? { line: b.line.map(label) } : {}),
+        verified: b.verified,
+      };
+    }),
     groups: a.groups.map((g) => ({ name: g.name, kind: g.kind, branches: g.branches, text: g.text })),
     messages: a.messages.map(messageJson),
   };
