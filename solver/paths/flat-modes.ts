@@ -53,7 +53,7 @@ interface VertexModes {
 /** The modes of one vertex at flat, or a reason the structure does not decide them. */
 function vertexModes(dirs: number[], free: number[]): VertexModes | string {
   const k = free.length;
-  if (k > 4) return `a vertex has ${k} free creases (more than four)`;
+  if (k > 4) return `has ${k} free creases, more than four`;
   if (k === 0) return { free, modes: [] };
   const cs = free.map((s) => Math.cos(dirs[s])), sn = free.map((s) => Math.sin(dirs[s]));
   // null space of the 2 × k first-order rows by a tiny Gram–Schmidt on the rows, then completion
@@ -66,7 +66,7 @@ function vertexModes(dirs: number[], free: number[]): VertexModes | string {
   const unit = (t: number[]) => { const n = Math.hypot(...t); return t.map((x) => x / n); };
   if (basis.length === 0) return { free, modes: [] };
   if (basis.length === 1) return { free, modes: Math.abs(Q(basis[0])) < 1e-10 ? [unit(basis[0])] : [] };
-  if (basis.length > 2) return 'a vertex leaves more than a plane of first-order rates';
+  if (basis.length > 2) return 'leaves more than a plane of first-order rates';
   const [n1, n2] = basis;
   const mix = (a: number, b: number) => n1.map((x, i) => a * x + b * n2[i]);
   const A = Q(n1), C = Q(n2), B = (Q(mix(1, 1)) - A - C) / 2;
@@ -143,7 +143,7 @@ export function flatModesByVertex(
     }
     const m = vertexModes(dirs, free);
     // (a vertex with more than four free creases, or a whole plane of second-order rates, needs the dense analysis)
-    if (typeof m === 'string') return { reason: `${m} (vertex ${sys.blockVertex[b]})` };
+    if (typeof m === 'string') return { reason: `vertex ${sys.blockVertex[b]} ${m}` };
     modes.push(m);
   }
   // straight crease lines folding alone: from the geometry, always listed
