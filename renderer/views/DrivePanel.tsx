@@ -157,8 +157,8 @@ export function DrivePanel(props: DrivePanelProps) {
           <dd data-testid="sheet-dof">{result && result.status !== 'invalid' ? result.patternDof : props.lastPatternDof ?? '–'}</dd>
         </div>
         <div>
-          <dt title="Largest closure residual at any vertex, degrees">residual</dt>
-          <dd data-testid="residual">{sol ? `${fmt((sol.maxResidual * 180) / Math.PI)}°` : '–'}</dd>
+          <dt title="Largest closure residual at any vertex, radians (as in the command line and the exported tables)">residual</dt>
+          <dd data-testid="residual">{sol ? `${sol.maxResidual.toExponential(1)} rad` : '–'}</dd>
         </div>
         <div>
           <dt title="Condition number of the closure Jacobian (large near singular states)">condition</dt>

@@ -233,7 +233,7 @@ export function SolutionCards({ pattern, project, solutions, families = [], sear
               </span>
               <SignGlyphs signs={s.signs} />
               <span className="card-numbers">
-                residual {((s.maxResidual * 180) / Math.PI).toExponential(1)}°{s.condition !== null ? ` · condition ${s.condition.toPrecision(3)}` : ' · singular'}
+                residual {s.maxResidual.toExponential(1)} rad{s.condition !== null ? ` · condition ${s.condition.toPrecision(3)}` : ' · singular'}
               </span>
             </span>
           </button>

@@ -85,6 +85,8 @@ describe('drives panel', () => {
     expect(screen.getByTestId('solve-status').textContent).toContain('Solved');
     expect(screen.getByTestId('dof').textContent).toBe('0');
     expect(screen.getByTestId('condition').textContent).toBe('3.0');
+    // residuals in radians, as the command line and the tables give them
+    expect(screen.getByTestId('residual').textContent).toMatch(/^\d\.\de[-+]\d+ rad$/);
     const field = screen.getByLabelText('angle of drive c0 in degrees');
     fireEvent.focus(field);
     fireEvent.change(field, { target: { value: '30,5' } });
