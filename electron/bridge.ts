@@ -27,6 +27,7 @@ export interface HingeplanApi {
   newDocument: Call<'doc:new'>;
   open: Call<'doc:open'>;
   openRecent: Call<'doc:open-recent'>;
+  rereadDrawing: Call<'doc:reread-drawing'>;
   save: Call<'doc:save'>;
   exportFile: Call<'doc:export'>;
   exportChart: Call<'doc:export-chart'>;
@@ -54,6 +55,7 @@ export const API_CHANNELS = {
   newDocument: 'doc:new',
   open: 'doc:open',
   openRecent: 'doc:open-recent',
+  rereadDrawing: 'doc:reread-drawing',
   save: 'doc:save',
   exportFile: 'doc:export',
   exportChart: 'doc:export-chart',

@@ -103,6 +103,22 @@ export type IpcError = z.output<typeof IpcErrorSchema>;
 
 export const DocumentFormatSchema = z.enum(['project', 'fold', 'dxf', 'svg']);
 
+/** A drawing's layer (DXF) or group (SVG) as read: the assignment its lines got, and how (solver/formats/drawing.ts). */
+export const DrawingLayerSchema = z.object({
+  name: z.string().max(1024),
+  assignment: AssignmentSchema,
+  how: z.enum(['layer', 'name', 'none']),
+  lines: z.number().int().min(0),
+});
+export type DrawingLayerDto = z.output<typeof DrawingLayerSchema>;
+
+/** How to read a drawing again: layer names mapped to assignments (as `--layer`), and the snap length. */
+export const DrawingOptionsSchema = z.object({
+  layers: z.array(z.object({ name: z.string().max(1024), assignment: AssignmentSchema })).max(10_000).default([]),
+  snap: z.number().min(0).finite().optional(),
+});
+export type DrawingOptionsDto = z.output<typeof DrawingOptionsSchema>;
+
 export const OpenedDocumentSchema = z.object({
   project: ProjectSchema,
   /** null for a new or built-in document: saving asks where */
@@ -114,6 +130,10 @@ export const OpenedDocumentSchema = z.object({
   recovered: z.boolean().optional(),
   /** compute the path of the single drive right after opening (the built-in sample does) */
   computePath: z.boolean().optional(),
+  /** a drawing: its layers or groups and the assignment each gave its lines */
+  drawingLayers: z.array(DrawingLayerSchema).max(10_000).optional(),
+  /** a drawing: the options it was read with */
+  drawingOptions: DrawingOptionsSchema.optional(),
 });
 export type OpenedDocument = z.output<typeof OpenedDocumentSchema>;
 
@@ -499,6 +519,8 @@ export const channels = {
   'doc:new': { request: GeneratorSpecSchema.and(z.object(optionalRequestId)), response: OpenResultSchema },
   'doc:open': { request: z.object({ format: z.enum(['any', 'fold', 'drawing']).default('any'), ...optionalRequestId }), response: OpenResultSchema },
   'doc:open-recent': { request: z.object({ path: z.string().max(4096), ...optionalRequestId }), response: OpenResultSchema },
+  /** read a drawing the window has open again, with its layers assigned as given (only a file main approved) */
+  'doc:reread-drawing': { request: z.object({ path: z.string().max(4096), options: DrawingOptionsSchema, ...optionalRequestId }), response: OpenResultSchema },
   'doc:save': {
     request: z.object({
       project: ProjectSchema,

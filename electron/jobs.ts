@@ -34,6 +34,7 @@ import {
   GeneratorSpecSchema,
   PatternSourceSchema,
   ProjectSchema,
+  DrawingOptionsSchema,
   finiteOrNull,
   type DriveSpec,
   type MessageDto,
@@ -104,18 +105,24 @@ function messages(list: { severity: string; code: string; text: string; where?: 
 
 /** A file as main read it: its bytes (bounded by main before reading), decoded here as the readers take them. */
 const FileBytes = z.custom<Uint8Array>(isBytes, 'expected the bytes of a file');
-const LoadRequest = z.object({ bytes: FileBytes, fileName: z.string().max(4096) });
+const LoadRequest = z.object({ bytes: FileBytes, fileName: z.string().max(4096), drawing: DrawingOptionsSchema.optional() });
 
 export function loadJob(_state: JobState, payload: unknown) {
-  const { bytes, fileName } = parse(LoadRequest, payload, 'load');
+  const { bytes, fileName, drawing } = parse(LoadRequest, payload, 'load');
   const decoded = fileText(bytes, fileName);
   const format = /\.fold$/i.test(fileName) ? ('fold' as const) : /\.svg$/i.test(fileName) ? ('svg' as const) : ('project' as const);
   if (!decoded.ok) return { ok: false as const, format, messages: [{ severity: 'error' as const, code: decoded.code, text: decoded.message, where: { line: decoded.line } }] };
-  const loaded = loadPatternText(decoded.text, fileName);
+  const loaded = loadPatternText(decoded.text, fileName, drawing ?? {});
   const msgs = messages(loaded.messages);
   // a file whose pattern does not build cannot be shown; its messages say why and where
   if (!loaded.project || !loaded.pattern) return { ok: false as const, format: loaded.format ?? 'project', messages: msgs };
-  return { ok: true as const, format: loaded.format ?? 'project', project: toProjectDto(loaded.project), messages: msgs };
+  return {
+    ok: true as const,
+    format: loaded.format ?? 'project',
+    project: toProjectDto(loaded.project),
+    messages: msgs,
+    ...(loaded.layers ? { drawingLayers: loaded.layers } : {}),
+  };
 }
 
 export function writeProjectJob(_state: JobState, payload: unknown): string {

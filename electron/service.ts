@@ -14,6 +14,8 @@ import {
   type MessageDto,
   type OpenResult,
   type OpenedDocument,
+  type DrawingLayerDto,
+  type DrawingOptionsDto,
   type ParsedRequestOf,
   type ProjectDto,
   type ResponseOf,
@@ -123,6 +125,7 @@ interface LoadAnswer {
   format: OpenedDocument['format'];
   project?: ProjectDto;
   messages: MessageDto[];
+  drawingLayers?: DrawingLayerDto[];
 }
 
 export function createService(deps: ServiceDeps) {
@@ -153,7 +156,7 @@ export function createService(deps: ServiceDeps) {
     return solver.run<T>(lane, kind, payload, { ...options, requestId: request.id });
   }
 
-  async function openFile(request: Request, filePath: string, extra: { computePath?: boolean; asSample?: boolean } = {}): Promise<OpenResult> {
+  async function openFile(request: Request, filePath: string, extra: { computePath?: boolean; asSample?: boolean; drawing?: DrawingOptionsDto } = {}): Promise<OpenResult> {
     const fileName = path.basename(filePath);
     const read = await readFileBytes(filePath);
     if (!read.ok) {
@@ -161,7 +164,7 @@ export function createService(deps: ServiceDeps) {
     }
     // what an interrupted save of this file left beside it (the app's own temporary files only)
     if (!extra.asSample) await removeStaleTemps(filePath);
-    const loaded = valueOf(await job<LoadAnswer>(request, 'interactive', 'load', { bytes: read.bytes, fileName }));
+    const loaded = valueOf(await job<LoadAnswer>(request, 'interactive', 'load', { bytes: read.bytes, fileName, ...(extra.drawing ? { drawing: extra.drawing } : {}) }));
     if (!loaded.ok || !loaded.project) return { status: 'failed', fileName, messages: loaded.messages };
     if (!extra.asSample) {
       approved.add(filePath);
@@ -178,6 +181,7 @@ export function createService(deps: ServiceDeps) {
         format: loaded.format,
         messages: loaded.messages,
         computePath: extra.computePath,
+        ...(loaded.drawingLayers ? { drawingLayers: loaded.drawingLayers, drawingOptions: extra.drawing ?? { layers: [] } } : {}),
       },
     };
   }
@@ -290,6 +294,15 @@ export function createService(deps: ServiceDeps) {
         }
         return r;
       });
+    },
+
+    async 'doc:reread-drawing'({ path: filePath, options, requestId }) {
+      // only a drawing main opened for this window (a dialog, the command line, the recent list): the page
+      // cannot name a file to read
+      if (!/\.(dxf|svg)$/i.test(filePath) || !(await approved.has(filePath))) {
+        return { status: 'failed', fileName: path.basename(filePath), messages: [{ severity: 'error', code: 'not-approved', text: `${path.basename(filePath)} is not a drawing this window opened; open it with Import drawing.` }] };
+      }
+      return asRequest<OpenResult>(requestId, { status: 'canceled' }, (r) => openFile(r, filePath, { drawing: options }));
     },
 
     async 'doc:save'({ project, filePath, saveAs, suggestedName, requestId }) {

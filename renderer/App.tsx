@@ -7,7 +7,7 @@ import { useCallback, useEffect, useMemo, useRef, useState } from 'react';
 import type { Controller } from './controller';
 import { useStore } from './state/store';
 import { canRedo, canUndo } from './state/history';
-import { isDirty } from './state/app';
+import { currentProject, isDirty } from './state/app';
 import { contactPanels, hingeRows, hingeTableCsv, shownState } from './state/display';
 import { pathOutcome } from './state/path-words';
 import { renameCrease, setBasePanel, setCreaseLimit, setPanelName, removeDrive, creaseIndexByLabel, limitDeg, panelName } from './state/document';
@@ -20,7 +20,7 @@ import { SolutionCards } from './views/SolutionCards';
 import { HingeTable } from './views/HingeTable';
 import { Inspector } from './views/Inspector';
 import { PathPanel } from './views/PathPanel';
-import { NewDialog, ExportDialog } from './views/Dialogs';
+import { NewDialog, ExportDialog, LayersDialog } from './views/Dialogs';
 import { Notices } from './views/Notices';
 
 /** Height of an element that may appear later (a callback ref, so it is measured whenever it mounts). */
@@ -109,6 +109,11 @@ export function App({ controller }: { controller: Controller }) {
         <button onClick={() => void controller.open('any')} title="Open a project or FOLD file (Ctrl+O)">Open…</button>
         <button onClick={() => void controller.open('fold')} title="Import a FOLD file (Ctrl+I)">Import FOLD…</button>
         <button onClick={() => void controller.open('drawing')} title="Import a crease pattern drawn in CAD or a drawing program (DXF or SVG)">Import drawing…</button>
+        {doc?.drawing && doc.filePath && (
+          <button onClick={() => dispatch({ type: 'dialog', dialog: 'layers' })} title="The drawing's layers and the assignment each gives its lines; set them and read the drawing again">
+            Layers…
+          </button>
+        )}
         <button onClick={() => void controller.save(false)} disabled={!doc} title="Save (Ctrl+S)">Save</button>
         <button onClick={() => void controller.save(true)} disabled={!doc} title="Save as (Ctrl+Shift+S)">Save as…</button>
         <button onClick={() => dispatch({ type: 'dialog', dialog: 'export' })} disabled={!doc} title="Export tables, FOLD, DXF, SVG, OBJ, STL (Ctrl+E)">Export…</button>
@@ -314,6 +319,15 @@ export function App({ controller }: { controller: Controller }) {
             dispatch({ type: 'dialog', dialog: null });
             return null;
           }}
+        />
+      )}
+      {state.dialog === 'layers' && doc?.drawing && (
+        <LayersDialog
+          layers={doc.drawing.layers}
+          options={doc.drawing.options}
+          units={currentProject(state)?.units}
+          onClose={() => dispatch({ type: 'dialog', dialog: null })}
+          onRead={(o) => controller.rereadDrawing(o)}
         />
       )}
       {state.dialog === 'export' && (

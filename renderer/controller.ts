@@ -3,7 +3,7 @@
 // Views call these methods; results come back as actions on the store.
 
 import type { HingeplanApi } from './api';
-import type { BranchDto, PathEventDto, DriveSpec, ExportKind, ExportOptionsDto, GeneratorSpec, MenuCommand, OpenResult, ProjectDto, SweepOptionsDto, ToleranceOptionsDto } from '../electron/contract';
+import type { BranchDto, PathEventDto, DriveSpec, DrawingOptionsDto, ExportKind, ExportOptionsDto, GeneratorSpec, MenuCommand, MessageDto, OpenResult, ProjectDto, SweepOptionsDto, ToleranceOptionsDto } from '../electron/contract';
 import { currentProject, isDirty, type AppState, type PathOrigin } from './state/app';
 import { flippedRange, type PathFixId } from './state/path-words';
 import type { Store } from './state/store';
@@ -128,6 +128,18 @@ export class Controller {
     const r = await this.api.open({ format });
     if (!r.ok) return this.fail('The file could not be opened', r.error.message);
     this.opened(r.value);
+  }
+
+  /** Read the open drawing again with its layers assigned as given (the Layers dialog). A message, or null when done. */
+  async rereadDrawing(options: DrawingOptionsDto): Promise<MessageDto[] | null> {
+    const doc = this.state.doc;
+    if (!doc?.filePath || !doc.drawing) return [{ severity: 'error', code: 'no-drawing', text: 'The document is not a drawing read from a file.' }];
+    if (!(await this.confirmDiscard('read the drawing again'))) return null;
+    const r = await this.api.rereadDrawing({ path: doc.filePath, options });
+    if (!r.ok) return [{ severity: 'error', code: r.error.code, text: r.error.message }];
+    if (r.value.status === 'failed') return r.value.messages;
+    this.opened(r.value);
+    return null;
   }
 
   async openRecent(path: string): Promise<void> {

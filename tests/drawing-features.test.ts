@@ -134,6 +134,20 @@ describe('SVG beyond plain lines', () => {
     expect(assignment('<g id="layer1" data-name="set A">', [{ name: 'set a', assignment: 'V' }])).toBe('V');
   });
 
+  it('says which layer or group gave its lines which assignment, and how (the app lists them to be set)', () => {
+    const svg = (g: string) =>
+      `<svg xmlns="http://www.w3.org/2000/svg" width="10mm" height="10mm" viewBox="0 0 10 10"><g id="rim"><rect width="10" height="10" stroke="#000" fill="none"/></g>${g}<line x1="0" y1="0" x2="10" y2="10" stroke="#000"/><line x1="0" y1="10" x2="5" y2="5" stroke="#000"/></g></svg>`;
+    const plain = loadPatternText(svg('<g id="set A">'), 'g.svg');
+    expect(plain.layers).toEqual([
+      { name: 'rim', assignment: 'B', how: 'name', lines: 4 },
+      { name: 'set A', assignment: 'U', how: 'none', lines: 2 },
+    ]);
+    expect(plain.messages.find((m) => m.code === 'layer-unassigned')?.text).toMatch(/"set A".*--layer "set A=M".*Layers/);
+    const mapped = loadPatternText(svg('<g id="set A">'), 'g.svg', { layers: [{ name: 'SET a', assignment: 'M' }] });
+    expect(mapped.layers).toContainEqual({ name: 'set A', assignment: 'M', how: 'layer', lines: 2 });
+    expect(mapped.messages.some((m) => m.code === 'layer-unassigned')).toBe(false);
+  });
+
   it('inches are kept; a viewBox scales user units to the width', () => {
     const r = loadPatternText(
       '<svg xmlns="http://www.w3.org/2000/svg" width="4in" height="2in" viewBox="0 0 400 200"><g id="border"><polygon points="0,0 400,0 400,200 0,200" stroke="black" fill="none"/></g><g id="Mountain"><line x1="200" y1="0" x2="200" y2="200" stroke="black"/></g></svg>',

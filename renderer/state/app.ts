@@ -5,6 +5,8 @@
 import type {
   BranchesResultDto,
   DocumentFormatSchema,
+  DrawingLayerDto,
+  DrawingOptionsDto,
   MessageDto,
   OpenedDocument,
   PathResultDto,
@@ -28,6 +30,8 @@ export interface DocState {
   format: DocumentFormat;
   /** the readers' warnings from opening */
   messages: MessageDto[];
+  /** a drawing (DXF, SVG): its layers as read and the options it was read with, to read it again otherwise */
+  drawing?: { layers: DrawingLayerDto[]; options: DrawingOptionsDto };
 }
 
 export type JobStatus = 'idle' | 'running' | 'done' | 'cancelled' | 'error';
@@ -110,7 +114,7 @@ export interface Notice {
   messages: MessageDto[];
 }
 
-export type DialogName = null | 'new' | 'export';
+export type DialogName = null | 'new' | 'export' | 'layers';
 
 export interface ViewState {
   ghost: boolean;
@@ -256,6 +260,7 @@ export function reducer(state: AppState, action: Action): AppState {
           fileName: d.fileName,
           format: d.format,
           messages: d.messages,
+          ...(d.drawingLayers ? { drawing: { layers: d.drawingLayers, options: d.drawingOptions ?? { layers: [] } } } : {}),
         },
       };
     }
@@ -280,7 +285,7 @@ export function reducer(state: AppState, action: Action): AppState {
       if (!state.doc) return state;
       return {
         ...state,
-        doc: { ...state.doc, saved: action.project, filePath: action.filePath, fileName: action.fileName, format: 'project' },
+        doc: { ...state.doc, saved: action.project, filePath: action.filePath, fileName: action.fileName, format: 'project', drawing: undefined },
       };
     case 'solve-started':
       return { ...state, solve: { ...state.solve, status: 'running', requestId: action.requestId, forDrives: action.forDrives } };

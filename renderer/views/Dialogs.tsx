@@ -1,7 +1,7 @@
-// The two dialogs: a new pattern from a generator, and the export of tables and shapes with their options.
+// The dialogs: a new pattern from a generator, the export of tables and shapes with their options, and the layers of an imported drawing.
 
 import { useState, type ReactNode } from 'react';
-import type { ExportKind, ExportOptionsDto, GeneratorSpec, MessageDto, ScheduleProfile } from '../../electron/contract';
+import type { DrawingLayerDto, DrawingOptionsDto, ExportKind, ExportOptionsDto, GeneratorSpec, MessageDto, ScheduleProfile } from '../../electron/contract';
 import { CAUTIONS } from '../../solver/formats/cautions';
 
 function Modal({ title, children, onClose }: { title: string; children: ReactNode; onClose(): void }) {
@@ -335,6 +335,94 @@ export function ExportDialog({ hasPath, onExport, onClose }: { hasPath: boolean;
         <button className="primary" onClick={go} disabled={busy || (needsPath && !hasPath)} data-testid="export-go">
           {busy ? 'Exporting…' : 'Export…'}
         </button>
+      </div>
+    </Modal>
+  );
+}
+
+const HOW_WORDS: Record<DrawingLayerDto['how'], string> = {
+  layer: 'as you said',
+  name: 'from its name',
+  none: 'name says nothing',
+};
+
+const ASSIGNMENT_CHOICES: [DrawingLayerDto['assignment'], string][] = [
+  ['M', 'M, mountain'],
+  ['V', 'V, valley'],
+  ['F', 'F, flat (held at 0)'],
+  ['B', 'B, boundary'],
+  ['U', 'U, unassigned'],
+];
+
+/**
+ * The layers (DXF) or groups (SVG) of the open drawing, the assignment each gave its lines and how; the
+ * person sets them and the snap length, and the drawing is read again with them (as `--layer` and `--snap`
+ * on the command line). Lines on no named layer cannot be mapped by name.
+ */
+export function LayersDialog({ layers, options, units, onRead, onClose }: {
+  layers: DrawingLayerDto[];
+  options: DrawingOptionsDto;
+  units?: string;
+  onRead(options: DrawingOptionsDto): Promise<MessageDto[] | null>;
+  onClose(): void;
+}) {
+  const [chosen, setChosen] = useState<Record<string, DrawingLayerDto['assignment']>>(() => Object.fromEntries(layers.map((l) => [l.name, l.assignment])));
+  const [snap, setSnap] = useState(options.snap === undefined ? '' : String(options.snap));
+  const [problems, setProblems] = useState<string[]>([]);
+  const [busy, setBusy] = useState(false);
+  const read = async () => {
+    const s = snap.trim() === '' ? undefined : Number(snap.replace(',', '.'));
+    if (s !== undefined && !(Number.isFinite(s) && s >= 0)) {
+      setProblems([`The snap length "${snap}" is not a length ≥ 0.`]);
+      return;
+    }
+    setBusy(true);
+    const named = layers.filter((l) => l.name !== '');
+    const result = await onRead({ layers: named.map((l) => ({ name: l.name, assignment: chosen[l.name] })), ...(s !== undefined ? { snap: s } : {}) });
+    setBusy(false);
+    if (result) setProblems(result.map((m) => m.text));
+    else onClose();
+  };
+  return (
+    <Modal title="Layers of the drawing" onClose={onClose}>
+      <p className="hint">Each layer or group of the drawing gives its lines an assignment. Set the ones the names do not say, then read the drawing again.</p>
+      <table className="layers-table" aria-label="layers of the drawing">
+        <thead>
+          <tr><th>layer or group</th><th>lines</th><th>read</th><th>assignment</th></tr>
+        </thead>
+        <tbody>
+          {layers.map((l) => (
+            <tr key={l.name} className={l.how === 'none' ? 'layer-unsaid' : undefined}>
+              <td>{l.name === '' ? <em>no named layer</em> : l.name}</td>
+              <td className="num">{l.lines}</td>
+              <td>{HOW_WORDS[l.how]}</td>
+              <td>
+                <select
+                  aria-label={`assignment of layer ${l.name || '(none)'}`}
+                  value={chosen[l.name]}
+                  disabled={l.name === ''}
+                  onChange={(e) => setChosen({ ...chosen, [l.name]: e.target.value as DrawingLayerDto['assignment'] })}
+                >
+                  {ASSIGNMENT_CHOICES.map(([a, words]) => <option key={a} value={a}>{words}</option>)}
+                </select>
+              </td>
+            </tr>
+          ))}
+        </tbody>
+      </table>
+      <label className="field">
+        <span>snap end points within{units ? ` (${units})` : ''}</span>
+        <input value={snap} onChange={(e) => setSnap(e.target.value)} aria-label="snap length" placeholder="default" />
+        <small>empty: a small fraction of the sheet size</small>
+      </label>
+      {problems.length > 0 && (
+        <ul className="dialog-problems" role="alert">
+          {problems.map((p, i) => <li key={i}>{p}</li>)}
+        </ul>
+      )}
+      <div className="dialog-buttons">
+        <button onClick={onClose}>Cancel</button>
+        <button className="primary" onClick={() => void read()} disabled={busy}>{busy ? 'Reading…' : 'Read again'}</button>
       </div>
     </Modal>
   );

@@ -45,9 +45,20 @@ export interface Drawing {
   messages: Message[];
 }
 
+/** A layer (DXF) or group (SVG) of the drawing as it was read: the assignment its lines got, and how. */
+export interface DrawingLayer {
+  name: string;
+  assignment: Assignment;
+  /** layer: by the person's mapping; name: from the words in the name; none: nothing said (read as U) */
+  how: 'layer' | 'name' | 'none';
+  lines: number;
+}
+
 export interface DrawingLoad {
   project?: Project;
   messages: Message[];
+  /** the named layers or groups that gave lines their assignment (lines assigned by colour apart) */
+  layers?: DrawingLayer[];
   /** what the cleaning did, step by step */
   cleaning?: CleanCounts & { snap: number };
   /** point a message of the pattern checks (vertex, crease) at the drawing */
@@ -108,11 +119,11 @@ export function drawingToProject(drawing: Drawing, opts: DrawingOptions = {}): D
     return { messages };
   }
 
-  const { segments, origins } = assignLines(drawing, checked, messages);
+  const { segments, origins, layers } = assignLines(drawing, checked, messages);
 
   const cleaned = cleanSegments(segments, origins, opts.snap);
   messages.push(...cleaned.messages);
-  if (cleaned.messages.some((m) => m.severity === 'error')) return { messages, cleaning: { ...cleaned.counts, snap: cleaned.snap } };
+  if (cleaned.messages.some((m) => m.severity === 'error')) return { messages, layers, cleaning: { ...cleaned.counts, snap: cleaned.snap } };
 
   const edgeOrigin = (e: number) => origins[segments[cleaned.sources[e][0]].origin];
   const labels = labelsFromTexts(drawing.texts, cleaned.vertices, cleaned.edges, cleaned.snap, messages);
@@ -128,7 +139,7 @@ export function drawingToProject(drawing: Drawing, opts: DrawingOptions = {}): D
   if (drawing.units !== undefined) project.units = drawing.units;
 
   const locate = locator(cleaned.vertices, cleaned.edges, edgeOrigin);
-  return { project, messages, cleaning: { ...cleaned.counts, snap: cleaned.snap }, locate };
+  return { project, messages, layers, cleaning: { ...cleaned.counts, snap: cleaned.snap }, locate };
 }
 
 type Checked = ReturnType<typeof checkOptions>;
@@ -137,7 +148,7 @@ type Checked = ReturnType<typeof checkOptions>;
  * Each line's assignment: a --layer name, then a --stroke colour, then the names' own words, else U (a
  * warning per layer). Messages summarise which layer or colour gave what, and options that matched nothing.
  */
-function assignLines(drawing: Drawing, checked: Checked, messages: Message[]): { segments: DrawnSegment[]; origins: Origin[] } {
+function assignLines(drawing: Drawing, checked: Checked, messages: Message[]): { segments: DrawnSegment[]; origins: Origin[]; layers: DrawingLayer[] } {
   /** how each group of lines got its assignment, for the summary: one entry per (layer, rule) */
   const groups = new Map<string, { layer: string; how: 'layer' | 'stroke' | 'name' | 'none'; stroke?: string; assignment: Assignment; count: number; first: Origin }>();
   const strokeUsed = new Set<string>();
@@ -187,7 +198,7 @@ function assignLines(drawing: Drawing, checked: Checked, messages: Message[]): {
       messages.push({
         severity: 'warning',
         code: 'layer-unassigned',
-        text: `${g.count} line${g.count === 1 ? ' is' : 's are'} on ${layerText}, read as unassigned (U): the name ${amb ? 'names more than one assignment' : 'says no mountain, valley, flat or boundary'}. Use --layer "${g.layer}=M" (or V, F, B, U) to say which.`,
+        text: `${g.count} line${g.count === 1 ? ' is' : 's are'} on ${layerText}, read as unassigned (U): the name ${amb ? 'names more than one assignment' : 'says no mountain, valley, flat or boundary'}. Say which with --layer "${g.layer}=M" (or V, F, B, U), or in the app with Layers….`,
         where: g.first.where,
       });
     }
@@ -203,7 +214,9 @@ function assignLines(drawing: Drawing, checked: Checked, messages: Message[]): {
     }
   }
   messages.push({ severity: 'info', code: 'drawing-read', text: `Read ${drawing.lines.length} straight piece${drawing.lines.length === 1 ? '' : 's'}: ${summary.join(', ')}.` });
-  return { segments, origins };
+  const layers: DrawingLayer[] = [];
+  for (const g of groups.values()) if (g.how !== 'stroke') layers.push({ name: g.layer, assignment: g.assignment, how: g.how, lines: g.count });
+  return { segments, origins, layers };
 }
 
 /** Point a message of the pattern checks (a crease, or a vertex) at where the drawing drew it. */

@@ -14,6 +14,7 @@ import { decodeUtf8 } from './text';
 import { decodeDxf } from './dxf-text';
 import { loadsValue, readLoads, type FileLoads } from './loads';
 import type { CleanCounts } from '../model/clean';
+import type { DrawingLayer } from './drawing';
 
 export { MAX_CREASES, MAX_TEXT_BYTES, MAX_VERTICES };
 
@@ -301,6 +302,8 @@ export interface LoadResult {
   drives?: Drive[];
   /** DXF and SVG: what the geometry cleaning did, step by step, and the snap it used */
   cleaning?: CleanCounts & { snap: number };
+  /** DXF and SVG: the layers or groups that assigned the lines, and how */
+  layers?: DrawingLayer[];
   messages: Message[];
 }
 

@@ -489,4 +489,37 @@ export const e2eTests: E2ETest[] = [
       });
     },
   },
+  {
+    name: 'a drawing whose layer names say nothing: the Layers dialog lists them, and the drawing read again with them assigned matches the core reader',
+    async run(h) {
+      await withSession(h, 'drawing-layers', { openSample: COUPON_FILE }, async ({ page, host, tmp }) => {
+        await waitSolved(page);
+        const drawn = path.join(tmp, 'coupon-unnamed.svg');
+        const text = readFileSync(path.join(SAMPLES, '..', 'tests', 'fixtures', 'drawings', 'coupon.svg'), 'utf8').replace('id="mountains"', 'id="folds-a"');
+        await fs.writeFile(drawn, text);
+        host.openAnswers.push(drawn);
+        await page.click('button:has-text("Import drawing…")');
+        await page.waitForSelector('[data-testid=doc-title]:has-text("coupon-unnamed.svg")');
+        await page.click('button:has-text("Layers…")');
+        const dialog = page.getByRole('dialog', { name: 'Layers of the drawing' });
+        await dialog.waitFor();
+        const row = dialog.locator('tr', { hasText: 'folds-a' });
+        assert.match((await row.textContent()) ?? '', /folds-a\s*4\s*name says nothing/);
+        const select = dialog.getByLabel('assignment of layer folds-a');
+        assert.equal(await select.inputValue(), 'U');
+        await select.selectOption('M');
+        await screenshot(page, 'drawing-layers');
+        await dialog.getByRole('button', { name: 'Read again' }).click();
+        await dialog.waitFor({ state: 'detached' });
+        // the core reader with the same mapping, run in Node, is the reference
+        const expected = loadPatternText(text, drawn, { layers: [{ name: 'folds-a', assignment: 'M' }] }).pattern!;
+        const want = expected.creases.filter((c) => c.assignment !== 'B').map((c) => c.assignment).sort().join('');
+        assert.equal(want, 'MMMV');
+        await page.waitForFunction((w) => {
+          const cells = [...document.querySelectorAll('[role=cell].c-assign')].map((c) => c.textContent?.trim() ?? '');
+          return cells.filter((c) => c !== 'B').sort().join('') === w;
+        }, want, { timeout: 30_000 });
+      });
+    },
+  },
 ];

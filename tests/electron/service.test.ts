@@ -252,6 +252,34 @@ describe('main-process handlers', () => {
     }
   });
 
+  it('reads an imported drawing again with its layers assigned as the person says, and only a drawing it opened', async () => {
+    // the coupon drawing with its mountain group under a name that says nothing
+    const drawn = path.join(tmp, 'coupon-unnamed.svg');
+    const text = readFileSync(path.join(__dirname, '..', 'fixtures', 'drawings', 'coupon.svg'), 'utf8').replace('id="mountains"', 'id="folds-a"');
+    await fs.writeFile(drawn, text);
+    host.open.push(drawn);
+    type Opened = { status: string; document: { filePath: string; project: { source: { assignments: string[] } }; drawingLayers: { name: string; assignment: string; how: string; lines: number }[]; drawingOptions: { layers: unknown[]; snap?: number } } };
+    const r = (await call('doc:open', { format: 'drawing' })) as Opened;
+    expect(r.status).toBe('opened');
+    expect(r.document.drawingLayers).toEqual(expect.arrayContaining([
+      // c1 is a polyline of two pieces: four lines
+      { name: 'folds-a', assignment: 'U', how: 'none', lines: 4 },
+      expect.objectContaining({ assignment: 'V', how: 'name' }),
+      { name: 'sheet-outline', assignment: 'B', how: 'name', lines: 4 },
+    ]));
+    expect(r.document.project.source.assignments.filter((a) => a !== 'B').sort()).toEqual(['U', 'U', 'U', 'V']);
+    const again = (await call('doc:reread-drawing', { path: r.document.filePath, options: { layers: [{ name: 'folds-a', assignment: 'M' }], snap: 0.01 } })) as Opened;
+    expect(again.status).toBe('opened');
+    expect(again.document.project.source.assignments.filter((a) => a !== 'B').sort()).toEqual(['M', 'M', 'M', 'V']);
+    expect(again.document.drawingLayers).toEqual(expect.arrayContaining([{ name: 'folds-a', assignment: 'M', how: 'layer', lines: 4 }]));
+    expect(again.document.drawingOptions).toEqual({ layers: [{ name: 'folds-a', assignment: 'M' }], snap: 0.01 });
+    // a file the window never opened, or one that is not a drawing, is not read
+    const other = path.join(tmp, 'never-opened.svg');
+    await fs.writeFile(other, text);
+    expect(await call('doc:reread-drawing', { path: other, options: { layers: [] } })).toMatchObject({ status: 'failed', messages: [{ code: 'not-approved' }] });
+    expect(await call('doc:reread-drawing', { path: coupon, options: { layers: [] } })).toMatchObject({ status: 'failed', messages: [{ code: 'not-approved' }] });
+  });
+
   it('exports the folded shape as OBJ with the cautions line', async () => {
     const text = readFileSync(coupon, 'utf8');
     const loaded = loadPatternText(text, 'c.hingeplan.json');
