@@ -70,7 +70,14 @@ describe('interrupts at every moment of a long run', () => {
         // a second Ctrl-C 15 ms after the first in every other run: not swallowed either
         const r = await runSignalled(RUN(['--out', out]), 'SIGINT', (i + k) % 2 ? [d, d + 15] : [d]);
         const text = readFileSync(out, 'utf8');
-        if (r.signal === 'SIGINT') {
+        if (r.signal === 'SIGINT' && /^wrote /m.test(r.err)) {
+          // the second Ctrl-C came while Node was ending the process, after the table was written and
+          // reported (Node gives the signal its default action then; a shell sees 130 either way): the
+          // file is the complete table of what was computed
+          const c = completeCsv(text);
+          expect(['stopped', 'complete']).toContain(c.status);
+          outcomes.push(`${c.status} after ${c.rows} rows, killed while exiting`);
+        } else if (r.signal === 'SIGINT') {
           // before the program watched for Ctrl-C (while Node started): nothing computed, nothing written
           expect(r.err, 'killed by Ctrl-C after the work had begun').not.toMatch(/table: \d+\/\d+/);
           expect(text).toBe(OLD);
