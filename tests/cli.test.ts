@@ -38,6 +38,27 @@ describe('hingeplan command line', () => {
     expect((await run(['new', 'waterbomb', '--units', ''])).code).toBe(2);
   });
 
+  it('solve and branches --json compact are the same JSON value as --pretty (their members per crease written as text in one piece)', async () => {
+    const samples = join(__dirname, '..', 'samples');
+    const cases = [
+      ['solve', join(samples, 'two-motor-rig.hingeplan.json'), '--json'],
+      ['solve', join(samples, 'two-motor-rig.hingeplan.json'), '--set', 'c0=35', '--json'],
+      ['solve', join(samples, 'gripper-cell.hingeplan.json'), '--json', '--conditions', 'all'],
+      ['solve', coupon, '--set', 'c0=45', '--set', 'c1=10', '--json'],
+      ['solve', five, '--json'],
+      ['branches', coupon, '--json'],
+      ['branches', coupon, '--at', 'c0=40', '--json'],
+      ['branches', join(samples, 'sunshade-panel.hingeplan.json'), '--json'],
+    ];
+    for (const args of cases) {
+      const compact = await run(args);
+      const pretty = await run([...args, '--pretty']);
+      expect(compact.code).toBe(pretty.code);
+      expect(compact.out.split('\n').filter(Boolean)).toHaveLength(1);
+      expect(JSON.parse(compact.out), args.join(' ')).toEqual(JSON.parse(pretty.out));
+    }
+  });
+
   it('solve evaluates condition numbers where asked and says where it did not', async () => {
     const r = await run(['solve', coupon, '--set', 'c0=45', '--json']);
     const j = JSON.parse(r.out);

@@ -4,7 +4,7 @@ import type { OptionSpec } from '../args';
 import { drivesFor, loadFile, printMessages } from '../load';
 import { EXIT, exitForStatus } from '../exit-codes';
 import { messageJson } from '../report-json';
-import { LazyArray } from '../../solver/formats/json-text';
+import { keyedJson, keyText, LazyArray, numberText } from '../../solver/formats/json-text';
 import { textTable } from '../table-text';
 import { branchesAt, flatBranches, type BranchAnalysis } from '../../solver/paths/branches';
 import { solveDrives } from '../../solver/search/solve';
@@ -13,9 +13,13 @@ import { writeWhole, writeWholeJson } from '../output';
 import { CAUTIONS } from '../../solver/formats/cautions';
 import { creaseOption, holdsOption, joinNegativeNumbers } from './path-common';
 
-function analysisJson(pattern: Pattern, a: BranchAnalysis, at: Float64Array | undefined, given: Drive[]) {
+/** `compact`: each ray's tangent and ratios (a member per crease) as text in one piece; else objects, for the indented form. */
+function analysisJson(pattern: Pattern, a: BranchAnalysis, at: Float64Array | undefined, given: Drive[], compact: boolean) {
   const label = (c: number) => pattern.creases[c].label;
   const listed = pattern.creases.filter((c) => c.assignment !== 'B').map((c) => c.index);
+  const listedKeys = compact ? listed.map((c) => keyText(label(c))) : [];
+  const byCrease = (cs: number[], v: (c: number) => number) =>
+    compact ? keyedJson(cs === listed ? listedKeys : cs.map((c) => keyText(label(c))), (i) => numberText(v(cs[i]))) : Object.fromEntries(cs.map((c) => [label(c), v(c)]));
   const DEG = 180 / Math.PI;
   return {
     state: a.state,
@@ -31,9 +35,9 @@ function analysisJson(pattern: Pattern, a: BranchAnalysis, at: Float64Array | un
         group: b.group,
         kind: b.kind,
         matchesAssignment: b.matchesAssignment,
-        tangent: Object.fromEntries(listed.map((c) => [label(c), b.tangent[c]])),
+        tangent: byCrease(listed, (c) => b.tangent[c]),
         reference: b.reference >= 0 ? label(b.reference) : null,
-        ratios: Object.fromEntries([...b.ratios].map(([c, r]) => [label(c), r])),
+        ratios: byCrease([...b.ratios.keys()], (c) => b.ratios.get(c)!),
         ...(b.line ? { line: b.line.map(label) } : {}),
         verified: b.verified,
       };
@@ -119,7 +123,7 @@ Exit status 0; 2 invalid input; 3 the --at values have no state.`,
       analysis = flatBranches(pattern, { held, drive });
     }
     if (values.json) {
-      writeWholeJson(io, 'branches', analysisJson(pattern, analysis, at, given), !!values.pretty);
+      writeWholeJson(io, 'branches', analysisJson(pattern, analysis, at, given, !values.pretty), !!values.pretty);
       return EXIT.ok;
     }
     if (values.pretty) throw new UsageError('--pretty is for --json');

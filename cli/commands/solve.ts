@@ -100,7 +100,7 @@ Exit status: 0 solved / several solutions / overspecified but consistent / depen
       };
     });
     if (values.json) {
-      const json = reportJson(pattern, drives, { ...report, solutions: report.solutions.slice(0, shown.length) }, { contact: { checked: !!checker, clearance }, solutions: checks, torque: !!loads });
+      const json = reportJson(pattern, drives, { ...report, solutions: report.solutions.slice(0, shown.length) }, { contact: { checked: !!checker, clearance }, solutions: checks, torque: !!loads }, !values.pretty);
       const out = omitted.length
         ? { ...json, omitted: { count: omitted.length, groups: groups.map((g) => ({ count: g.count, solutions: g.solutions, text: g.text })) } }
         : json;

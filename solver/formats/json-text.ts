@@ -81,6 +81,30 @@ export function numberArrayJson(n: number, value: (i: number) => number, pretty 
   return new RawJson(s + ']');
 }
 
+/** A number as JSON text: the shortest round trip, −0 as 0, non-finite as null (JSON has no ∞). */
+export function numberText(x: number): string {
+  return Number.isFinite(x) ? String(x === 0 ? 0 : x) : 'null';
+}
+
+/** A member name as JSON text (quoted, escaped as every string here is). */
+export function keyText(name: string): string {
+  return jsonSafe(JSON.stringify(name));
+}
+
+/**
+ * An object as compact JSON text in one piece: `keys[i]` the i-th member's name already as keyText, and
+ * `member(i)` its value as JSON text (undefined leaves the member out). For objects with a member per crease,
+ * which would otherwise be built as objects of thousands of members and then written member by member.
+ */
+export function keyedJson(keys: readonly string[], member: (i: number) => string | undefined): RawJson {
+  const parts: string[] = [];
+  for (let i = 0; i < keys.length; i++) {
+    const v = member(i);
+    if (v !== undefined) parts.push(keys[i] + ':' + v);
+  }
+  return new RawJson('{' + parts.join(',') + '}');
+}
+
 /**
  * `value` as JSON (the same text as jsonText), written to `write` a piece at a time, so a large value (the
  * rays of a big sheet) never has to fit in one string.
