@@ -29,6 +29,11 @@ function labelKeysOf(pattern: Pattern): string[] {
   return keys;
 }
 
+/** anglesByLabel as JSON: `compact`, text in one piece; else the object. */
+function anglesJson(pattern: Pattern, angles: Float64Array, drives: Drive[], compact: boolean): unknown {
+  return compact ? keyedJson(labelKeysOf(pattern), (c) => numberText(angleDeg(angles, drives, c))) : anglesByLabel(pattern, angles, drives);
+}
+
 /** What a command checked on each solution: contacts (panel pairs) and the drives' holding torque (N·m). */
 export interface SolutionChecks {
   contacts?: [number, number][];
@@ -46,16 +51,14 @@ export function solutionJson(pattern: Pattern, s: Solution, index: number, drive
   // per free crease (movable, not a drive): its rate against each drive, degrees per degree
   const free = (c: Pattern['creases'][number]) => driving.length > 0 && c.assignment !== 'B' && c.assignment !== 'F' && !s.sensitivity.has(c.index);
   const vertexKeys = pattern.interiorVertices.map((iv) => String(iv.vertex));
-  let angles: unknown, sensitivity: unknown, vertexResiduals: unknown;
+  let sensitivity: unknown, vertexResiduals: unknown;
   if (compact) {
     const keys = labelKeysOf(pattern);
     const driveKeys = driving.map((d) => keys[d]);
     const rows = driving.map((d) => s.sensitivity.get(d)!);
-    angles = keyedJson(keys, (c) => numberText(angleDeg(s.angles, drives, c)));
     sensitivity = keyedJson(keys, (c) => (free(pattern.creases[c]) ? '{' + rows.map((r, k) => driveKeys[k] + ':' + numberText(r[c])).join(',') + '}' : undefined));
     vertexResiduals = keyedJson(vertexKeys.map(keyText), (i) => numberText(s.vertexResiduals[i]));
   } else {
-    angles = anglesByLabel(pattern, s.angles, drives);
     const rows: Record<string, Record<string, number>> = {};
     for (const c of pattern.creases) if (free(c)) rows[c.label] = Object.fromEntries(driving.map((d) => [pattern.creases[d].label, s.sensitivity.get(d)![c.index]]));
     sensitivity = rows;
@@ -63,7 +66,7 @@ export function solutionJson(pattern: Pattern, s: Solution, index: number, drive
   }
   return {
     index,
-    angles,
+    angles: anglesJson(pattern, s.angles, drives, compact),
     maxResidual: s.maxResidual,
     matchesAssignment: s.matchesAssignment,
     localDof: s.localDof,
@@ -95,7 +98,7 @@ export function reportJson(pattern: Pattern, drives: Drive[], report: SolveRepor
     ...(checks ? { contact: checks.contact, ...(checks.torque ? { torqueUnits: 'N·m' } : {}) } : {}),
     families: report.families.map((f) => ({
       dof: f.dof,
-      representative: solutionJson(pattern, f.representative, 0, drives, undefined, compact).angles,
+      representative: anglesJson(pattern, f.representative.angles, drives, compact),
       directions: f.directions.map((d) => Object.fromEntries([...d].map(([c, v]) => [pattern.creases[c].label, v]))),
       matchesAssignment: f.matchesAssignment,
     })),
