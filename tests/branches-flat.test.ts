@@ -2,7 +2,7 @@
 import { describe, expect, it } from 'vitest';
 import { branchesAt, flatBranches } from '../solver/paths/branches';
 import { flatCone } from '../solver/paths/cone';
-import { miura, degree4Assignment } from '../solver/model/generators';
+import { miura, degree4Assignment, waterbomb } from '../solver/model/generators';
 import { buildPattern } from '../solver/model/pattern';
 import { sweep, secondOrderRows } from '../solver/paths/sweep';
 import { ClosureProblem } from '../solver/closure/newton';
@@ -235,5 +235,25 @@ describe('every curve through flat, with ids that do not depend on the drive', (
       const [plus, minus] = g.branches.map((id) => a.branches.find((x) => x.id === id)!);
       for (const [k, v] of plus.ratios) expect(minus.ratios.get(k)).toBeCloseTo(-v, 12);
     }
+  });
+});
+
+describe('what the dense analysis can promise', () => {
+  it('a degree-5 vertex and the waterbomb base (three or more dimensions of first-order motion at flat) are searched, and say the list is not proven complete', () => {
+    // a generic degree-5 vertex: five creases, two first-order conditions, three dimensions (common practice:
+    // the flat state's linear motions are the null space of the two rows Σρ cos θ = Σρ sin θ = 0)
+    const five = vertexPattern(directionsFromSectors([60, 75, 70, 80, 75]));
+    const r5 = flatBranches(five);
+    expect(r5.partial).toBe(true);
+    expect(r5.messages.find((m) => m.code === 'branches-searched')?.text).toMatch(/3-dimensional .* not proven/);
+    expect(r5.branches.length).toBeGreaterThan(0);
+    const wb = waterbomb({});
+    const rw = flatBranches(buildPattern(wb.project!.source).pattern!);
+    expect(rw.partial).toBe(true);
+    expect(rw.messages.some((m) => m.code === 'branches-searched')).toBe(true);
+    // a degree-4 vertex: two dimensions, the rays in closed form, complete
+    const four = flatBranches(vertexPattern(directionsFromSectors([60, 100, 120, 80])));
+    expect(four.partial).toBe(false);
+    expect(four.messages.some((m) => m.code === 'branches-searched')).toBe(false);
   });
 });

@@ -59,7 +59,9 @@ closure. Rays are grouped: a curve through the state (its two senses, e.g. A+ an
 line folding alone (L1+, L1−, …). Where every vertex has at most four free creases the flat state's curves
 are found vertex by vertex (each vertex's two modes, tied together across shared creases): every curve, or
 the first 64 besides the straight lines when there are more (marked partial). Elsewhere the dense tangent-cone
-analysis runs (up to 400 free creases). Ids and names depend on the pattern and the held creases only: "+"
+analysis runs (up to 400 free creases): in closed form where the first-order motions span one or two
+dimensions, else by a search from deterministic random starts, which is marked partial (every ray it lists
+is one; it does not prove it found them all). Ids and names depend on the pattern and the held creases only: "+"
 is the sense in which a curve's lowest-numbered moving crease folds valley-wards; the drive only sets what the
 ratios are relative to. Each ray has its own signed first-order ratios (dρ/|dρ| of the reference crease: the
 drive when it moves, else the curve's lowest-numbered moving crease), whether its signs match the

@@ -150,8 +150,9 @@ export function flatBranches(pattern: Pattern, opts: BranchOptions = {}): Branch
       text: `The vertex-by-vertex analysis does not apply (${structural.reason}), and ${movable} free creases is above the ${limit} the dense flat-state analysis handles: only straight crease lines folding alone are listed.`,
     });
   }
+  if (!cone.partial && !cone.complete) messages.push(searchedNote('the flat state', cone.linearDimension, cone.starts));
   const result = organize(pattern, raw, held, opts, 'flat', cone.partial ? NaN : cone.linearDimension, messages);
-  result.partial = cone.partial;
+  result.partial = cone.partial || !cone.complete;
   return result;
 }
 
@@ -261,7 +262,20 @@ export function branchesAt(pattern: Pattern, angles: Float64Array, opts: BranchO
   }
   const coeffs = commonZeros(live, k);
   const raw: RawRay[] = coeffs.map((c) => ({ tangent: toFull(c) }));
-  return organize(pattern, raw, held, opts, 'singular', k, messages, problem, angles);
+  // two directions: the rays are the roots of a binary quadratic, all of them; more: a search
+  if (k > 2) messages.push(searchedNote('this state', k, commonZeroStarts(k)));
+  const result = organize(pattern, raw, held, opts, 'singular', k, messages, problem, angles);
+  if (k > 2) result.partial = true;
+  return result;
+}
+
+/** The rays of a tangent cone of three or more dimensions come from a search, which cannot prove it found them all. */
+function searchedNote(where: string, dimension: number, starts: number | undefined): Message {
+  return {
+    severity: 'warning',
+    code: 'branches-searched',
+    text: `The rays leaving ${where} were found by a search on the second-order closure conditions (${starts ?? 'several'} starts in a ${dimension}-dimensional space of first-order motions): every ray listed satisfies them, but the list is not proven to hold every ray.`,
+  };
 }
 
 /** Orthonormal basis of the left null space of the factored matrix (columns rank … m−1 of Q). */
@@ -298,6 +312,9 @@ function formNorm(M: number[][]): number {
 }
 
 /** Unit vectors c (both signs) on which every quadratic form vanishes, relative to the forms' size. */
+/** Random starts of the search for common zeros of the quadratic forms on a k-dimensional space. */
+const commonZeroStarts = (k: number) => Math.min(200, 30 + 10 * k);
+
 function commonZeros(forms: number[][][], k: number): number[][] {
   const big = Math.max(...forms.map(formNorm));
   const ok = (c: number[]) => forms.every((M) => Math.abs(quadValue(M, c)) <= 1e-6 * big);
@@ -330,7 +347,7 @@ function commonZeros(forms: number[][][], k: number): number[][] {
   }
   // k > 2: Gauss–Newton on the sphere from deterministic random starts
   const rand = mulberry32(7);
-  const starts = Math.min(200, 30 + 10 * k);
+  const starts = commonZeroStarts(k);
   for (let s = 0; s < starts; s++) {
     let c = Array.from({ length: k }, () => rand() * 2 - 1);
     for (let it = 0; it < 60; it++) {

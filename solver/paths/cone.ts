@@ -37,6 +37,14 @@ export interface ConeResult {
   variables: number[];
   /** true when the pattern was too large for the dense analysis and only structural rays were found */
   partial: boolean;
+  /**
+   * false when the rays come from a search on the second-order equations (random starts on a null space of
+   * three or more dimensions), which finds rays but cannot prove it found them all; true where they are
+   * solved in closed form (a null space of one or two dimensions, or no second-order condition)
+   */
+  complete: boolean;
+  /** the search's starts, when it searched */
+  starts?: number;
 }
 
 export const CONE_MAX_VARIABLES = 400;
@@ -111,9 +119,9 @@ export function flatCone(pattern: Pattern, opts: ConeOptions = {}): ConeResult {
   }
   const n = variables.length;
   const lineRays = straightLineRays(pattern, held, opts.ratio ?? [], n);
-  if (n === 0) return { rays: [], linearDimension: 0, variables, partial: false };
+  if (n === 0) return { rays: [], linearDimension: 0, variables, partial: false, complete: true };
   if (n > (opts.maxVariables ?? CONE_MAX_VARIABLES)) {
-    return { rays: lineRays, linearDimension: NaN, variables, partial: true };
+    return { rays: lineRays, linearDimension: NaN, variables, partial: true, complete: false };
   }
   // linear rows: x and y components per vertex, plus drive-ratio rows
   const rows: number[][] = [];
@@ -149,7 +157,7 @@ export function flatCone(pattern: Pattern, opts: ConeOptions = {}): ConeResult {
   }
   const N = nullSpace(rows, n);
   const k = N.length;
-  if (k === 0) return { rays: [], linearDimension: 0, variables, partial: false };
+  if (k === 0) return { rays: [], linearDimension: 0, variables, partial: false, complete: true };
   // quadratic forms per vertex restricted to the null space: M_v = Nᵀ S_v N
   const forms: number[][][] = [];
   for (const iv of pattern.interiorVertices) {
@@ -180,6 +188,7 @@ export function flatCone(pattern: Pattern, opts: ConeOptions = {}): ConeResult {
     if (big > 1e-12) forms.push(M);
   }
   const coeffRays: number[][] = [];
+  let searched: number | undefined;
   if (forms.length === 0) {
     // every direction of the null space is a ray: report the basis, both ways
     for (const v of identityRows(k)) coeffRays.push(v, v.map((x) => -x));
@@ -199,6 +208,7 @@ export function flatCone(pattern: Pattern, opts: ConeOptions = {}): ConeResult {
     }
     const rand = mulberry32(opts.seed ?? 12345);
     const starts = opts.starts ?? Math.min(160, 24 + 4 * k);
+    searched = starts + (opts.seeds?.length ?? 0);
     for (let s = 0; s < starts; s++) {
       const c0 = Array.from({ length: k }, () => gaussian(rand));
       const c = polishOnSphere(forms, c0);
@@ -227,7 +237,7 @@ export function flatCone(pattern: Pattern, opts: ConeOptions = {}): ConeResult {
     normalizeInPlace(tangent);
     add({ tangent, quadraticResidual: q });
   }
-  return { rays, linearDimension: k, variables, partial: false };
+  return { rays, linearDimension: k, variables, partial: false, complete: searched === undefined, ...(searched !== undefined ? { starts: searched } : {}) };
 }
 
 function straightLineRays(
