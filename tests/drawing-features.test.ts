@@ -142,7 +142,7 @@ describe('SVG beyond plain lines', () => {
       { name: 'rim', assignment: 'B', how: 'name', lines: 4 },
       { name: 'set A', assignment: 'U', how: 'none', lines: 2 },
     ]);
-    expect(plain.messages.find((m) => m.code === 'layer-unassigned')?.text).toMatch(/"set A".*--layer "set A=M".*Layers/);
+    expect(plain.messages.find((m) => m.code === 'layer-unassigned')?.text).toMatch(/"set A".*--layer "set A=M".*Layers dialog\./);
     const mapped = loadPatternText(svg('<g id="set A">'), 'g.svg', { layers: [{ name: 'SET a', assignment: 'M' }] });
     expect(mapped.layers).toContainEqual({ name: 'set A', assignment: 'M', how: 'layer', lines: 2 });
     expect(mapped.messages.some((m) => m.code === 'layer-unassigned')).toBe(false);

@@ -198,7 +198,7 @@ function assignLines(drawing: Drawing, checked: Checked, messages: Message[]): {
       messages.push({
         severity: 'warning',
         code: 'layer-unassigned',
-        text: `${g.count} line${g.count === 1 ? ' is' : 's are'} on ${layerText}, read as unassigned (U): the name ${amb ? 'names more than one assignment' : 'says no mountain, valley, flat or boundary'}. Say which with --layer "${g.layer}=M" (or V, F, B, U), or in the app with Layers….`,
+        text: `${g.count} line${g.count === 1 ? ' is' : 's are'} on ${layerText}, read as unassigned (U): the name ${amb ? 'names more than one assignment' : 'says no mountain, valley, flat or boundary'}. Say which with --layer "${g.layer}=M" (or V, F, B, U) on the command line, or in the app's Layers dialog.`,
         where: g.first.where,
       });
     }

@@ -492,7 +492,7 @@ export const e2eTests: E2ETest[] = [
   {
     name: 'a drawing whose layer names say nothing: the Layers dialog lists them, and the drawing read again with them assigned matches the core reader',
     async run(h) {
-      await withSession(h, 'drawing-layers', { openSample: COUPON_FILE }, async ({ page, host, tmp }) => {
+      await withSession(h, 'drawing-layers', { openSample: COUPON_FILE, viewport: { width: 1280, height: 800 } }, async ({ page, host, tmp }) => {
         await waitSolved(page);
         const drawn = path.join(tmp, 'coupon-unnamed.svg');
         const text = readFileSync(path.join(SAMPLES, '..', 'tests', 'fixtures', 'drawings', 'coupon.svg'), 'utf8').replace('id="mountains"', 'id="folds-a"');
