@@ -311,10 +311,10 @@ function formNorm(M: number[][]): number {
   return s;
 }
 
-/** Unit vectors c (both signs) on which every quadratic form vanishes, relative to the forms' size. */
 /** Random starts of the search for common zeros of the quadratic forms on a k-dimensional space. */
 const commonZeroStarts = (k: number) => Math.min(200, 30 + 10 * k);
 
+/** Unit vectors c (both signs) on which every quadratic form vanishes, relative to the forms' size. */
 function commonZeros(forms: number[][][], k: number): number[][] {
   const big = Math.max(...forms.map(formNorm));
   const ok = (c: number[]) => forms.every((M) => Math.abs(quadValue(M, c)) <= 1e-6 * big);
