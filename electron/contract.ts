@@ -112,9 +112,19 @@ export const DrawingLayerSchema = z.object({
 });
 export type DrawingLayerDto = z.output<typeof DrawingLayerSchema>;
 
-/** How to read a drawing again: layer names mapped to assignments (as `--layer`), and the snap length. */
+/** A colour a drawing's lines are drawn in (solver/formats/drawing.ts): as `--stroke` names it, for people, its lines, what a mapping made of them. */
+export const DrawingColourSchema = z.object({
+  colour: z.string().max(64),
+  text: z.string().max(256),
+  lines: z.number().int().min(0),
+  assignment: AssignmentSchema.optional(),
+});
+export type DrawingColourDto = z.output<typeof DrawingColourSchema>;
+
+/** How to read a drawing again: layer names and line colours mapped to assignments (as `--layer`, `--stroke`), and the snap length. */
 export const DrawingOptionsSchema = z.object({
   layers: z.array(z.object({ name: z.string().max(1024), assignment: AssignmentSchema })).max(10_000).default([]),
+  strokes: z.array(z.object({ colour: z.string().max(64), assignment: AssignmentSchema })).max(10_000).default([]),
   snap: z.number().min(0).finite().optional(),
 });
 export type DrawingOptionsDto = z.output<typeof DrawingOptionsSchema>;
@@ -132,6 +142,8 @@ export const OpenedDocumentSchema = z.object({
   computePath: z.boolean().optional(),
   /** a drawing: its layers or groups and the assignment each gave its lines */
   drawingLayers: z.array(DrawingLayerSchema).max(10_000).optional(),
+  /** a drawing: the colours its lines are drawn in */
+  drawingColours: z.array(DrawingColourSchema).max(10_000).optional(),
   /** a drawing: the options it was read with */
   drawingOptions: DrawingOptionsSchema.optional(),
 });

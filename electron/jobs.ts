@@ -121,7 +121,7 @@ export function loadJob(_state: JobState, payload: unknown) {
     format: loaded.format ?? 'project',
     project: toProjectDto(loaded.project),
     messages: msgs,
-    ...(loaded.layers ? { drawingLayers: loaded.layers } : {}),
+    ...(loaded.layers ? { drawingLayers: loaded.layers, drawingColours: loaded.colours ?? [] } : {}),
   };
 }
 

@@ -14,6 +14,7 @@ import {
   type MessageDto,
   type OpenResult,
   type OpenedDocument,
+  type DrawingColourDto,
   type DrawingLayerDto,
   type DrawingOptionsDto,
   type ParsedRequestOf,
@@ -126,6 +127,7 @@ interface LoadAnswer {
   project?: ProjectDto;
   messages: MessageDto[];
   drawingLayers?: DrawingLayerDto[];
+  drawingColours?: DrawingColourDto[];
 }
 
 export function createService(deps: ServiceDeps) {
@@ -181,7 +183,7 @@ export function createService(deps: ServiceDeps) {
         format: loaded.format,
         messages: loaded.messages,
         computePath: extra.computePath,
-        ...(loaded.drawingLayers ? { drawingLayers: loaded.drawingLayers, drawingOptions: extra.drawing ?? { layers: [] } } : {}),
+        ...(loaded.drawingLayers ? { drawingLayers: loaded.drawingLayers, drawingColours: loaded.drawingColours ?? [], drawingOptions: extra.drawing ?? { layers: [], strokes: [] } } : {}),
       },
     };
   }

@@ -324,6 +324,7 @@ export function App({ controller }: { controller: Controller }) {
       {state.dialog === 'layers' && doc?.drawing && (
         <LayersDialog
           layers={doc.drawing.layers}
+          colours={doc.drawing.colours}
           options={doc.drawing.options}
           units={currentProject(state)?.units}
           onClose={() => dispatch({ type: 'dialog', dialog: null })}

@@ -146,6 +146,10 @@ describe('SVG beyond plain lines', () => {
     const mapped = loadPatternText(svg('<g id="set A">'), 'g.svg', { layers: [{ name: 'SET a', assignment: 'M' }] });
     expect(mapped.layers).toContainEqual({ name: 'set A', assignment: 'M', how: 'layer', lines: 2 });
     expect(mapped.messages.some((m) => m.code === 'layer-unassigned')).toBe(false);
+    // the colours the lines are drawn in, and what a --stroke mapping made of them
+    expect(plain.colours).toEqual([{ colour: '#000000', text: '#000000', lines: 6 }]);
+    const stroked = loadPatternText(svg('<g id="set A">'), 'g.svg', { strokes: [{ colour: 'black', assignment: 'V' }] });
+    expect(stroked.colours).toEqual([{ colour: '#000000', text: '#000000', lines: 6, assignment: 'V' }]);
   });
 
   it('inches are kept; a viewBox scales user units to the width', () => {

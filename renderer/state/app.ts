@@ -5,6 +5,7 @@
 import type {
   BranchesResultDto,
   DocumentFormatSchema,
+  DrawingColourDto,
   DrawingLayerDto,
   DrawingOptionsDto,
   MessageDto,
@@ -31,7 +32,7 @@ export interface DocState {
   /** the readers' warnings from opening */
   messages: MessageDto[];
   /** a drawing (DXF, SVG): its layers as read and the options it was read with, to read it again otherwise */
-  drawing?: { layers: DrawingLayerDto[]; options: DrawingOptionsDto };
+  drawing?: { layers: DrawingLayerDto[]; colours: DrawingColourDto[]; options: DrawingOptionsDto };
 }
 
 export type JobStatus = 'idle' | 'running' | 'done' | 'cancelled' | 'error';
@@ -260,7 +261,7 @@ export function reducer(state: AppState, action: Action): AppState {
           fileName: d.fileName,
           format: d.format,
           messages: d.messages,
-          ...(d.drawingLayers ? { drawing: { layers: d.drawingLayers, options: d.drawingOptions ?? { layers: [] } } } : {}),
+          ...(d.drawingLayers ? { drawing: { layers: d.drawingLayers, colours: d.drawingColours ?? [], options: d.drawingOptions ?? { layers: [], strokes: [] } } } : {}),
         },
       };
     }

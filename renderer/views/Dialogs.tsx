@@ -1,7 +1,7 @@
 // The dialogs: a new pattern from a generator, the export of tables and shapes with their options, and the layers of an imported drawing.
 
 import { useState, type ReactNode } from 'react';
-import type { DrawingLayerDto, DrawingOptionsDto, ExportKind, ExportOptionsDto, GeneratorSpec, MessageDto, ScheduleProfile } from '../../electron/contract';
+import type { DrawingColourDto, DrawingLayerDto, DrawingOptionsDto, ExportKind, ExportOptionsDto, GeneratorSpec, MessageDto, ScheduleProfile } from '../../electron/contract';
 import { CAUTIONS } from '../../solver/formats/cautions';
 
 function Modal({ title, children, onClose }: { title: string; children: ReactNode; onClose(): void }) {
@@ -355,18 +355,22 @@ const ASSIGNMENT_CHOICES: [DrawingLayerDto['assignment'], string][] = [
 ];
 
 /**
- * The layers (DXF) or groups (SVG) of the open drawing, the assignment each gave its lines and how; the
- * person sets them and the snap length, and the drawing is read again with them (as `--layer` and `--snap`
- * on the command line). Lines on no named layer cannot be mapped by name.
+ * The layers (DXF) or groups (SVG) of the open drawing, the assignment each gave its lines and how, and the
+ * colours the lines are drawn in; the person sets layers, colours and the snap length, and the drawing is
+ * read again with them (as `--layer`, `--stroke` and `--snap` on the command line). A layer set here wins
+ * over a colour, a colour over the words of a name. Lines on no named layer cannot be mapped by name.
  */
-export function LayersDialog({ layers, options, units, onRead, onClose }: {
+export function LayersDialog({ layers, colours, options, units, onRead, onClose }: {
   layers: DrawingLayerDto[];
+  colours: DrawingColourDto[];
   options: DrawingOptionsDto;
   units?: string;
   onRead(options: DrawingOptionsDto): Promise<MessageDto[] | null>;
   onClose(): void;
 }) {
   const [chosen, setChosen] = useState<Record<string, DrawingLayerDto['assignment']>>(() => Object.fromEntries(layers.map((l) => [l.name, l.assignment])));
+  // a colour's mapping, or '' for none (its lines keep what their layer says)
+  const [byColour, setByColour] = useState<Record<string, DrawingLayerDto['assignment'] | ''>>(() => Object.fromEntries(colours.map((c) => [c.colour, c.assignment ?? ''])));
   const [snap, setSnap] = useState(options.snap === undefined ? '' : String(options.snap));
   const [problems, setProblems] = useState<string[]>([]);
   const [busy, setBusy] = useState(false);
@@ -377,15 +381,17 @@ export function LayersDialog({ layers, options, units, onRead, onClose }: {
       return;
     }
     setBusy(true);
-    const named = layers.filter((l) => l.name !== '');
-    const result = await onRead({ layers: named.map((l) => ({ name: l.name, assignment: chosen[l.name] })), ...(s !== undefined ? { snap: s } : {}) });
+    // a layer is mapped when the person set it (now or before); the others are left to colours and names
+    const mapped = layers.filter((l) => l.name !== '' && (l.how === 'layer' || chosen[l.name] !== l.assignment));
+    const strokes = colours.flatMap((c) => (byColour[c.colour] ? [{ colour: c.colour, assignment: byColour[c.colour] as DrawingLayerDto['assignment'] }] : []));
+    const result = await onRead({ layers: mapped.map((l) => ({ name: l.name, assignment: chosen[l.name] })), strokes, ...(s !== undefined ? { snap: s } : {}) });
     setBusy(false);
     if (result) setProblems(result.map((m) => m.text));
     else onClose();
   };
   return (
     <Modal title="Layers of the drawing" onClose={onClose}>
-      <p className="hint">Each layer or group of the drawing gives its lines an assignment. Set the ones the names do not say, then read the drawing again.</p>
+      <p className="hint">Each layer or group of the drawing gives its lines an assignment; so can the colour they are drawn in. Set the ones the names do not say, then read the drawing again. A layer set here wins over a colour, a colour over the words of a name.</p>
       <table className="layers-table" aria-label="layers of the drawing">
         <thead>
           <tr><th>layer or group</th><th>lines</th><th>read</th><th>assignment</th></tr>
@@ -410,6 +416,27 @@ export function LayersDialog({ layers, options, units, onRead, onClose }: {
           ))}
         </tbody>
       </table>
+      {colours.length > 0 && (
+        <table className="layers-table" aria-label="line colours of the drawing">
+          <thead>
+            <tr><th>line colour</th><th>lines</th><th>assignment</th></tr>
+          </thead>
+          <tbody>
+            {colours.map((c) => (
+              <tr key={c.colour}>
+                <td><span className="colour-swatch" style={{ background: c.colour.startsWith('#') ? c.colour : undefined }} />{c.text}</td>
+                <td className="num">{c.lines}</td>
+                <td>
+                  <select aria-label={`assignment of colour ${c.text}`} value={byColour[c.colour]} onChange={(e) => setByColour({ ...byColour, [c.colour]: e.target.value as DrawingLayerDto['assignment'] | '' })}>
+                    <option value="">as its layer says</option>
+                    {ASSIGNMENT_CHOICES.map(([a, words]) => <option key={a} value={a}>{words}</option>)}
+                  </select>
+                </td>
+              </tr>
+            ))}
+          </tbody>
+        </table>
+      )}
       <label className="field">
         <span>snap end points within{units ? ` (${units})` : ''}</span>
         <input value={snap} onChange={(e) => setSnap(e.target.value)} aria-label="snap length" placeholder="default" />

@@ -3,7 +3,7 @@
 // checks pointed back at the drawing (DXF line, SVG element) instead of at vertex and crease numbers.
 import type { Assignment, Message, PatternSource, Where } from '../types';
 import { cleanSegments, type CleanCounts, type DrawnSegment, type Origin } from '../model/clean';
-import { colourMatches, parseColourOption, type Colour } from './colour';
+import { colourMatches, colourText, parseColourOption, type Colour } from './colour';
 import { MAX_CREASES } from './limits';
 import type { Project } from './project';
 
@@ -54,9 +54,22 @@ export interface DrawingLayer {
   lines: number;
 }
 
+/** A colour the drawing's lines are drawn in, as `--stroke` names it, and what a stroke mapping made of them. */
+export interface DrawingColour {
+  /** the colour as `--stroke` takes it: a DXF colour number, else '#rrggbb' */
+  colour: string;
+  /** the colour for people (its number and RGB where both are known) */
+  text: string;
+  lines: number;
+  /** the assignment a stroke mapping gave these lines, if one did */
+  assignment?: Assignment;
+}
+
 export interface DrawingLoad {
   project?: Project;
   messages: Message[];
+  /** the colours the lines are drawn in */
+  colours?: DrawingColour[];
   /** the named layers or groups that gave lines their assignment (lines assigned by colour apart) */
   layers?: DrawingLayer[];
   /** what the cleaning did, step by step */
@@ -119,11 +132,11 @@ export function drawingToProject(drawing: Drawing, opts: DrawingOptions = {}): D
     return { messages };
   }
 
-  const { segments, origins, layers } = assignLines(drawing, checked, messages);
+  const { segments, origins, layers, colours } = assignLines(drawing, checked, messages);
 
   const cleaned = cleanSegments(segments, origins, opts.snap);
   messages.push(...cleaned.messages);
-  if (cleaned.messages.some((m) => m.severity === 'error')) return { messages, layers, cleaning: { ...cleaned.counts, snap: cleaned.snap } };
+  if (cleaned.messages.some((m) => m.severity === 'error')) return { messages, layers, colours, cleaning: { ...cleaned.counts, snap: cleaned.snap } };
 
   const edgeOrigin = (e: number) => origins[segments[cleaned.sources[e][0]].origin];
   const labels = labelsFromTexts(drawing.texts, cleaned.vertices, cleaned.edges, cleaned.snap, messages);
@@ -139,7 +152,7 @@ export function drawingToProject(drawing: Drawing, opts: DrawingOptions = {}): D
   if (drawing.units !== undefined) project.units = drawing.units;
 
   const locate = locator(cleaned.vertices, cleaned.edges, edgeOrigin);
-  return { project, messages, layers, cleaning: { ...cleaned.counts, snap: cleaned.snap }, locate };
+  return { project, messages, layers, colours, cleaning: { ...cleaned.counts, snap: cleaned.snap }, locate };
 }
 
 type Checked = ReturnType<typeof checkOptions>;
@@ -148,7 +161,8 @@ type Checked = ReturnType<typeof checkOptions>;
  * Each line's assignment: a --layer name, then a --stroke colour, then the names' own words, else U (a
  * warning per layer). Messages summarise which layer or colour gave what, and options that matched nothing.
  */
-function assignLines(drawing: Drawing, checked: Checked, messages: Message[]): { segments: DrawnSegment[]; origins: Origin[]; layers: DrawingLayer[] } {
+function assignLines(drawing: Drawing, checked: Checked, messages: Message[]): { segments: DrawnSegment[]; origins: Origin[]; layers: DrawingLayer[]; colours: DrawingColour[] } {
+  const colours = new Map<string, DrawingColour>();
   /** how each group of lines got its assignment, for the summary: one entry per (layer, rule) */
   const groups = new Map<string, { layer: string; how: 'layer' | 'stroke' | 'name' | 'none'; stroke?: string; assignment: Assignment; count: number; first: Origin }>();
   const strokeUsed = new Set<string>();
@@ -183,6 +197,13 @@ function assignLines(drawing: Drawing, checked: Checked, messages: Message[]): {
       }
     }
     assignment ??= 'U';
+    if (line.colour && (line.colour.index !== undefined || line.colour.rgb)) {
+      const option = line.colour.index !== undefined ? String(line.colour.index) : line.colour.rgb!;
+      const entry = colours.get(option) ?? { colour: option, text: colourText(line.colour), lines: 0 };
+      entry.lines++;
+      if (how === 'stroke') entry.assignment = assignment;
+      colours.set(option, entry);
+    }
     const key = how === 'stroke' ? `stroke\u0000${stroke}` : `${how}\u0000${layer}`;
     const g = groups.get(key);
     if (g) g.count++;
@@ -216,7 +237,7 @@ function assignLines(drawing: Drawing, checked: Checked, messages: Message[]): {
   messages.push({ severity: 'info', code: 'drawing-read', text: `Read ${drawing.lines.length} straight piece${drawing.lines.length === 1 ? '' : 's'}: ${summary.join(', ')}.` });
   const layers: DrawingLayer[] = [];
   for (const g of groups.values()) if (g.how !== 'stroke') layers.push({ name: g.layer, assignment: g.assignment, how: g.how, lines: g.count });
-  return { segments, origins, layers };
+  return { segments, origins, layers, colours: [...colours.values()] };
 }
 
 /** Point a message of the pattern checks (a crease, or a vertex) at where the drawing drew it. */

@@ -38,6 +38,7 @@ function loadDrawing(format: 'dxf' | 'svg', text: string, fileName: string | und
   const base: LoadResult = { format, messages: r.messages };
   if (r.cleaning) base.cleaning = r.cleaning;
   if (r.layers) base.layers = r.layers;
+  if (r.colours) base.colours = r.colours;
   if (!r.project) return base;
   const built = buildPattern(r.project.source);
   base.messages = [...r.messages, ...built.messages.map((m) => (r.locate ? r.locate(m) : m))];

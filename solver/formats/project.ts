@@ -14,7 +14,7 @@ import { decodeUtf8 } from './text';
 import { decodeDxf } from './dxf-text';
 import { loadsValue, readLoads, type FileLoads } from './loads';
 import type { CleanCounts } from '../model/clean';
-import type { DrawingLayer } from './drawing';
+import type { DrawingColour, DrawingLayer } from './drawing';
 
 export { MAX_CREASES, MAX_TEXT_BYTES, MAX_VERTICES };
 
@@ -304,6 +304,8 @@ export interface LoadResult {
   cleaning?: CleanCounts & { snap: number };
   /** DXF and SVG: the layers or groups that assigned the lines, and how */
   layers?: DrawingLayer[];
+  /** DXF and SVG: the colours the lines are drawn in */
+  colours?: DrawingColour[];
   messages: Message[];
 }
 

@@ -505,6 +505,10 @@ export const e2eTests: E2ETest[] = [
         await dialog.waitFor();
         const row = dialog.locator('tr', { hasText: 'folds-a' });
         assert.match((await row.textContent()) ?? '', /folds-a\s*4\s*name says nothing/);
+        // the colours the lines are drawn in, none mapped yet
+        const colourRow = dialog.getByRole('table', { name: 'line colours of the drawing' }).locator('tr', { hasText: '#222222' });
+        assert.match((await colourRow.textContent()) ?? '', /#222222\s*7/);
+        assert.equal(await dialog.getByLabel('assignment of colour #222222').inputValue(), '');
         const select = dialog.getByLabel('assignment of layer folds-a');
         assert.equal(await select.inputValue(), 'U');
         await select.selectOption('M');

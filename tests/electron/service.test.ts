@@ -272,7 +272,16 @@ describe('main-process handlers', () => {
     expect(again.status).toBe('opened');
     expect(again.document.project.source.assignments.filter((a) => a !== 'B').sort()).toEqual(['M', 'M', 'M', 'V']);
     expect(again.document.drawingLayers).toEqual(expect.arrayContaining([{ name: 'folds-a', assignment: 'M', how: 'layer', lines: 4 }]));
-    expect(again.document.drawingOptions).toEqual({ layers: [{ name: 'folds-a', assignment: 'M' }], snap: 0.01 });
+    expect(again.document.drawingOptions).toEqual({ layers: [{ name: 'folds-a', assignment: 'M' }], strokes: [], snap: 0.01 });
+    // the colours the lines are drawn in (the drawing's CSS classes), and a colour mapped: it wins over the
+    // words of a group's name ("Valley folds"), as --stroke does
+    expect(r.document.drawingColours).toEqual(expect.arrayContaining([
+      { colour: '#222222', text: '#222222', lines: 7 },
+      { colour: '#000000', text: '#000000', lines: 4 },
+    ]));
+    const coloured = (await call('doc:reread-drawing', { path: r.document.filePath, options: { layers: [], strokes: [{ colour: '#222222', assignment: 'M' }] } })) as Opened & { document: { drawingColours: unknown[] } };
+    expect(coloured.document.project.source.assignments.filter((a) => a !== 'B').sort()).toEqual(['M', 'M', 'M', 'M']);
+    expect(coloured.document.drawingColours).toEqual(expect.arrayContaining([{ colour: '#222222', text: '#222222', lines: 7, assignment: 'M' }]));
     // a file the window never opened, or one that is not a drawing, is not read
     const other = path.join(tmp, 'never-opened.svg');
     await fs.writeFile(other, text);
