@@ -258,7 +258,7 @@ describe('main-process handlers', () => {
     const text = readFileSync(path.join(__dirname, '..', 'fixtures', 'drawings', 'coupon.svg'), 'utf8').replace('id="mountains"', 'id="folds-a"');
     await fs.writeFile(drawn, text);
     host.open.push(drawn);
-    type Opened = { status: string; document: { filePath: string; project: { source: { assignments: string[] } }; drawingLayers: { name: string; assignment: string; how: string; lines: number }[]; drawingOptions: { layers: unknown[]; snap?: number } } };
+    type Opened = { status: string; document: { filePath: string; project: { source: { assignments: string[] } }; drawingLayers: { name: string; assignment: string; how: string; lines: number }[]; drawingColours: { colour: string; text: string; lines: number; assignment?: string }[]; drawingOptions: { layers: unknown[]; snap?: number } } };
     const r = (await call('doc:open', { format: 'drawing' })) as Opened;
     expect(r.status).toBe('opened');
     expect(r.document.drawingLayers).toEqual(expect.arrayContaining([
@@ -279,7 +279,7 @@ describe('main-process handlers', () => {
       { colour: '#222222', text: '#222222', lines: 7 },
       { colour: '#000000', text: '#000000', lines: 4 },
     ]));
-    const coloured = (await call('doc:reread-drawing', { path: r.document.filePath, options: { layers: [], strokes: [{ colour: '#222222', assignment: 'M' }] } })) as Opened & { document: { drawingColours: unknown[] } };
+    const coloured = (await call('doc:reread-drawing', { path: r.document.filePath, options: { layers: [], strokes: [{ colour: '#222222', assignment: 'M' }] } })) as Opened;
     expect(coloured.document.project.source.assignments.filter((a) => a !== 'B').sort()).toEqual(['M', 'M', 'M', 'M']);
     expect(coloured.document.drawingColours).toEqual(expect.arrayContaining([{ colour: '#222222', text: '#222222', lines: 7, assignment: 'M' }]));
     // a file the window never opened, or one that is not a drawing, is not read
