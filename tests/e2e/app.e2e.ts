@@ -7,7 +7,7 @@ import Papa from 'papaparse';
 import { createHash } from 'node:crypto';
 import type { Page } from 'playwright-core';
 import { CAUTIONS, loadPatternText, solveDrives, resolveDrives, type Pattern } from '../../solver';
-import { screenshot, SAMPLES, waitSolved, withSession, type Harness } from './harness';
+import { assertTableMatches, screenshot, SAMPLES, waitSolved, withSession, type Harness } from './harness';
 import { metadata } from '../support/table-header';
 
 export interface E2ETest {
@@ -19,15 +19,6 @@ export interface E2ETest {
 const DEG = 180 / Math.PI;
 const COUPON_FILE = 'hinge-coupon.hingeplan.json';
 const COUPON = path.join(SAMPLES, COUPON_FILE);
-
-/** Angles in the hinge table as shown: label → degrees. */
-async function tableAngles(page: Page): Promise<Map<string, number>> {
-  const rows = await page.$$eval('[data-testid=hinge-table] .row', (els) =>
-    els.map((e) => [e.getAttribute('data-label')!, e.querySelector('[data-testid=angle-cell]')!.textContent!] as [string, string]),
-  );
-  return new Map(rows.map(([l, t]) => [l, Number(t.replace('°', ''))]));
-}
-
 
 function loadSample(file: string) {
   const loaded = loadPatternText(readFileSync(file, 'utf8'), path.basename(file));
@@ -44,15 +35,6 @@ async function currentCardIndex(page: Page): Promise<number> {
   const idx = await page.getAttribute('[data-testid=solution-card][aria-selected=true]', 'data-index');
   assert.ok(idx !== null, 'a solution card is current');
   return Number(idx);
-}
-
-async function assertTableMatches(page: Page, pattern: Pattern, angles: Float64Array, what: string) {
-  const shown = await tableAngles(page);
-  assert.ok(shown.size > 0, 'the table shows rows');
-  for (const [label, deg] of shown) {
-    const c = pattern.labelIndex.get(label) ?? Number(label);
-    assert.ok(Math.abs(deg - angles[c] * DEG) <= 0.0051, `${what}: crease ${label} shows ${deg}°, the solver says ${(angles[c] * DEG).toFixed(4)}°`);
-  }
 }
 
 /** Click the middle of a crease on the flat sheet (sheet coordinates → screen through the SVG's own matrix). */

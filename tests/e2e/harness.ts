@@ -18,6 +18,7 @@ import { nodeWorkerSpawner } from '../../electron/worker-client';
 import { RecentFiles, RecoveryStore } from '../../electron/files';
 import { APP_ORIGIN, SECURITY_HEADERS, mimeType, resolveAppAsset } from '../../electron/window';
 import type { EventName, EventOf } from '../../electron/contract';
+import type { Pattern } from '../../solver/types';
 
 export const ROOT = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..', '..');
 export const DIST = path.join(ROOT, 'dist');
@@ -246,4 +247,23 @@ export async function waitSolved(page: Page, timeout = 60_000): Promise<string> 
     { timeout },
   );
   return (await page.textContent('[data-testid=solve-status]')) ?? '';
+}
+
+/** Angles in the hinge table as shown: label → degrees. */
+export async function tableAngles(page: Page): Promise<Map<string, number>> {
+  const rows = await page.$$eval('[data-testid=hinge-table] .row', (els) =>
+    els.map((e) => [e.getAttribute('data-label')!, e.querySelector('[data-testid=angle-cell]')!.textContent!] as [string, string]),
+  );
+  return new Map(rows.map(([l, t]) => [l, Number(t.replace('°', ''))]));
+}
+
+/** Every angle the hinge table shows equals the solver's to the two decimals shown (half a last digit, 0.005°, plus rounding). */
+export async function assertTableMatches(page: Page, pattern: Pattern, angles: Float64Array, what: string): Promise<void> {
+  const shown = await tableAngles(page);
+  assert.ok(shown.size > 0, 'the table shows rows');
+  for (const [label, deg] of shown) {
+    const c = pattern.labelIndex.get(label) ?? Number(label);
+    const want = (angles[c] * 180) / Math.PI;
+    assert.ok(Math.abs(deg - want) <= 0.0051, `${what}: crease ${label} shows ${deg}°, the solver says ${want.toFixed(4)}°`);
+  }
 }

@@ -8,7 +8,7 @@ import path from 'node:path';
 import type { Page } from 'playwright-core';
 import { PNG } from 'pngjs';
 import { CAUTIONS, buildPattern, flatBranches, foldedShape, loadPatternText, miura, resolveDrives, solveDrives, sweep, waterbomb, type Pattern } from '../../solver';
-import { screenshot, SAMPLES, waitSolved, withSession, type AppSession } from './harness';
+import { assertTableMatches, screenshot, SAMPLES, waitSolved, withSession, type AppSession } from './harness';
 import type { E2ETest } from './app.e2e';
 
 const DEG = 180 / Math.PI;
@@ -43,22 +43,6 @@ function loadSample(file: string) {
 
 function referenceSolve(pattern: Pattern, drives: { crease: string; angleDeg: number }[]) {
   return solveDrives(pattern, resolveDrives(pattern, drives).drives);
-}
-
-async function tableAngles(page: Page): Promise<Map<string, number>> {
-  const rows = await page.$$eval('[data-testid=hinge-table] .row', (els) =>
-    els.map((e) => [e.getAttribute('data-label')!, e.querySelector('[data-testid=angle-cell]')!.textContent!] as [string, string]),
-  );
-  return new Map(rows.map(([l, t]) => [l, Number(t.replace('°', ''))]));
-}
-
-async function assertTableMatches(page: Page, pattern: Pattern, angles: Float64Array, what: string) {
-  const shown = await tableAngles(page);
-  assert.ok(shown.size > 0, 'the table shows rows');
-  for (const [label, deg] of shown) {
-    const c = pattern.labelIndex.get(label) ?? Number(label);
-    assert.ok(Math.abs(deg - angles[c] * DEG) <= 0.0051, `${what}: crease ${label} shows ${deg}°, the solver says ${(angles[c] * DEG).toFixed(4)}°`);
-  }
 }
 
 async function setDriveField(page: Page, label: string, value: number) {
